@@ -1,0 +1,268 @@
+//! The node layout: GeoJSON Point features with per-node antenna properties.
+//!
+//! Coordinates follow RFC 7946 ([lon, lat] on WGS84). Each feature carries `id` (unique,
+//! string or number), `azimuth_deg` (boresight, degrees clockwise from true north; required
+//! unless the pattern is omni), optional overrides of every `[antenna]` key and `peer` (id of
+//! the node at the other end of its planned link). `name`, `note` and keys beginning with
+//! `x_` are carried along untouched; any other key is rejected as a probable typo.
+
+use crate::antenna::Pattern;
+use crate::error::{Problem, Problems};
+use crate::scenario::{AntennaDefaults, Range};
+use serde_json::Value;
+
+/// One resolved node: every default applied, every value checked.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Node {
+    /// Unique identifier.
+    pub id: String,
+    /// Longitude, degrees (WGS84).
+    pub lon: f64,
+    /// Latitude, degrees (WGS84).
+    pub lat: f64,
+    /// Boresight azimuth, degrees clockwise from true north, in [0, 360).
+    pub azimuth_deg: f64,
+    /// Horizontal antenna pattern.
+    pub pattern: Pattern,
+    /// Conducted transmit power into the antenna, dBm.
+    pub power_dbm: f64,
+    /// Antenna height above the local ground reference, m.
+    pub height_m: f64,
+    /// Fraction of time transmitting, [0, 1].
+    pub activity: f64,
+    /// Id of the node at the other end of its planned link.
+    pub peer: Option<String>,
+    /// Optional human-readable name carried from the input.
+    pub name: Option<String>,
+}
+
+impl Node {
+    /// Effective isotropic radiated power on boresight, dBm.
+    pub fn eirp_dbm(&self) -> f64 {
+        self.power_dbm + self.pattern.max_gain_dbi()
+    }
+}
+
+/// Property keys a node feature may carry.
+pub const NODE_KEYS: &[&str] = &[
+    "id", "azimuth_deg", "pattern", "beamwidth_deg", "gain_dbi", "sidelobe_dbi", "power_dbm",
+    "height_m", "activity", "peer", "name", "note",
+];
+
+/// Parses a GeoJSON text of nodes. `file` names the file in messages; `defaults` are the
+/// scenario's `[antenna]` values. All problems are collected.
+pub fn parse_nodes(text: &str, file: &str, defaults: &AntennaDefaults) -> Result<Vec<Node>, Vec<Problem>> {
+    let mut probs = Problems::default();
+    let gj: geojson::GeoJson = match text.parse() {
+        Ok(g) => g,
+        Err(e) => return Err(vec![Problem::new(file, None, "(document)", format!("not valid GeoJSON: {e}"))]),
+    };
+    let fc = match gj {
+        geojson::GeoJson::FeatureCollection(fc) => fc,
+        _ => {
+            return Err(vec![Problem::new(file, None, "type", "expected a GeoJSON FeatureCollection of Point features")]);
+        }
+    };
+    if fc.features.is_empty() {
+        return Err(vec![Problem::new(file, None, "features", "the FeatureCollection has no features; at least one node is needed")]);
+    }
+    let mut nodes = Vec::with_capacity(fc.features.len());
+    for (i, f) in fc.features.iter().enumerate() {
+        if let Some(n) = parse_feature(i, f, file, defaults, &mut probs) {
+            nodes.push(n);
+        }
+    }
+    // Unique ids and peers that resolve.
+    let mut seen: std::collections::HashMap<&str, usize> = std::collections::HashMap::new();
+    for (i, n) in nodes.iter().enumerate() {
+        if let Some(first) = seen.insert(n.id.as_str(), i) {
+            probs.push(Problem::new(
+                file,
+                Some(format!("feature {i} (id {})", n.id)),
+                "id",
+                format!("duplicate id `{}` (first used by feature {first}); ids must be unique", n.id),
+            ));
+            seen.insert(n.id.as_str(), first);
+        }
+    }
+    for (i, n) in nodes.iter().enumerate() {
+        if let Some(p) = &n.peer {
+            let feat = Some(format!("feature {i} (id {})", n.id));
+            if p == &n.id {
+                probs.push(Problem::new(file, feat, "peer", format!("node `{p}` names itself as its peer; name another node's id")));
+            } else if let Some(&j) = seen.get(p.as_str()) {
+                let m = &nodes[j];
+                if (m.lon - n.lon).abs() < 1e-9 && (m.lat - n.lat).abs() < 1e-9 {
+                    probs.push(Problem::new(file, feat, "peer", format!("peer `{p}` stands at the same spot; a link needs two positions")));
+                }
+            } else {
+                probs.push(Problem::new(file, feat, "peer", format!("value `{p}` names no node in this file")));
+            }
+        }
+    }
+    if nodes.len() != fc.features.len() || !probs.is_empty() {
+        // Some features were rejected outright; their problems are already recorded.
+        return Err(probs.0);
+    }
+    Ok(nodes)
+}
+
+fn parse_feature(i: usize, f: &geojson::Feature, file: &str, d: &AntennaDefaults, probs: &mut Problems) -> Option<Node> {
+    let props = f.properties.clone().unwrap_or_default();
+    let id = match props.get("id").or(None) {
+        Some(Value::String(s)) if !s.trim().is_empty() => Some(s.clone()),
+        Some(Value::Number(n)) => Some(n.to_string()),
+        Some(v) => {
+            probs.push(Problem::new(file, Some(format!("feature {i}")), "id", format!("value {v} is not a non-empty string or a number")));
+            None
+        }
+        None => match &f.id {
+            Some(geojson::feature::Id::String(s)) => Some(s.clone()),
+            Some(geojson::feature::Id::Number(n)) => Some(n.to_string()),
+            None => {
+                probs.push(Problem::new(file, Some(format!("feature {i}")), "id", "missing; every node needs a unique id (string or number)"));
+                None
+            }
+        },
+    };
+    let feat = match &id {
+        Some(id) => format!("feature {i} (id {id})"),
+        None => format!("feature {i}"),
+    };
+    let before = probs.0.len();
+    let mut push = |field: &str, msg: String| probs.push(Problem::new(file, Some(feat.clone()), field, msg));
+
+    for k in props.keys() {
+        if !NODE_KEYS.contains(&k.as_str()) && !k.starts_with("x_") {
+            push(k, format!("unknown property; allowed: {} (or any key starting with `x_`)", NODE_KEYS.join(", ")));
+        }
+    }
+    let (lon, lat) = match f.geometry.as_ref().map(|g| &g.value) {
+        Some(geojson::GeometryValue::Point { coordinates: c }) if c.len() >= 2 => (c[0], c[1]),
+        Some(g) => {
+            push("geometry", format!("is a {}, expected a Point [lon, lat]", g.type_name()));
+            (0.0, 0.0)
+        }
+        None => {
+            push("geometry", "missing; expected a Point [lon, lat]".into());
+            (0.0, 0.0)
+        }
+    };
+    if !(lon.is_finite() && (-180.0..=180.0).contains(&lon)) {
+        push("geometry", format!("longitude {lon} is outside [-180, 180]"));
+    }
+    if !(lat.is_finite() && (-85.0..=85.0).contains(&lat)) {
+        push("geometry", format!("latitude {lat} is outside [-85, 85] (polar regions are not supported)"));
+    }
+    let mut num = |key: &str, range: Option<&Range>| -> Option<f64> {
+        match props.get(key) {
+            None | Some(Value::Null) => None,
+            Some(Value::Number(n)) => {
+                let v = n.as_f64().unwrap_or(f64::NAN);
+                if let Some(r) = range {
+                    if !r.contains(v) {
+                        push(key, format!("value {v} is outside the allowed range {r}"));
+                    }
+                }
+                Some(v)
+            }
+            Some(v) => {
+                push(key, format!("value {v} is not a number"));
+                None
+            }
+        }
+    };
+    let az = num("azimuth_deg", Some(&Range::closed(-360.0, 360.0, "deg")));
+    let local = AntennaDefaults {
+        pattern: None,
+        beamwidth_deg: num("beamwidth_deg", Some(&Range::BEAMWIDTH)),
+        gain_dbi: num("gain_dbi", Some(&Range::GAIN)),
+        sidelobe_dbi: num("sidelobe_dbi", Some(&Range::SIDELOBE)),
+        power_dbm: num("power_dbm", Some(&Range::POWER)),
+        height_m: num("height_m", Some(&Range::HEIGHT)),
+        activity: num("activity", Some(&Range::ACTIVITY)),
+    };
+    let mut text = |key: &str| -> Option<String> {
+        match props.get(key) {
+            None | Some(Value::Null) => None,
+            Some(Value::String(s)) => Some(s.clone()),
+            Some(Value::Number(n)) if key == "peer" => Some(n.to_string()),
+            Some(v) => {
+                push(key, format!("value {v} is not a string"));
+                None
+            }
+        }
+    };
+    let pattern_name = text("pattern");
+    let peer = text("peer");
+    let name = text("name");
+    let merged = AntennaDefaults {
+        pattern: pattern_name.or_else(|| d.pattern.clone()),
+        beamwidth_deg: local.beamwidth_deg.or(d.beamwidth_deg),
+        gain_dbi: local.gain_dbi.or(d.gain_dbi),
+        sidelobe_dbi: local.sidelobe_dbi.or(d.sidelobe_dbi),
+        power_dbm: local.power_dbm.or(d.power_dbm),
+        height_m: local.height_m.or(d.height_m),
+        activity: local.activity.or(d.activity),
+    };
+    let resolved = merged.resolve(&mut |field, msg| push(field, msg));
+    let azimuth_deg = match (az, &resolved) {
+        (Some(a), _) => a.rem_euclid(360.0),
+        (None, Some((p, ..))) if p.is_omni() => 0.0,
+        (None, Some(_)) => {
+            push("azimuth_deg", "missing; required unless the pattern is omni (degrees clockwise from true north, [0, 360))".into());
+            0.0
+        }
+        (None, None) => 0.0,
+    };
+    if probs.0.len() > before {
+        return None;
+    }
+    let (pattern, power_dbm, height_m, activity) = resolved?;
+    Some(Node { id: id?, lon, lat, azimuth_deg, pattern, power_dbm, height_m, activity, peer, name })
+}
+
+/// Writes nodes as a GeoJSON FeatureCollection with every default resolved, plus `index`
+/// (the value used in the `server` layer) and `eirp_dbm`.
+pub fn layout_geojson(nodes: &[Node]) -> geojson::FeatureCollection {
+    let features = nodes
+        .iter()
+        .enumerate()
+        .map(|(i, n)| {
+            let mut p = serde_json::Map::new();
+            p.insert("index".into(), i.into());
+            p.insert("id".into(), n.id.clone().into());
+            if let Some(name) = &n.name {
+                p.insert("name".into(), name.clone().into());
+            }
+            p.insert("azimuth_deg".into(), n.azimuth_deg.into());
+            p.insert("pattern".into(), n.pattern.kind().into());
+            p.insert("beamwidth_deg".into(), n.pattern.beamwidth_deg().into());
+            p.insert("gain_dbi".into(), n.pattern.max_gain_dbi().into());
+            match n.pattern {
+                Pattern::Sector { sidelobe_dbi, .. } => {
+                    p.insert("sidelobe_dbi".into(), sidelobe_dbi.into());
+                }
+                Pattern::Parabolic { floor_dbi, .. } => {
+                    p.insert("sidelobe_dbi".into(), floor_dbi.into());
+                }
+                Pattern::Omni { .. } => {}
+            }
+            p.insert("power_dbm".into(), n.power_dbm.into());
+            p.insert("eirp_dbm".into(), n.eirp_dbm().into());
+            p.insert("height_m".into(), n.height_m.into());
+            p.insert("activity".into(), n.activity.into());
+            if let Some(peer) = &n.peer {
+                p.insert("peer".into(), peer.clone().into());
+            }
+            geojson::Feature {
+                bbox: None,
+                geometry: Some(geojson::Geometry::new(geojson::GeometryValue::new_point([n.lon, n.lat]))),
+                id: None,
+                properties: Some(p),
+                foreign_members: None,
+            }
+        })
+        .collect();
+    geojson::FeatureCollection { bbox: None, features, foreign_members: None }
+}

@@ -1,0 +1,134 @@
+//! The breakdown at one point, in double precision: each node's distance, bearing, gains,
+//! path loss and received power, then total, best server, interference, noise and SINR.
+//! It follows the engine's definitions (see [`crate::engine`]) and serves as its reference.
+
+use crate::geodesy::bearing_deg;
+use crate::scenario::Scenario;
+use crate::units::{dbm_to_mw, mw_to_dbm};
+use serde::Serialize;
+
+/// One node's contribution at the probed point.
+#[derive(Debug, Clone, Serialize)]
+pub struct Contribution {
+    /// Node id.
+    pub id: String,
+    /// Index in layout order.
+    pub index: usize,
+    /// 3-D slant range, m.
+    pub distance_m: f64,
+    /// Bearing from the point to the node, degrees clockwise from true north.
+    pub bearing_deg: f64,
+    /// Transmit antenna gain toward the point, dBi.
+    pub tx_gain_dbi: f64,
+    /// Receive antenna gain toward the node, dBi.
+    pub rx_gain_dbi: f64,
+    /// Path loss, dB.
+    pub path_loss_db: f64,
+    /// Mean received power while transmitting, dBm.
+    pub power_dbm: f64,
+    /// Fraction of time the node transmits.
+    pub activity: f64,
+}
+
+/// The full breakdown.
+#[derive(Debug, Clone, Serialize)]
+pub struct Probe {
+    /// Latitude probed, degrees.
+    pub lat: f64,
+    /// Longitude probed, degrees.
+    pub lon: f64,
+    /// Activity-weighted total with the omni receiver gain, dBm.
+    pub total_dbm: f64,
+    /// Aggregate interference at a receiver served by `server`, dBm (−inf printed as null).
+    pub interference_dbm: Option<f64>,
+    /// Receiver noise, dBm.
+    pub noise_dbm: f64,
+    /// Mean SINR, dB.
+    pub sinr_db: f64,
+    /// Id of the best server.
+    pub server: String,
+    /// Per-node contributions, strongest first.
+    pub contributions: Vec<Contribution>,
+}
+
+/// Computes the breakdown at (`lat`, `lon`).
+pub fn probe(sc: &Scenario, lat: f64, lon: f64) -> Probe {
+    let (px, py) = sc.frame.to_local(lon, lat);
+    let rx = &sc.receiver;
+    let g_omni = rx.omni_gain_dbi();
+    // First pass: tx side and path loss.
+    let mut base: Vec<(usize, f64, f64, f64, f64)> = Vec::with_capacity(sc.nodes.len());
+    for (i, n) in sc.nodes.iter().enumerate() {
+        let (nx, ny) = sc.frame.to_local(n.lon, n.lat);
+        let (wx, wy) = (px - nx, py - ny);
+        let dist = (wx * wx + wy * wy + (n.height_m - rx.height_m).powi(2)).sqrt();
+        let tx_off = bearing_deg(wx, wy) - n.azimuth_deg;
+        let tx_gain = n.pattern.gain_dbi(tx_off);
+        let pl = sc.pathloss.loss_db(dist);
+        base.push((i, dist, bearing_deg(-wx, -wy), tx_gain, pl));
+    }
+    let p0 = |b: &(usize, f64, f64, f64, f64)| sc.nodes[b.0].power_dbm + b.3 - b.4;
+    let server = base.iter().enumerate().fold(0, |best, (k, b)| if p0(b) > p0(&base[best]) { k } else { best });
+    let server_bearing = base[server].2;
+    let mut contributions: Vec<Contribution> = base
+        .iter()
+        .map(|b| {
+            let n = &sc.nodes[b.0];
+            let rx_gain = if rx.aimed { rx.pattern.gain_dbi(b.2 - server_bearing) } else { rx.pattern.max_gain_dbi() };
+            let rx_gain = if b.0 == server { rx.pattern.max_gain_dbi() } else { rx_gain };
+            Contribution {
+                id: n.id.clone(),
+                index: b.0,
+                distance_m: b.1,
+                bearing_deg: b.2,
+                tx_gain_dbi: b.3,
+                rx_gain_dbi: rx_gain,
+                path_loss_db: b.4,
+                power_dbm: n.power_dbm + b.3 + rx_gain - b.4,
+                activity: n.activity,
+            }
+        })
+        .collect();
+    let total_mw: f64 = base.iter().map(|b| sc.nodes[b.0].activity * dbm_to_mw(p0(b) + g_omni)).sum();
+    let interference_mw: f64 = contributions.iter().filter(|c| c.index != server).map(|c| c.activity * dbm_to_mw(c.power_dbm)).sum();
+    let signal_mw = dbm_to_mw(contributions[server].power_dbm);
+    let noise_dbm = sc.noise_dbm();
+    let sinr_db = mw_to_dbm(signal_mw / (interference_mw + dbm_to_mw(noise_dbm)));
+    contributions.sort_by(|a, b| b.power_dbm.total_cmp(&a.power_dbm).then(a.index.cmp(&b.index)));
+    Probe {
+        lat,
+        lon,
+        total_dbm: mw_to_dbm(total_mw),
+        interference_dbm: (interference_mw > 0.0).then(|| mw_to_dbm(interference_mw)),
+        noise_dbm,
+        sinr_db,
+        server: sc.nodes[server].id.clone(),
+        contributions,
+    }
+}
+
+impl Probe {
+    /// A plain-text table for a terminal.
+    pub fn to_table(&self) -> String {
+        let mut s = format!("point {:.6}, {:.6}\n", self.lat, self.lon);
+        s += &format!(
+            "{:<14} {:>10} {:>8} {:>8} {:>8} {:>9} {:>10} {:>6}\n",
+            "node", "dist_m", "brg_deg", "tx_dBi", "rx_dBi", "loss_dB", "rx_dBm", "act"
+        );
+        for c in &self.contributions {
+            s += &format!(
+                "{:<14} {:>10.1} {:>8.1} {:>8.2} {:>8.2} {:>9.2} {:>10.2} {:>6.2}\n",
+                c.id, c.distance_m, c.bearing_deg, c.tx_gain_dbi, c.rx_gain_dbi, c.path_loss_db, c.power_dbm, c.activity
+            );
+        }
+        s += &format!("total         {:>10.2} dBm\n", self.total_dbm);
+        s += &format!("best server   {:>10}\n", self.server);
+        match self.interference_dbm {
+            Some(i) => s += &format!("interference  {i:>10.2} dBm\n"),
+            None => s += "interference        none\n",
+        }
+        s += &format!("noise         {:>10.2} dBm\n", self.noise_dbm);
+        s += &format!("SINR          {:>10.2} dB\n", self.sinr_db);
+        s
+    }
+}
