@@ -51,7 +51,11 @@ impl Pattern {
         }
         match *self {
             Pattern::Sector { beamwidth_deg, gain_dbi, sidelobe_dbi } => {
-                if a <= beamwidth_deg / 2.0 { gain_dbi } else { sidelobe_dbi }
+                if a <= beamwidth_deg / 2.0 {
+                    gain_dbi
+                } else {
+                    sidelobe_dbi
+                }
             }
             Pattern::Parabolic { beamwidth_deg, gain_dbi, floor_dbi } => {
                 gain_dbi - (12.0 * (a / beamwidth_deg).powi(2)).min(gain_dbi - floor_dbi)
@@ -63,7 +67,9 @@ impl Pattern {
     /// Largest gain of the pattern, dBi.
     pub fn max_gain_dbi(&self) -> f64 {
         match *self {
-            Pattern::Sector { gain_dbi, .. } | Pattern::Parabolic { gain_dbi, .. } | Pattern::Omni { gain_dbi } => gain_dbi,
+            Pattern::Sector { gain_dbi, .. } | Pattern::Parabolic { gain_dbi, .. } | Pattern::Omni { gain_dbi } => {
+                gain_dbi
+            }
         }
     }
 

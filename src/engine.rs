@@ -245,7 +245,8 @@ fn pass_sum<D: Decay, G: TxGain>(d: D, g: G, n: &NodeK, xs: &[f32], ys: &[f32], 
 fn pass_full<D: Decay, G: TxGain>(d: D, g: G, n: &NodeK, b: &mut RowBufs) {
     let len = b.xs.len();
     let (xs, ys) = (&b.xs[..len], &b.ys[..len]);
-    let (best, bestw, other, server) = (&mut b.best[..len], &mut b.bestw[..len], &mut b.other[..len], &mut b.server[..len]);
+    let (best, bestw, other, server) =
+        (&mut b.best[..len], &mut b.bestw[..len], &mut b.other[..len], &mut b.server[..len]);
     for c in 0..len {
         let wx = xs[c] - n.x;
         let wy = ys[c] - n.y;
@@ -265,7 +266,8 @@ fn pass_full<D: Decay, G: TxGain>(d: D, g: G, n: &NodeK, b: &mut RowBufs) {
 fn pass_aimed<D: Decay, G: TxGain>(d: D, g: G, n: &NodeK, rx: (f32, f32, f32), b: &mut RowBufs) {
     let (rcc, rmain, rside) = rx;
     let len = b.xs.len();
-    let (xs, ys, ux, uy, server, iacc) = (&b.xs[..len], &b.ys[..len], &b.ux[..len], &b.uy[..len], &b.server[..len], &mut b.iacc[..len]);
+    let (xs, ys, ux, uy, server, iacc) =
+        (&b.xs[..len], &b.ys[..len], &b.ux[..len], &b.uy[..len], &b.server[..len], &mut b.iacc[..len]);
     for c in 0..len {
         let wx = xs[c] - n.x;
         let wy = ys[c] - n.y;
@@ -309,7 +311,9 @@ impl<'s> Engine<'s> {
                 let az = n.azimuth_deg.to_radians();
                 let p = dbm_to_mw(n.power_dbm) * k_inv;
                 let (p_main, p_side, lut) = match n.pattern {
-                    Pattern::Sector { gain_dbi, sidelobe_dbi, .. } => (p * db_to_lin(gain_dbi), p * db_to_lin(sidelobe_dbi), None),
+                    Pattern::Sector { gain_dbi, sidelobe_dbi, .. } => {
+                        (p * db_to_lin(gain_dbi), p * db_to_lin(sidelobe_dbi), None)
+                    }
                     Pattern::Omni { gain_dbi } => (p * db_to_lin(gain_dbi), p * db_to_lin(gain_dbi), None),
                     Pattern::Parabolic { .. } => {
                         let pos = luts.iter().position(|(q, _)| *q == n.pattern).unwrap_or_else(|| {
@@ -335,9 +339,12 @@ impl<'s> Engine<'s> {
                 }
             })
             .collect();
-        let tree = RTree::bulk_load(nodes.iter().map(|n| GeomWithData::new([n.x as f64, n.y as f64], n.idx as usize)).collect());
+        let tree = RTree::bulk_load(
+            nodes.iter().map(|n| GeomWithData::new([n.x as f64, n.y as f64], n.idx as usize)).collect(),
+        );
         let g = &sc.grid;
-        let (sin_dlon, cos_dlon) = (0..g.cols()).map(|c| (g.lon_of_col(c) - sc.frame.lon0()).to_radians().sin_cos()).unzip();
+        let (sin_dlon, cos_dlon) =
+            (0..g.cols()).map(|c| (g.lon_of_col(c) - sc.frame.lon0()).to_radians().sin_cos()).unzip();
         let rxp = sc.receiver.pattern;
         let rx_aim = sc.receiver.aimed.then(|| match rxp {
             Pattern::Sector { gain_dbi, sidelobe_dbi, .. } => {
@@ -420,7 +427,10 @@ impl<'s> Engine<'s> {
             .collect();
         let bar = if opts.progress && rows * cols * self.nodes.len() > 50_000_000 {
             let b = indicatif::ProgressBar::new(rows as u64);
-            b.set_style(indicatif::ProgressStyle::with_template("{msg} [{bar:40}] {pos}/{len} rows, {eta} left").unwrap_or_else(|_| indicatif::ProgressStyle::default_bar()));
+            b.set_style(
+                indicatif::ProgressStyle::with_template("{msg} [{bar:40}] {pos}/{len} rows, {eta} left")
+                    .unwrap_or_else(|_| indicatif::ProgressStyle::default_bar()),
+            );
             b.set_message("map");
             b
         } else {
@@ -447,9 +457,21 @@ impl<'s> Engine<'s> {
     }
 
     /// One row; returns (pair evaluations, bound on dropped power in mW).
-    fn row<D: Decay>(&self, d: D, r: usize, l: LayerSet, cutoff: Option<f64>, b: &mut RowBufs, out: [Option<&mut [f32]>; 4]) -> (u64, f64) {
+    fn row<D: Decay>(
+        &self,
+        d: D,
+        r: usize,
+        l: LayerSet,
+        cutoff: Option<f64>,
+        b: &mut RowBufs,
+        out: [Option<&mut [f32]>; 4],
+    ) -> (u64, f64) {
         #[cfg(target_arch = "x86_64")]
         {
+            if std::arch::is_x86_feature_detected!("avx512f") {
+                // SAFETY: the CPU supports the features the function was compiled for.
+                return unsafe { self.row_avx512(d, r, l, cutoff, b, out) };
+            }
             if std::arch::is_x86_feature_detected!("avx2") && std::arch::is_x86_feature_detected!("fma") {
                 // SAFETY: the CPU supports the features the function was compiled for.
                 return unsafe { self.row_avx2(d, r, l, cutoff, b, out) };
@@ -459,13 +481,43 @@ impl<'s> Engine<'s> {
     }
 
     #[cfg(target_arch = "x86_64")]
+    #[target_feature(enable = "avx512f,avx2,fma")]
+    fn row_avx512<D: Decay>(
+        &self,
+        d: D,
+        r: usize,
+        l: LayerSet,
+        cutoff: Option<f64>,
+        b: &mut RowBufs,
+        out: [Option<&mut [f32]>; 4],
+    ) -> (u64, f64) {
+        self.row_body(d, r, l, cutoff, b, out)
+    }
+
+    #[cfg(target_arch = "x86_64")]
     #[target_feature(enable = "avx2,fma")]
-    fn row_avx2<D: Decay>(&self, d: D, r: usize, l: LayerSet, cutoff: Option<f64>, b: &mut RowBufs, out: [Option<&mut [f32]>; 4]) -> (u64, f64) {
+    fn row_avx2<D: Decay>(
+        &self,
+        d: D,
+        r: usize,
+        l: LayerSet,
+        cutoff: Option<f64>,
+        b: &mut RowBufs,
+        out: [Option<&mut [f32]>; 4],
+    ) -> (u64, f64) {
         self.row_body(d, r, l, cutoff, b, out)
     }
 
     #[inline(always)]
-    fn row_body<D: Decay>(&self, d: D, r: usize, l: LayerSet, cutoff: Option<f64>, b: &mut RowBufs, out: [Option<&mut [f32]>; 4]) -> (u64, f64) {
+    fn row_body<D: Decay>(
+        &self,
+        d: D,
+        r: usize,
+        l: LayerSet,
+        cutoff: Option<f64>,
+        b: &mut RowBufs,
+        out: [Option<&mut [f32]>; 4],
+    ) -> (u64, f64) {
         let g = &self.sc.grid;
         let cols = g.cols();
         let (sl, cl) = g.lat_of_row(r).to_radians().sin_cos();

@@ -24,12 +24,7 @@ impl Problem {
         field: impl Into<String>,
         message: impl Into<String>,
     ) -> Self {
-        Problem {
-            file: file.into(),
-            feature,
-            field: field.into(),
-            message: message.into(),
-        }
+        Problem { file: file.into(), feature, field: field.into(), message: message.into() }
     }
 }
 
@@ -68,11 +63,7 @@ pub enum Error {
 }
 
 fn list(problems: &[Problem]) -> String {
-    problems
-        .iter()
-        .map(|p| format!("  - {p}"))
-        .collect::<Vec<_>>()
-        .join("\n")
+    problems.iter().map(|p| format!("  - {p}")).collect::<Vec<_>>().join("\n")
 }
 
 impl Error {
@@ -93,11 +84,7 @@ impl Problems {
     }
     /// `Ok(())` when nothing was recorded, otherwise [`Error::Input`] with every problem.
     pub fn into_result(self) -> Result<(), Error> {
-        if self.0.is_empty() {
-            Ok(())
-        } else {
-            Err(Error::Input(self.0))
-        }
+        if self.0.is_empty() { Ok(()) } else { Err(Error::Input(self.0)) }
     }
     /// Whether nothing has been recorded.
     pub fn is_empty(&self) -> bool {

@@ -89,7 +89,12 @@ impl Grid {
             ));
         }
         let (cols, rows) = (cols as usize, rows as usize);
-        let bbox = BBox { west: bbox.west, north: bbox.north, east: bbox.west + cols as f64 * dlon, south: bbox.north - rows as f64 * dlat };
+        let bbox = BBox {
+            west: bbox.west,
+            north: bbox.north,
+            east: bbox.west + cols as f64 * dlon,
+            south: bbox.north - rows as f64 * dlat,
+        };
         Ok(Grid { bbox, cell_m, dlon, dlat, rows, cols })
     }
 
@@ -133,7 +138,8 @@ impl Grid {
     pub fn cell_of(&self, lon: f64, lat: f64) -> Option<(usize, usize)> {
         let c = ((lon - self.bbox.west) / self.dlon).floor();
         let r = ((self.bbox.north - lat) / self.dlat).floor();
-        (c >= 0.0 && r >= 0.0 && (c as usize) < self.cols && (r as usize) < self.rows).then_some((r as usize, c as usize))
+        (c >= 0.0 && r >= 0.0 && (c as usize) < self.cols && (r as usize) < self.rows)
+            .then_some((r as usize, c as usize))
     }
 
     /// Estimated peak memory in bytes for computing and writing `layers` float32 layers:

@@ -28,7 +28,15 @@ pub fn regions(grid: &Grid, data: &[f32], level: f32, below: bool) -> Vec<Region
     // positive inside the region.
     let field: Vec<f32> = data
         .iter()
-        .map(|&v| if v == NODATA || !v.is_finite() { -1.0 } else if below { level - v } else { v - level })
+        .map(|&v| {
+            if v == NODATA || !v.is_finite() {
+                -1.0
+            } else if below {
+                level - v
+            } else {
+                v - level
+            }
+        })
         .collect();
     let thr = if below { f32::MIN_POSITIVE } else { 0.0 };
     let Ok(contours) = contour::ContourBuilder::new(cols, rows, true).contours(&field, &[thr]) else {
@@ -37,10 +45,12 @@ pub fn regions(grid: &Grid, data: &[f32], level: f32, below: bool) -> Vec<Region
     let b = grid.bbox();
     let to_geo = |c: &Coord<f32>| Coord { x: b.west + c.x as f64 * grid.dlon(), y: b.north - c.y as f64 * grid.dlat() };
     let mut out = Vec::new();
-    for poly in contours.into_iter().flat_map(|c| c.into_inner().0 .0) {
+    for poly in contours.into_iter().flat_map(|c| c.into_inner().0.0) {
         // Peak: the extreme cell whose centre lies inside (grid coordinates).
         let (mut best, mut best_v) = (None, f32::MIN);
-        let bbox = poly.exterior().0.iter().fold((f32::MAX, f32::MAX, f32::MIN, f32::MIN), |a, p| (a.0.min(p.x), a.1.min(p.y), a.2.max(p.x), a.3.max(p.y)));
+        let bbox = poly.exterior().0.iter().fold((f32::MAX, f32::MAX, f32::MIN, f32::MIN), |a, p| {
+            (a.0.min(p.x), a.1.min(p.y), a.2.max(p.x), a.3.max(p.y))
+        });
         let (c0, c1) = ((bbox.0.floor().max(0.0)) as usize, (bbox.2.ceil() as usize).min(cols));
         let (r0, r1) = ((bbox.1.floor().max(0.0)) as usize, (bbox.3.ceil() as usize).min(rows));
         for r in r0..r1 {
@@ -56,7 +66,12 @@ pub fn regions(grid: &Grid, data: &[f32], level: f32, below: bool) -> Vec<Region
         let ext = LineString::new(poly.exterior().0.iter().map(to_geo).collect());
         let ints = poly.interiors().iter().map(|r| LineString::new(r.0.iter().map(to_geo).collect())).collect();
         let g = Polygon::new(ext, ints).orient(Direction::Default);
-        out.push(Region { area_m2: g.geodesic_area_unsigned(), polygon: g, peak_cell, peak_value: data[peak_cell.0 * cols + peak_cell.1] });
+        out.push(Region {
+            area_m2: g.geodesic_area_unsigned(),
+            polygon: g,
+            peak_cell,
+            peak_value: data[peak_cell.0 * cols + peak_cell.1],
+        });
     }
     out
 }

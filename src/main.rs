@@ -47,6 +47,9 @@ enum Cmd {
     Check {
         /// Scenario file (TOML).
         scenario: PathBuf,
+        /// Memory limit for a full map of this scenario (MiB).
+        #[arg(long, default_value_t = 8192)]
+        max_memory_mib: u64,
     },
     /// Run the map on the bundled demo scenario.
     Demo {
@@ -76,18 +79,16 @@ fn main() -> ExitCode {
     let cli = Cli::parse();
     match run(cli) {
         Ok(code) => code,
-        Err(e) => {
-            match e.downcast_ref::<Error>() {
-                Some(_) => {
-                    eprintln!("error: {e}");
-                    ExitCode::from(2)
-                }
-                None => {
-                    eprintln!("error: {e:#}");
-                    ExitCode::from(1)
-                }
+        Err(e) => match e.downcast_ref::<Error>() {
+            Some(_) => {
+                eprintln!("error: {e}");
+                ExitCode::from(2)
             }
-        }
+            None => {
+                eprintln!("error: {e:#}");
+                ExitCode::from(1)
+            }
+        },
     }
 }
 
@@ -112,8 +113,9 @@ fn run(cli: Cli) -> anyhow::Result<ExitCode> {
             let sc = Scenario::load(&path)?;
             map_cmd(&sc, map, cli.quiet, Some("outputs/demo"))
         }
-        Cmd::Check { scenario } => match Scenario::load(&scenario) {
+        Cmd::Check { scenario, max_memory_mib } => match Scenario::load(&scenario) {
             Ok(sc) => {
+                lobemap::run::check_memory(&sc, 4, max_memory_mib)?;
                 println!(
                     "{}: ok: {} nodes, grid {} x {} cells of {} m, noise {:.2} dBm",
                     scenario.display(),
@@ -148,21 +150,35 @@ fn parse_lat_lon(s: &str) -> anyhow::Result<(f64, f64)> {
         return Err(bad_flag("--at", format!("value `{s}` is not LAT,LON in degrees (e.g. --at 54.73,-3.21)")));
     }
     let (lat, lon) = (nums[0], nums[1]);
-    if !(lat.is_finite() && (-85.0..=85.0).contains(&lat)) || !(lon.is_finite() && (-180.0..=180.0).contains(&lon)) {
-        return Err(bad_flag("--at", format!("value `{s}`: latitude must lie in [-85, 85] and longitude in [-180, 180]")));
+    let ok = lat.is_finite() && (-85.0..=85.0).contains(&lat) && lon.is_finite() && (-180.0..=180.0).contains(&lon);
+    if !ok {
+        return Err(bad_flag(
+            "--at",
+            format!("value `{s}`: latitude must lie in [-85, 85] and longitude in [-180, 180]"),
+        ));
     }
     Ok((lat, lon))
 }
 
 fn map_cmd(sc: &Scenario, a: MapArgs, quiet: bool, default_out: Option<&str>) -> anyhow::Result<ExitCode> {
     let layers = LayerSet::parse(&a.layers).map_err(|m| bad_flag("--layers", m))?;
-    if let Some(c) = a.cutoff_m {
-        if !(c.is_finite() && c > 0.0) {
-            return Err(bad_flag("--cutoff-m", format!("value {c} is outside the allowed range (0, inf) m")));
-        }
+    if let Some(c) = a.cutoff_m
+        && !(c.is_finite() && c > 0.0)
+    {
+        return Err(bad_flag("--cutoff-m", format!("value {c} is outside the allowed range (0, inf) m")));
     }
-    let out = a.out.unwrap_or_else(|| PathBuf::from(default_out.map(String::from).unwrap_or(format!("outputs/{}", sc.name))));
-    let res = run_map(sc, &MapOptions { out: out.clone(), layers, cutoff_m: a.cutoff_m, max_memory_mib: a.max_memory_mib, progress: !quiet })?;
+    let out =
+        a.out.unwrap_or_else(|| PathBuf::from(default_out.map(String::from).unwrap_or(format!("outputs/{}", sc.name))));
+    let res = run_map(
+        sc,
+        &MapOptions {
+            out: out.clone(),
+            layers,
+            cutoff_m: a.cutoff_m,
+            max_memory_mib: a.max_memory_mib,
+            progress: !quiet,
+        },
+    )?;
     if !quiet {
         let s = &res.summary;
         eprintln!(
@@ -170,7 +186,12 @@ fn map_cmd(sc: &Scenario, a: MapArgs, quiet: bool, default_out: Option<&str>) ->
             s.scenario, s.nodes, s.cells, s.cols, s.rows, s.elapsed_s, s.pair_evaluations as f64
         );
         if let (Some(f), Some(h)) = (s.sinr_ok_fraction, s.hotspots) {
-            eprintln!("SINR >= {} dB on {:.1} % of cells; {} interference hot spot(s)", s.sinr_threshold_db, f * 100.0, h);
+            eprintln!(
+                "SINR >= {} dB on {:.1} % of cells; {} interference hot spot(s)",
+                s.sinr_threshold_db,
+                f * 100.0,
+                h
+            );
         }
         eprintln!("wrote {} files to {}", res.files.len(), out.display());
     }

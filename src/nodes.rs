@@ -45,8 +45,18 @@ impl Node {
 
 /// Property keys a node feature may carry.
 pub const NODE_KEYS: &[&str] = &[
-    "id", "azimuth_deg", "pattern", "beamwidth_deg", "gain_dbi", "sidelobe_dbi", "power_dbm",
-    "height_m", "activity", "peer", "name", "note",
+    "id",
+    "azimuth_deg",
+    "pattern",
+    "beamwidth_deg",
+    "gain_dbi",
+    "sidelobe_dbi",
+    "power_dbm",
+    "height_m",
+    "activity",
+    "peer",
+    "name",
+    "note",
 ];
 
 /// Parses a GeoJSON text of nodes. `file` names the file in messages; `defaults` are the
@@ -60,11 +70,21 @@ pub fn parse_nodes(text: &str, file: &str, defaults: &AntennaDefaults) -> Result
     let fc = match gj {
         geojson::GeoJson::FeatureCollection(fc) => fc,
         _ => {
-            return Err(vec![Problem::new(file, None, "type", "expected a GeoJSON FeatureCollection of Point features")]);
+            return Err(vec![Problem::new(
+                file,
+                None,
+                "type",
+                "expected a GeoJSON FeatureCollection of Point features",
+            )]);
         }
     };
     if fc.features.is_empty() {
-        return Err(vec![Problem::new(file, None, "features", "the FeatureCollection has no features; at least one node is needed")]);
+        return Err(vec![Problem::new(
+            file,
+            None,
+            "features",
+            "the FeatureCollection has no features; at least one node is needed",
+        )]);
     }
     let mut nodes = Vec::with_capacity(fc.features.len());
     for (i, f) in fc.features.iter().enumerate() {
@@ -89,11 +109,21 @@ pub fn parse_nodes(text: &str, file: &str, defaults: &AntennaDefaults) -> Result
         if let Some(p) = &n.peer {
             let feat = Some(format!("feature {i} (id {})", n.id));
             if p == &n.id {
-                probs.push(Problem::new(file, feat, "peer", format!("node `{p}` names itself as its peer; name another node's id")));
+                probs.push(Problem::new(
+                    file,
+                    feat,
+                    "peer",
+                    format!("node `{p}` names itself as its peer; name another node's id"),
+                ));
             } else if let Some(&j) = seen.get(p.as_str()) {
                 let m = &nodes[j];
                 if (m.lon - n.lon).abs() < 1e-9 && (m.lat - n.lat).abs() < 1e-9 {
-                    probs.push(Problem::new(file, feat, "peer", format!("peer `{p}` stands at the same spot; a link needs two positions")));
+                    probs.push(Problem::new(
+                        file,
+                        feat,
+                        "peer",
+                        format!("peer `{p}` stands at the same spot; a link needs two positions"),
+                    ));
                 }
             } else {
                 probs.push(Problem::new(file, feat, "peer", format!("value `{p}` names no node in this file")));
@@ -107,20 +137,36 @@ pub fn parse_nodes(text: &str, file: &str, defaults: &AntennaDefaults) -> Result
     Ok(nodes)
 }
 
-fn parse_feature(i: usize, f: &geojson::Feature, file: &str, d: &AntennaDefaults, probs: &mut Problems) -> Option<Node> {
+fn parse_feature(
+    i: usize,
+    f: &geojson::Feature,
+    file: &str,
+    d: &AntennaDefaults,
+    probs: &mut Problems,
+) -> Option<Node> {
     let props = f.properties.clone().unwrap_or_default();
     let id = match props.get("id").or(None) {
         Some(Value::String(s)) if !s.trim().is_empty() => Some(s.clone()),
         Some(Value::Number(n)) => Some(n.to_string()),
         Some(v) => {
-            probs.push(Problem::new(file, Some(format!("feature {i}")), "id", format!("value {v} is not a non-empty string or a number")));
+            probs.push(Problem::new(
+                file,
+                Some(format!("feature {i}")),
+                "id",
+                format!("value {v} is not a non-empty string or a number"),
+            ));
             None
         }
         None => match &f.id {
             Some(geojson::feature::Id::String(s)) => Some(s.clone()),
             Some(geojson::feature::Id::Number(n)) => Some(n.to_string()),
             None => {
-                probs.push(Problem::new(file, Some(format!("feature {i}")), "id", "missing; every node needs a unique id (string or number)"));
+                probs.push(Problem::new(
+                    file,
+                    Some(format!("feature {i}")),
+                    "id",
+                    "missing; every node needs a unique id (string or number)",
+                ));
                 None
             }
         },
@@ -159,10 +205,10 @@ fn parse_feature(i: usize, f: &geojson::Feature, file: &str, d: &AntennaDefaults
             None | Some(Value::Null) => None,
             Some(Value::Number(n)) => {
                 let v = n.as_f64().unwrap_or(f64::NAN);
-                if let Some(r) = range {
-                    if !r.contains(v) {
-                        push(key, format!("value {v} is outside the allowed range {r}"));
-                    }
+                if let Some(r) = range
+                    && !r.contains(v)
+                {
+                    push(key, format!("value {v} is outside the allowed range {r}"));
                 }
                 Some(v)
             }
@@ -210,7 +256,10 @@ fn parse_feature(i: usize, f: &geojson::Feature, file: &str, d: &AntennaDefaults
         (Some(a), _) => a.rem_euclid(360.0),
         (None, Some((p, ..))) if p.is_omni() => 0.0,
         (None, Some(_)) => {
-            push("azimuth_deg", "missing; required unless the pattern is omni (degrees clockwise from true north, [0, 360))".into());
+            push(
+                "azimuth_deg",
+                "missing; required unless the pattern is omni (degrees clockwise from true north, [0, 360))".into(),
+            );
             0.0
         }
         (None, None) => 0.0,

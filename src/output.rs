@@ -47,15 +47,19 @@ impl Staging {
     }
 
     /// Writes a file through a buffered writer given to `f`.
-    pub fn write_with(&mut self, name: &str, f: impl FnOnce(&mut BufWriter<File>) -> std::io::Result<()>) -> Result<(), Error> {
+    pub fn write_with(
+        &mut self,
+        name: &str,
+        f: impl FnOnce(&mut BufWriter<File>) -> std::io::Result<()>,
+    ) -> Result<(), Error> {
         let fin = self.dir.join(name);
-        if let Ok(c) = std::fs::canonicalize(&fin) {
-            if self.protected.contains(&c) {
-                return Err(Error::Output {
-                    path: fin,
-                    source: std::io::Error::other("refusing to overwrite an input file; choose another --out folder"),
-                });
-            }
+        if let Ok(c) = std::fs::canonicalize(&fin)
+            && self.protected.contains(&c)
+        {
+            return Err(Error::Output {
+                path: fin,
+                source: std::io::Error::other("refusing to overwrite an input file; choose another --out folder"),
+            });
         }
         let tmp = self.dir.join(format!(".{name}.partial-{}", std::process::id()));
         let res = File::create(&tmp).and_then(|file| {

@@ -93,10 +93,10 @@ impl PathLoss {
                 }
             }
         }
-        if let Law::PowerLaw { loss_at_1m_db, .. } = law {
-            if !(loss_at_1m_db.is_finite() && (0.0..=200.0).contains(&loss_at_1m_db)) {
-                bad("loss_at_1m_db", loss_at_1m_db, "[0, 200] dB");
-            }
+        if let Law::PowerLaw { loss_at_1m_db, .. } = law
+            && !(loss_at_1m_db.is_finite() && (0.0..=200.0).contains(&loss_at_1m_db))
+        {
+            bad("loss_at_1m_db", loss_at_1m_db, "[0, 200] dB");
         }
         if probs.is_empty() {
             Ok(PathLoss { law, frequency_ghz, absorption_db_per_km, min_distance_m })

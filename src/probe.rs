@@ -90,7 +90,8 @@ pub fn probe(sc: &Scenario, lat: f64, lon: f64) -> Probe {
         })
         .collect();
     let total_mw: f64 = base.iter().map(|b| sc.nodes[b.0].activity * dbm_to_mw(p0(b) + g_omni)).sum();
-    let interference_mw: f64 = contributions.iter().filter(|c| c.index != server).map(|c| c.activity * dbm_to_mw(c.power_dbm)).sum();
+    let interference_mw: f64 =
+        contributions.iter().filter(|c| c.index != server).map(|c| c.activity * dbm_to_mw(c.power_dbm)).sum();
     let signal_mw = dbm_to_mw(contributions[server].power_dbm);
     let noise_dbm = sc.noise_dbm();
     let sinr_db = mw_to_dbm(signal_mw / (interference_mw + dbm_to_mw(noise_dbm)));
@@ -118,7 +119,14 @@ impl Probe {
         for c in &self.contributions {
             s += &format!(
                 "{:<14} {:>10.1} {:>8.1} {:>8.2} {:>8.2} {:>9.2} {:>10.2} {:>6.2}\n",
-                c.id, c.distance_m, c.bearing_deg, c.tx_gain_dbi, c.rx_gain_dbi, c.path_loss_db, c.power_dbm, c.activity
+                c.id,
+                c.distance_m,
+                c.bearing_deg,
+                c.tx_gain_dbi,
+                c.rx_gain_dbi,
+                c.path_loss_db,
+                c.power_dbm,
+                c.activity
             );
         }
         s += &format!("total         {:>10.2} dBm\n", self.total_dbm);

@@ -96,7 +96,13 @@ pub fn render(spec: &MapSpec) -> Result<Rendered, String> {
     register_font();
     let g = spec.grid;
     let side = g.cols().max(g.rows()) as f64;
-    let scale = if side < 900.0 { (900.0 / side).ceil().max(1.0) } else if side > 2400.0 { 2400.0 / side } else { 1.0 };
+    let scale = if side < 900.0 {
+        (900.0 / side).ceil().max(1.0)
+    } else if side > 2400.0 {
+        2400.0 / side
+    } else {
+        1.0
+    };
     let mw = ((g.cols() as f64 * scale).round() as u32).max(1);
     let mh = ((g.rows() as f64 * scale).round() as u32).max(1);
     let (w, h) = (mw + PANEL_W, mh.max(460));
@@ -119,7 +125,10 @@ pub fn render(spec: &MapSpec) -> Result<Rendered, String> {
     }
     let b = g.bbox();
     let to_px = |lon: f64, lat: f64| -> (i32, i32) {
-        (((lon - b.west) / (b.east - b.west) * mw as f64) as i32, ((b.north - lat) / (b.north - b.south) * mh as f64) as i32)
+        (
+            ((lon - b.west) / (b.east - b.west) * mw as f64) as i32,
+            ((b.north - lat) / (b.north - b.south) * mh as f64) as i32,
+        )
     };
     {
         let root = BitMapBackend::with_buffer(&mut buf, (w, h)).into_drawing_area();
@@ -128,8 +137,13 @@ pub fn render(spec: &MapSpec) -> Result<Rendered, String> {
         // Planned links.
         for &(a, bb) in spec.links {
             let (p, q) = (&spec.markers[a], &spec.markers[bb]);
-            root.draw(&PathElement::new(vec![to_px(p.lon, p.lat), to_px(q.lon, q.lat)], RGBColor(250, 250, 250).stroke_width(3))).map_err(e)?;
-            root.draw(&PathElement::new(vec![to_px(p.lon, p.lat), to_px(q.lon, q.lat)], ink.stroke_width(1))).map_err(e)?;
+            root.draw(&PathElement::new(
+                vec![to_px(p.lon, p.lat), to_px(q.lon, q.lat)],
+                RGBColor(250, 250, 250).stroke_width(3),
+            ))
+            .map_err(e)?;
+            root.draw(&PathElement::new(vec![to_px(p.lon, p.lat), to_px(q.lon, q.lat)], ink.stroke_width(1)))
+                .map_err(e)?;
         }
         // Beam wedges and markers.
         let rad = ((mw.min(mh) as f64) * 0.06).clamp(14.0, 48.0);
@@ -141,7 +155,8 @@ pub fn render(spec: &MapSpec) -> Result<Rendered, String> {
                 let mut pts = vec![(x, y)];
                 let steps = 12;
                 for k in 0..=steps {
-                    let a = (m.azimuth_deg - m.beamwidth_deg / 2.0 + m.beamwidth_deg * k as f64 / steps as f64).to_radians();
+                    let a = (m.azimuth_deg - m.beamwidth_deg / 2.0 + m.beamwidth_deg * k as f64 / steps as f64)
+                        .to_radians();
                     pts.push((x + (rad * a.sin()) as i32, y - (rad * a.cos()) as i32));
                 }
                 root.draw(&Polygon::new(pts.clone(), RGBAColor(255, 255, 255, 0.35).filled())).map_err(e)?;
@@ -153,23 +168,35 @@ pub fn render(spec: &MapSpec) -> Result<Rendered, String> {
         }
         // North arrow (top-left): the grid is north-up.
         let (ax, ay) = (26, 18);
-        root.draw(&Rectangle::new([(ax - 16, ay - 8), (ax + 16, ay + 52)], RGBAColor(255, 255, 255, 0.8).filled())).map_err(e)?;
-        root.draw(&Polygon::new(vec![(ax, ay), (ax - 9, ay + 26), (ax, ay + 20), (ax + 9, ay + 26)], ink.filled())).map_err(e)?;
+        root.draw(&Rectangle::new([(ax - 16, ay - 8), (ax + 16, ay + 52)], RGBAColor(255, 255, 255, 0.8).filled()))
+            .map_err(e)?;
+        root.draw(&Polygon::new(vec![(ax, ay), (ax - 9, ay + 26), (ax, ay + 20), (ax + 9, ay + 26)], ink.filled()))
+            .map_err(e)?;
         root.draw(&Text::new("N", (ax - 5, ay + 28), (FONT, 16).into_font().color(&ink))).map_err(e)?;
         // Scale bar (bottom-left).
         let width_m = g.cols() as f64 * g.cell_m();
         let len_m = nice_length_m(width_m);
         let len_px = (len_m / width_m * mw as f64).round() as i32;
         let (sx, sy) = (14, mh as i32 - 22);
-        root.draw(&Rectangle::new([(sx - 6, sy - 22), (sx + len_px + 8, sy + 12)], RGBAColor(255, 255, 255, 0.8).filled())).map_err(e)?;
+        root.draw(&Rectangle::new(
+            [(sx - 6, sy - 22), (sx + len_px + 8, sy + 12)],
+            RGBAColor(255, 255, 255, 0.8).filled(),
+        ))
+        .map_err(e)?;
         root.draw(&Rectangle::new([(sx, sy), (sx + len_px, sy + 6)], ink.filled())).map_err(e)?;
-        root.draw(&Rectangle::new([(sx + len_px / 2, sy), (sx + len_px, sy + 6)], RGBColor(255, 255, 255).filled())).map_err(e)?;
+        root.draw(&Rectangle::new([(sx + len_px / 2, sy), (sx + len_px, sy + 6)], RGBColor(255, 255, 255).filled()))
+            .map_err(e)?;
         root.draw(&Rectangle::new([(sx, sy), (sx + len_px, sy + 6)], ink.stroke_width(1))).map_err(e)?;
         let label = if len_m >= 1000.0 { format!("{} km", len_m / 1000.0) } else { format!("{len_m} m") };
         root.draw(&Text::new(label, (sx, sy - 19), (FONT, 14).into_font().color(&ink))).map_err(e)?;
         // Colour bar (right panel).
         let px0 = mw as i32 + 24;
-        root.draw(&Text::new(spec.title.to_string(), (px0, 12), (FONT, 17).into_font().style(FontStyle::Bold).color(&ink))).map_err(e)?;
+        root.draw(&Text::new(
+            spec.title.to_string(),
+            (px0, 12),
+            (FONT, 17).into_font().style(FontStyle::Bold).color(&ink),
+        ))
+        .map_err(e)?;
         root.draw(&Text::new(format!("[{}]", spec.unit), (px0, 34), (FONT, 14).into_font().color(&ink))).map_err(e)?;
         let (top, bot) = (64, h as i32 - 40);
         let bar_w = 22;
@@ -184,8 +211,10 @@ pub fn render(spec: &MapSpec) -> Result<Rendered, String> {
         let mut v = (lo / step).ceil() * step;
         while v <= hi + 1e-3 {
             let y = bot - ((v - lo) / span * (bot - top) as f32).round() as i32;
-            root.draw(&PathElement::new(vec![(px0 + bar_w, y), (px0 + bar_w + 6, y)], ink.stroke_width(1))).map_err(e)?;
-            root.draw(&Text::new(format!("{v:.0}"), (px0 + bar_w + 10, y - 7), (FONT, 13).into_font().color(&ink))).map_err(e)?;
+            root.draw(&PathElement::new(vec![(px0 + bar_w, y), (px0 + bar_w + 6, y)], ink.stroke_width(1)))
+                .map_err(e)?;
+            root.draw(&Text::new(format!("{v:.0}"), (px0 + bar_w + 10, y - 7), (FONT, 13).into_font().color(&ink)))
+                .map_err(e)?;
             v += step;
         }
         root.draw(&Text::new("grey: no data", (px0, h as i32 - 26), (FONT, 12).into_font().color(&ink))).map_err(e)?;

@@ -65,9 +65,15 @@ pub fn markers_and_links(sc: &Scenario) -> (Vec<Marker>, Vec<(usize, usize)>) {
     let markers = sc
         .nodes
         .iter()
-        .map(|n| Marker { lon: n.lon, lat: n.lat, azimuth_deg: n.azimuth_deg, beamwidth_deg: n.pattern.beamwidth_deg() })
+        .map(|n| Marker {
+            lon: n.lon,
+            lat: n.lat,
+            azimuth_deg: n.azimuth_deg,
+            beamwidth_deg: n.pattern.beamwidth_deg(),
+        })
         .collect();
-    let index: std::collections::HashMap<&str, usize> = sc.nodes.iter().enumerate().map(|(i, n)| (n.id.as_str(), i)).collect();
+    let index: std::collections::HashMap<&str, usize> =
+        sc.nodes.iter().enumerate().map(|(i, n)| (n.id.as_str(), i)).collect();
     let mut links: Vec<(usize, usize)> = sc
         .nodes
         .iter()
@@ -91,7 +97,9 @@ pub fn run_map(sc: &Scenario, opts: &MapOptions) -> Result<MapResult, Error> {
     let grid = &sc.grid;
     let (markers, links) = markers_and_links(sc);
     let mut files = Vec::new();
-    let tif = |st: &mut Staging, name: &str, data: &[f32]| st.write_with(name, |w| write_geotiff(w, grid, data).map_err(std::io::Error::other));
+    let tif = |st: &mut Staging, name: &str, data: &[f32]| {
+        st.write_with(name, |w| write_geotiff(w, grid, data).map_err(std::io::Error::other))
+    };
     let png = |st: &mut Staging, name: &str, title: &str, unit: &str, data: &[f32]| -> Result<(), Error> {
         let r = render(&MapSpec { grid, data, title, unit, markers: &markers, links: &links })
             .map_err(|e| Error::Output { path: st.dir().join(name), source: std::io::Error::other(e) })?;
@@ -117,7 +125,9 @@ pub fn run_map(sc: &Scenario, opts: &MapOptions) -> Result<MapResult, Error> {
                 let pr = probe(sc, lat, lon);
                 let server_idx = sc.nodes.iter().position(|n| n.id == pr.server);
                 let mut contrib: Vec<_> = pr.contributions.iter().filter(|c| Some(c.index) != server_idx).collect();
-                contrib.sort_by(|a, b| (b.power_dbm + 10.0 * b.activity.log10()).total_cmp(&(a.power_dbm + 10.0 * a.activity.log10())));
+                contrib.sort_by(|a, b| {
+                    (b.power_dbm + 10.0 * b.activity.log10()).total_cmp(&(a.power_dbm + 10.0 * a.activity.log10()))
+                });
                 let dominant: Vec<String> = contrib.iter().take(3).map(|c| c.id.clone()).collect();
                 let mut p = serde_json::Map::new();
                 p.insert("kind".into(), "interference".into());
@@ -155,7 +165,12 @@ pub fn run_map(sc: &Scenario, opts: &MapOptions) -> Result<MapResult, Error> {
     let b = grid.bbox();
     let sinr_hist = layers.sinr.as_deref().map(Histogram::of);
     let mut names = vec![];
-    for (on, n) in [(opts.layers.total, "total"), (opts.layers.interference, "interference"), (opts.layers.sinr, "sinr"), (opts.layers.server, "server")] {
+    for (on, n) in [
+        (opts.layers.total, "total"),
+        (opts.layers.interference, "interference"),
+        (opts.layers.sinr, "sinr"),
+        (opts.layers.server, "server"),
+    ] {
         if on {
             names.push(n.to_string());
         }
@@ -176,7 +191,10 @@ pub fn run_map(sc: &Scenario, opts: &MapOptions) -> Result<MapResult, Error> {
         interference_dbm: layers.interference.as_deref().map(|t| Spread::of(&Histogram::of(t), true)),
         sinr_db: sinr_hist.as_ref().map(|h| Spread::of(h, false)),
         sinr_threshold_db: sc.thresholds.sinr_db,
-        sinr_ok_fraction: sinr_hist.as_ref().and_then(|h| h.fraction_at_least(sc.thresholds.sinr_db)).map(|f| (f * 1e6).round() / 1e6),
+        sinr_ok_fraction: sinr_hist
+            .as_ref()
+            .and_then(|h| h.fraction_at_least(sc.thresholds.sinr_db))
+            .map(|f| (f * 1e6).round() / 1e6),
         hotspots,
         hotspot_i_over_n_db: sc.thresholds.hotspot_i_over_n_db,
         cutoff_m: opts.cutoff_m,
@@ -185,7 +203,8 @@ pub fn run_map(sc: &Scenario, opts: &MapOptions) -> Result<MapResult, Error> {
         elapsed_s: (elapsed_s * 1000.0).round() / 1000.0,
         files: files.iter().map(|s| s.to_string()).collect(),
     };
-    let json = serde_json::to_string_pretty(&summary).map_err(|e| Error::Output { path: opts.out.join("summary.json"), source: e.into() })?;
+    let json = serde_json::to_string_pretty(&summary)
+        .map_err(|e| Error::Output { path: opts.out.join("summary.json"), source: e.into() })?;
     st.write("summary.json", json.as_bytes())?;
     let written = st.commit()?;
     Ok(MapResult { summary, layers, files: written })

@@ -106,7 +106,10 @@ impl AntennaDefaults {
                 match (bw, g, s) {
                     (Some(bw), Some(g), Some(s)) => {
                         if s > g {
-                            bad("sidelobe_dbi", format!("value {s} is above the main-lobe gain {g} dBi; it must not exceed it"));
+                            bad(
+                                "sidelobe_dbi",
+                                format!("value {s} is above the main-lobe gain {g} dBi; it must not exceed it"),
+                            );
                             None
                         } else if k == "sector" {
                             Some(Pattern::Sector { beamwidth_deg: bw, gain_dbi: g, sidelobe_dbi: s })
@@ -277,7 +280,12 @@ impl Scenario {
         let mut probs = Problems::default();
         let mut bad = |table: &str, field: &str, v: f64, r: Range| {
             if !r.contains(v) {
-                probs.push(Problem::new(&file, Some(format!("[{table}]")), field, format!("value {v} is outside the allowed range {r}")));
+                probs.push(Problem::new(
+                    &file,
+                    Some(format!("[{table}]")),
+                    field,
+                    format!("value {v} is outside the allowed range {r}"),
+                ));
             }
         };
         let r = &raw.radio;
@@ -321,47 +329,93 @@ impl Scenario {
                 (Some(Pattern::Sector { beamwidth_deg: bw, gain_dbi: rx_gain, sidelobe_dbi: sl }), true)
             }
             other => {
-                probs.push(Problem::new(&file, Some("[receiver]".into()), "antenna", format!("value `{other}` is not one of `omni`, `aimed`")));
+                probs.push(Problem::new(
+                    &file,
+                    Some("[receiver]".into()),
+                    "antenna",
+                    format!("value `{other}` is not one of `omni`, `aimed`"),
+                ));
                 (None, false)
             }
         };
         if raw.name.trim().is_empty() || !raw.name.chars().all(|c| c.is_ascii_alphanumeric() || "-_. ".contains(c)) {
-            probs.push(Problem::new(&file, None, "name", format!("value `{}` must be non-empty and use only letters, digits, space, '-', '_' or '.'", raw.name)));
+            probs.push(Problem::new(
+                &file,
+                None,
+                "name",
+                format!("value `{}` must be non-empty and use only letters, digits, space, '-', '_' or '.'", raw.name),
+            ));
         }
         let p = &raw.propagation;
         let law = match p.model.as_str() {
             "free-space" => Some(Law::FreeSpace),
             "close-in" => Some(Law::CloseIn { exponent: p.exponent.unwrap_or(f64::NAN) }),
-            "power-law" => Some(Law::PowerLaw { exponent: p.exponent.unwrap_or(f64::NAN), loss_at_1m_db: p.loss_at_1m_db.unwrap_or(f64::NAN) }),
+            "power-law" => Some(Law::PowerLaw {
+                exponent: p.exponent.unwrap_or(f64::NAN),
+                loss_at_1m_db: p.loss_at_1m_db.unwrap_or(f64::NAN),
+            }),
             other => {
-                probs.push(Problem::new(&file, Some("[propagation]".into()), "model", format!("value `{other}` is not one of `free-space`, `close-in`, `power-law`")));
+                probs.push(Problem::new(
+                    &file,
+                    Some("[propagation]".into()),
+                    "model",
+                    format!("value `{other}` is not one of `free-space`, `close-in`, `power-law`"),
+                ));
                 None
             }
         };
         if p.model == "free-space" && p.exponent.is_some_and(|n| n != 2.0) {
-            probs.push(Problem::new(&file, Some("[propagation]".into()), "exponent", "free-space has exponent 2; use `close-in` for another exponent"));
+            probs.push(Problem::new(
+                &file,
+                Some("[propagation]".into()),
+                "exponent",
+                "free-space has exponent 2; use `close-in` for another exponent",
+            ));
         }
         if p.model != "power-law" && p.loss_at_1m_db.is_some() {
-            probs.push(Problem::new(&file, Some("[propagation]".into()), "loss_at_1m_db", "only used by `power-law`; the other models derive it from the frequency"));
+            probs.push(Problem::new(
+                &file,
+                Some("[propagation]".into()),
+                "loss_at_1m_db",
+                "only used by `power-law`; the other models derive it from the frequency",
+            ));
         }
         let pathloss = law.and_then(|law| {
-            PathLoss::new(law, r.frequency_ghz, p.absorption_db_per_km.unwrap_or(0.0), p.min_distance_m.unwrap_or(1.0), &file)
-                .map_err(|e| probs.0.extend(e))
-                .ok()
+            PathLoss::new(
+                law,
+                r.frequency_ghz,
+                p.absorption_db_per_km.unwrap_or(0.0),
+                p.min_distance_m.unwrap_or(1.0),
+                &file,
+            )
+            .map_err(|e| probs.0.extend(e))
+            .ok()
         });
 
         let dir = path.parent().unwrap_or(Path::new("."));
         let nodes_path = dir.join(&raw.nodes);
         let nodes = match std::fs::read_to_string(&nodes_path) {
-            Ok(t) => parse_nodes(&t, &nodes_path.display().to_string(), &raw.antenna).map_err(|e| probs.0.extend(e)).ok(),
+            Ok(t) => {
+                parse_nodes(&t, &nodes_path.display().to_string(), &raw.antenna).map_err(|e| probs.0.extend(e)).ok()
+            }
             Err(e) => {
-                probs.push(Problem::new(&file, None, "nodes", format!("cannot read node file {}: {e}", nodes_path.display())));
+                probs.push(Problem::new(
+                    &file,
+                    None,
+                    "nodes",
+                    format!("cannot read node file {}: {e}", nodes_path.display()),
+                ));
                 None
             }
         };
         let bbox = match (raw.grid.bbox, raw.grid.margin_m, &nodes) {
             (Some(_), Some(_), _) => {
-                probs.push(Problem::new(&file, Some("[grid]".into()), "bbox", "give either bbox or margin_m, not both"));
+                probs.push(Problem::new(
+                    &file,
+                    Some("[grid]".into()),
+                    "bbox",
+                    "give either bbox or margin_m, not both",
+                ));
                 None
             }
             (Some([w, s, e, n]), None, _) => {
@@ -374,7 +428,9 @@ impl Scenario {
                     }
                 }
             }
-            (None, margin, Some(nodes)) => Some(BBox::around(nodes.iter().map(|n| (n.lon, n.lat)), margin.unwrap_or(100.0))),
+            (None, margin, Some(nodes)) => {
+                Some(BBox::around(nodes.iter().map(|n| (n.lon, n.lat)), margin.unwrap_or(100.0)))
+            }
             (None, _, None) => None,
         };
         probs.into_result()?;
@@ -382,14 +438,19 @@ impl Scenario {
             (Some(a), Some(b), Some(c), Some(d)) => (a, b, c, d),
             _ => unreachable!("every None above recorded a problem"),
         };
-        let grid = Grid::new(bbox, raw.grid.cell_m).map_err(|m| Error::input(Problem::new(&file, Some("[grid]".into()), "cell_m", m)))?;
+        let grid = Grid::new(bbox, raw.grid.cell_m)
+            .map_err(|m| Error::input(Problem::new(&file, Some("[grid]".into()), "cell_m", m)))?;
         let (clon, clat) = grid.bbox().centre();
         Ok(Scenario {
             name: raw.name,
             path: path.to_path_buf(),
             nodes_path,
             nodes,
-            radio: Radio { frequency_ghz: r.frequency_ghz, bandwidth_mhz: r.bandwidth_mhz, noise_figure_db: r.noise_figure_db },
+            radio: Radio {
+                frequency_ghz: r.frequency_ghz,
+                bandwidth_mhz: r.bandwidth_mhz,
+                noise_figure_db: r.noise_figure_db,
+            },
             pathloss,
             receiver: Receiver { height_m: rx_height, pattern: receiver_pattern, aimed },
             grid,

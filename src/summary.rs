@@ -20,7 +20,13 @@ pub struct Spread {
 impl Spread {
     /// p10/p50/p90 (and max when `with_max`) of a histogram.
     pub fn of(h: &Histogram, with_max: bool) -> Spread {
-        Spread { p10: h.quantile(0.1), p50: h.quantile(0.5), p90: h.quantile(0.9), max: if with_max { h.max().map(|m| (m * 100.0).round() / 100.0) } else { None } }
+        let r = |x: Option<f64>| x.map(|v| (v * 100.0).round() / 100.0);
+        Spread {
+            p10: r(h.quantile(0.1)),
+            p50: r(h.quantile(0.5)),
+            p90: r(h.quantile(0.9)),
+            max: if with_max { h.max().map(|m| (m * 100.0).round() / 100.0) } else { None },
+        }
     }
 }
 

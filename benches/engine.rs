@@ -1,0 +1,102 @@
+//! Per-cell engine throughput: node-cell pair evaluations per second.
+//!
+//! `cargo bench --bench engine` (add `-- --quick` for a short run). Seeded synthetic layout:
+//! sector antennas (30°, 20/−5 dBi) with random boresights, uniform over a 4 km square,
+//! close-in model with exponent 2 (free-space law), no cutoff: every node at every cell.
+
+use lobemap::antenna::Pattern;
+use lobemap::engine::{Engine, LayerSet, Options};
+use lobemap::geodesy::LocalFrame;
+use lobemap::grid::{BBox, Grid};
+use lobemap::nodes::Node;
+use lobemap::pathloss::{Law, PathLoss};
+use lobemap::scenario::{Radio, Receiver, Scenario, Thresholds};
+use rand::{RngExt, SeedableRng};
+use std::time::Instant;
+
+fn layout(nodes: usize, cells_side: usize, exponent: f64, aimed: bool) -> Scenario {
+    let frame = LocalFrame::new(45.0, 7.0);
+    let half = 2000.0;
+    let mut rng = rand_pcg::Pcg64::seed_from_u64(1);
+    let pattern = Pattern::Sector { beamwidth_deg: 30.0, gain_dbi: 20.0, sidelobe_dbi: -5.0 };
+    let nodes = (0..nodes)
+        .map(|k| {
+            let (lon, lat) = frame.to_geo(rng.random_range(-half..half), rng.random_range(-half..half));
+            Node {
+                id: k.to_string(),
+                lon,
+                lat,
+                azimuth_deg: rng.random_range(0.0..360.0),
+                pattern,
+                power_dbm: 20.0,
+                height_m: 6.0,
+                activity: 1.0,
+                peer: None,
+                name: None,
+            }
+        })
+        .collect();
+    let (w, s) = frame.to_geo(-half, -half);
+    let (e, n) = frame.to_geo(half, half);
+    let grid = Grid::new(BBox { west: w, south: s, east: e, north: n }, 2.0 * half / cells_side as f64).unwrap();
+    let law = if exponent == 2.0 { Law::FreeSpace } else { Law::CloseIn { exponent } };
+    let rx = if aimed {
+        Pattern::Sector { beamwidth_deg: 30.0, gain_dbi: 15.0, sidelobe_dbi: -5.0 }
+    } else {
+        Pattern::Omni { gain_dbi: 0.0 }
+    };
+    Scenario {
+        name: "bench".into(),
+        path: "bench.toml".into(),
+        nodes_path: "bench.geojson".into(),
+        nodes,
+        radio: Radio { frequency_ghz: 28.0, bandwidth_mhz: 400.0, noise_figure_db: 7.0 },
+        pathloss: PathLoss::new(law, 28.0, 0.0, 1.0, "bench").unwrap(),
+        receiver: Receiver { height_m: 1.5, pattern: rx, aimed },
+        grid,
+        frame,
+        thresholds: Thresholds { sinr_db: 5.0, hotspot_i_over_n_db: 0.0 },
+    }
+}
+
+fn measure(label: &str, sc: &Scenario, layers: LayerSet, reps: usize) {
+    let eng = Engine::new(sc);
+    let opts = Options { layers, cutoff_m: None, progress: false };
+    let _ = eng.run(&opts); // warm-up
+    let t0 = Instant::now();
+    let mut pairs = 0;
+    for _ in 0..reps {
+        pairs += eng.run(&opts).pair_evaluations;
+    }
+    let dt = t0.elapsed().as_secs_f64();
+    println!(
+        "{label:<44} {:>6} nodes x {:>8} cells: {:>8.3} s/run, {:>8.3e} pair evaluations/s",
+        sc.nodes.len(),
+        sc.grid.cells(),
+        dt / reps as f64,
+        pairs as f64 / dt
+    );
+}
+
+fn main() {
+    let quick = std::env::args().any(|a| a == "--quick");
+    let reps = if quick { 1 } else { 5 };
+    let threads = rayon::current_num_threads();
+    println!("lobemap engine benchmark, {threads} threads");
+    let total = LayerSet { total: true, interference: false, sinr: false, server: false };
+    let sinr = LayerSet { total: false, interference: false, sinr: true, server: false };
+    let sc = layout(1000, 1000, 2.0, false);
+    measure("total, sector, exponent 2", &sc, total, reps);
+    measure("sinr (server + interference), omni rx", &sc, sinr, reps);
+    let sc_aim = layout(1000, 1000, 2.0, true);
+    measure("sinr, aimed rx (two passes)", &sc_aim, sinr, reps);
+    let sc3 = layout(1000, 1000, 3.0, false);
+    measure("total, sector, exponent 3", &sc3, total, reps);
+    let sc35 = layout(1000, 500, 3.5, false);
+    measure("total, sector, exponent 3.5 (powf)", &sc35, total, reps);
+    let cells = sc.grid.cells() as f64;
+    println!(
+        "memory estimate for 4 layers: {:.1} bytes per cell (layers at 4 bytes each plus row buffers)",
+        sc.grid.estimate_bytes(4, threads) as f64 / cells
+    );
+}

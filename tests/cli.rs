@@ -1,0 +1,293 @@
+//! End-to-end tests of the `lobemap` binary: outputs, determinism and bad input.
+
+use std::path::{Path, PathBuf};
+use std::process::{Command, Output};
+
+fn bin() -> Command {
+    Command::new(env!("CARGO_BIN_EXE_lobemap"))
+}
+
+fn run(args: &[&str]) -> Output {
+    bin().args(args).output().unwrap()
+}
+
+const GOOD_TOML: &str = r#"name = "tiny"
+nodes = "nodes.geojson"
+[radio]
+frequency_ghz = 28
+bandwidth_mhz = 100
+noise_figure_db = 7
+[propagation]
+model = "close-in"
+exponent = 2.5
+[antenna]
+pattern = "sector"
+beamwidth_deg = 30
+gain_dbi = 20
+sidelobe_dbi = -5
+power_dbm = 20
+[grid]
+cell_m = 10
+margin_m = 200
+"#;
+
+const GOOD_NODES: &str = r#"{"type":"FeatureCollection","features":[
+{"type":"Feature","geometry":{"type":"Point","coordinates":[8.000,50.000]},"properties":{"id":"A","azimuth_deg":90,"peer":"B"}},
+{"type":"Feature","geometry":{"type":"Point","coordinates":[8.010,50.000]},"properties":{"id":"B","azimuth_deg":270,"peer":"A"}},
+{"type":"Feature","geometry":{"type":"Point","coordinates":[8.005,50.004]},"properties":{"id":7,"pattern":"omni","gain_dbi":6}}
+]}"#;
+
+/// A scenario folder with the given texts.
+fn site(toml: &str, nodes: &str) -> (tempfile::TempDir, PathBuf) {
+    let d = tempfile::tempdir().unwrap();
+    std::fs::write(d.path().join("scenario.toml"), toml).unwrap();
+    std::fs::write(d.path().join("nodes.geojson"), nodes).unwrap();
+    let p = d.path().join("scenario.toml");
+    (d, p)
+}
+
+fn stderr(o: &Output) -> String {
+    String::from_utf8_lossy(&o.stderr).into_owned()
+}
+
+#[test]
+fn good_scenario_maps_and_checks() {
+    let (d, p) = site(GOOD_TOML, GOOD_NODES);
+    let out = d.path().join("out");
+    let o = run(&["check", p.to_str().unwrap()]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    let o = run(&["map", p.to_str().unwrap(), "--out", out.to_str().unwrap(), "--quiet"]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    for f in [
+        "total.tif",
+        "interference.tif",
+        "sinr.tif",
+        "server.tif",
+        "total.png",
+        "total.pgw",
+        "sinr.png",
+        "interference.png",
+        "hotspots.geojson",
+        "layout.geojson",
+        "summary.json",
+    ] {
+        assert!(out.join(f).is_file(), "{f} missing");
+    }
+    // No temporary files left behind.
+    assert!(std::fs::read_dir(&out).unwrap().all(|e| !e.unwrap().file_name().to_string_lossy().starts_with('.')));
+    let layout: serde_json::Value =
+        serde_json::from_str(&std::fs::read_to_string(out.join("layout.geojson")).unwrap()).unwrap();
+    let f2 = &layout["features"][2]["properties"];
+    assert_eq!(f2["id"], "7");
+    assert_eq!(f2["pattern"], "omni");
+    assert_eq!(f2["power_dbm"], 20.0);
+    assert_eq!(f2["height_m"], 5.0);
+}
+
+/// GeoTIFF read back with the tiff crate: size, float samples and the georeferencing tags
+/// (GeoTIFF 1.0 §2.6: ModelPixelScale, ModelTiepoint, GeoKeyDirectory with 4326).
+#[test]
+fn geotiff_reads_back_with_georeferencing() {
+    use tiff::decoder::{Decoder, DecodingResult};
+    use tiff::tags::Tag;
+    let (d, p) = site(GOOD_TOML, GOOD_NODES);
+    let out = d.path().join("out");
+    assert!(
+        run(&["map", p.to_str().unwrap(), "--out", out.to_str().unwrap(), "--quiet", "--layers", "total,sinr"])
+            .status
+            .success()
+    );
+    assert!(!out.join("interference.tif").exists());
+    let summary: serde_json::Value =
+        serde_json::from_str(&std::fs::read_to_string(out.join("summary.json")).unwrap()).unwrap();
+    let mut dec = Decoder::new(std::fs::File::open(out.join("total.tif")).unwrap()).unwrap();
+    let (w, h) = dec.dimensions().unwrap();
+    assert_eq!(w as u64, summary["cols"].as_u64().unwrap());
+    assert_eq!(h as u64, summary["rows"].as_u64().unwrap());
+    let scale = dec.get_tag_f64_vec(Tag::ModelPixelScaleTag).unwrap();
+    let tie = dec.get_tag_f64_vec(Tag::ModelTiepointTag).unwrap();
+    let keys = dec.get_tag_u16_vec(Tag::GeoKeyDirectoryTag).unwrap();
+    let bbox: Vec<f64> = summary["bbox"].as_array().unwrap().iter().map(|v| v.as_f64().unwrap()).collect();
+    assert!((tie[3] - bbox[0]).abs() < 1e-12 && (tie[4] - bbox[3]).abs() < 1e-12);
+    assert!((bbox[2] - (bbox[0] + w as f64 * scale[0])).abs() < 1e-9);
+    assert!((bbox[1] - (bbox[3] - h as f64 * scale[1])).abs() < 1e-9);
+    assert!(keys.windows(4).any(|k| k == [2048, 0, 1, 4326]));
+    assert!(keys.windows(4).any(|k| k == [1024, 0, 1, 2]));
+    let nodata = dec.get_tag_ascii_string(Tag::GdalNodata).unwrap();
+    assert_eq!(nodata.trim_end_matches('\0'), "-9999");
+    match dec.read_image().unwrap() {
+        DecodingResult::F32(v) => {
+            assert_eq!(v.len(), (w * h) as usize);
+            assert!(v.iter().all(|x| x.is_finite()));
+            let max = v.iter().cloned().fold(f32::MIN, f32::max);
+            assert!(max > -60.0 && max < 20.0, "{max}");
+        }
+        _ => panic!("expected float32 samples"),
+    }
+}
+
+#[test]
+fn same_bytes_for_any_thread_count() {
+    let (d, p) = site(GOOD_TOML, GOOD_NODES);
+    let (a, b) = (d.path().join("a"), d.path().join("b"));
+    assert!(
+        run(&["map", p.to_str().unwrap(), "--out", a.to_str().unwrap(), "--quiet", "--threads", "1"]).status.success()
+    );
+    assert!(
+        run(&["map", p.to_str().unwrap(), "--out", b.to_str().unwrap(), "--quiet", "--threads", "2"]).status.success()
+    );
+    for f in
+        ["total.tif", "interference.tif", "sinr.tif", "server.tif", "sinr.png", "hotspots.geojson", "layout.geojson"]
+    {
+        assert_eq!(std::fs::read(a.join(f)).unwrap(), std::fs::read(b.join(f)).unwrap(), "{f} differs");
+    }
+}
+
+#[test]
+fn probe_json_has_the_documented_keys() {
+    let (_d, p) = site(GOOD_TOML, GOOD_NODES);
+    let o = run(&["probe", p.to_str().unwrap(), "--at", "50.001,8.004", "--json"]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    let v: serde_json::Value = serde_json::from_slice(&o.stdout).unwrap();
+    for k in ["total_dbm", "interference_dbm", "noise_dbm", "sinr_db", "server", "contributions"] {
+        assert!(v.get(k).is_some(), "{k}");
+    }
+    let c = &v["contributions"][0];
+    for k in ["id", "distance_m", "bearing_deg", "tx_gain_dbi", "rx_gain_dbi", "path_loss_db", "power_dbm"] {
+        assert!(c.get(k).is_some(), "{k}");
+    }
+    let o = run(&["probe", p.to_str().unwrap(), "--at", "95,8"]);
+    assert_eq!(o.status.code(), Some(2));
+    assert!(stderr(&o).contains("--at"));
+}
+
+/// Runs `map` on a broken variant and checks: exit code 2, every expected fragment in the
+/// message, and no output folder.
+fn expect_bad(toml: &str, nodes: &str, fragments: &[&str]) {
+    let (d, p) = site(toml, nodes);
+    let out = d.path().join("out");
+    let o = run(&["map", p.to_str().unwrap(), "--out", out.to_str().unwrap(), "--quiet"]);
+    let e = stderr(&o);
+    assert_eq!(o.status.code(), Some(2), "stderr: {e}");
+    for f in fragments {
+        assert!(e.contains(f), "`{f}` not in: {e}");
+    }
+    assert!(!out.exists(), "partial output written for: {e}");
+    // The inputs are untouched.
+    assert_eq!(std::fs::read_to_string(&p).unwrap(), toml);
+    let c = run(&["check", p.to_str().unwrap()]);
+    assert_eq!(c.status.code(), Some(2));
+}
+
+#[test]
+fn bad_toml_syntax() {
+    expect_bad("name = \"x\"\n[radio\n", GOOD_NODES, &["scenario.toml"]);
+}
+
+#[test]
+fn unknown_key_in_scenario() {
+    expect_bad(
+        &GOOD_TOML.replace("cell_m = 10", "cell_m = 10\ncel_m = 5"),
+        GOOD_NODES,
+        &["scenario.toml", "cel_m", "unknown field"],
+    );
+}
+
+#[test]
+fn nan_and_out_of_range_in_scenario_are_listed_together() {
+    let t = GOOD_TOML
+        .replace("gain_dbi = 20", "gain_dbi = nan")
+        .replace("beamwidth_deg = 30", "beamwidth_deg = 400")
+        .replace("noise_figure_db = 7", "noise_figure_db = -3");
+    expect_bad(
+        &t,
+        GOOD_NODES,
+        &["[antenna]", "gain_dbi", "NaN", "beamwidth_deg", "400", "(0, 360]", "noise_figure_db", "[0, 30]"],
+    );
+}
+
+#[test]
+fn malformed_geojson() {
+    expect_bad(GOOD_TOML, "{\"type\": \"FeatureCollection\", \"features\": [", &["nodes.geojson", "not valid GeoJSON"]);
+}
+
+#[test]
+fn non_point_feature() {
+    let n = GOOD_NODES.replace(
+        r#"{"type":"Point","coordinates":[8.010,50.000]}"#,
+        r#"{"type":"LineString","coordinates":[[8.0,50.0],[8.01,50.0]]}"#,
+    );
+    expect_bad(GOOD_TOML, &n, &["nodes.geojson", "feature 1 (id B)", "geometry", "LineString"]);
+}
+
+#[test]
+fn missing_and_duplicate_ids() {
+    let n = GOOD_NODES.replace(r#""id":"B","#, r#""id":"A","#);
+    expect_bad(GOOD_TOML, &n, &["feature 1 (id A)", "duplicate id", "first used by feature 0"]);
+    let n = GOOD_NODES.replace(r#""id":7,"#, "");
+    expect_bad(GOOD_TOML, &n, &["feature 2", "`id`", "missing"]);
+}
+
+#[test]
+fn node_values_out_of_range() {
+    let n = GOOD_NODES
+        .replace(r#""azimuth_deg":90,"#, r#""azimuth_deg":90,"activity":1.5,"beamwidth_deg":0,"#)
+        .replace("[8.010,50.000]", "[200.0,50.000]");
+    expect_bad(
+        GOOD_TOML,
+        &n,
+        &["feature 0 (id A)", "activity", "[0, 1]", "beamwidth_deg", "(0, 360]", "feature 1 (id B)", "longitude 200"],
+    );
+}
+
+#[test]
+fn typo_in_node_property() {
+    let n = GOOD_NODES.replace(r#""azimuth_deg":90"#, r#""azimuth_dg":90"#);
+    expect_bad(GOOD_TOML, &n, &["feature 0 (id A)", "azimuth_dg", "unknown property", "azimuth_deg", "missing"]);
+}
+
+#[test]
+fn peer_that_names_no_node() {
+    let n = GOOD_NODES.replace(r#""peer":"A""#, r#""peer":"Q""#);
+    expect_bad(GOOD_TOML, &n, &["feature 1 (id B)", "peer", "`Q` names no node"]);
+}
+
+#[test]
+fn grid_too_large_for_memory() {
+    let t = GOOD_TOML.replace("cell_m = 10", "cell_m = 0.1").replace("margin_m = 200", "margin_m = 2000");
+    expect_bad(&t, GOOD_NODES, &["[grid]", "cell_m", "MiB", "larger cell_m"]);
+}
+
+#[test]
+fn unwritable_output_folder() {
+    let (d, p) = site(GOOD_TOML, GOOD_NODES);
+    let file = d.path().join("plain-file");
+    std::fs::write(&file, "x").unwrap();
+    let out = file.join("out");
+    let o = run(&["map", p.to_str().unwrap(), "--out", out.to_str().unwrap(), "--quiet"]);
+    assert_eq!(o.status.code(), Some(2));
+    assert!(stderr(&o).contains("cannot write output") && stderr(&o).contains("plain-file"), "{}", stderr(&o));
+}
+
+#[test]
+fn demo_runs_from_the_repository() {
+    let d = tempfile::tempdir().unwrap();
+    let out = d.path().join("demo");
+    let o = bin()
+        .current_dir(Path::new(env!("CARGO_MANIFEST_DIR")))
+        .args(["demo", "--out", out.to_str().unwrap(), "--quiet"])
+        .output()
+        .unwrap();
+    assert!(o.status.success(), "{}", stderr(&o));
+    let s: serde_json::Value =
+        serde_json::from_str(&std::fs::read_to_string(out.join("summary.json")).unwrap()).unwrap();
+    assert_eq!(s["nodes"], 44);
+    assert!(s["hotspots"].as_u64().unwrap() >= 1);
+    let hs: serde_json::Value =
+        serde_json::from_str(&std::fs::read_to_string(out.join("hotspots.geojson")).unwrap()).unwrap();
+    let f = &hs["features"][0];
+    assert_eq!(f["properties"]["kind"], "interference");
+    assert!(f["properties"]["dominant"].as_array().unwrap().len() <= 3);
+    let ring = f["geometry"]["coordinates"][0].as_array().unwrap();
+    assert_eq!(ring.first(), ring.last());
+}

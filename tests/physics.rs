@@ -1,0 +1,197 @@
+//! Checks of the map engine against published formulas and hand calculations.
+
+use geo::{Destination, Geodesic, Point};
+use lobemap::antenna::Pattern;
+use lobemap::engine::{Engine, LayerSet, Options};
+use lobemap::geodesy::LocalFrame;
+use lobemap::grid::{BBox, Grid};
+use lobemap::nodes::Node;
+use lobemap::pathloss::{Law, PathLoss};
+use lobemap::probe::probe;
+use lobemap::scenario::{Radio, Receiver, Scenario, Thresholds};
+use rand::{RngExt, SeedableRng};
+use rand_distr::{Distribution, Poisson};
+use std::path::PathBuf;
+
+fn node(id: &str, lon: f64, lat: f64, az: f64, pattern: Pattern, power_dbm: f64, height_m: f64) -> Node {
+    Node {
+        id: id.into(),
+        lon,
+        lat,
+        azimuth_deg: az,
+        pattern,
+        power_dbm,
+        height_m,
+        activity: 1.0,
+        peer: None,
+        name: None,
+    }
+}
+
+fn scenario(nodes: Vec<Node>, pathloss: PathLoss, bbox: BBox, cell_m: f64, rx_height: f64) -> Scenario {
+    let grid = Grid::new(bbox, cell_m).unwrap();
+    let (lon, lat) = grid.bbox().centre();
+    Scenario {
+        name: "t".into(),
+        path: PathBuf::from("t.toml"),
+        nodes_path: PathBuf::from("t.geojson"),
+        nodes,
+        radio: Radio { frequency_ghz: pathloss.frequency_ghz(), bandwidth_mhz: 100.0, noise_figure_db: 7.0 },
+        pathloss,
+        receiver: Receiver { height_m: rx_height, pattern: Pattern::Omni { gain_dbi: 0.0 }, aimed: false },
+        grid,
+        frame: LocalFrame::new(lat, lon),
+        thresholds: Thresholds { sinr_db: 5.0, hotspot_i_over_n_db: 0.0 },
+    }
+}
+
+/// Hand-worked probe. P at (50°N, 8°E); node A 1000 m due east (geodesic destination, Karney
+/// 2013) pointing back west at P; node B 500 m due north pointing east, so P is 90° off its
+/// boresight. 28 GHz free space (ITU-R P.525 with the exact constant 32.4478):
+///   FSPL(1000 m) = 32.4478 + 20 log10(28000) + 20 log10(1)   = 121.3909 dB
+///   FSPL(500 m)  = 121.3909 − 20 log10(2)                    = 115.3703 dB
+///   A: 20 dBm + 20 dBi (main lobe) + 0 dBi − 121.3909         = −81.3909 dBm
+///   B: 20 dBm − 5 dBi (side lobe) + 0 dBi − 115.3703          = −100.3703 dBm
+///   total = 10 log10(10^−8.13909 + 10^−10.03703)              = −81.3364 dBm
+///   noise = −173.975 + 10 log10(100e6) + 7                    = −86.975 dBm
+///   SINR  = −81.3909 − 10 log10(10^−10.03703 + 10^−8.6975)    = 5.3897 dB
+#[test]
+fn probe_matches_hand_calculation() {
+    let p = Point::new(8.0, 50.0);
+    let a = Geodesic.destination(p, 90.0, 1000.0);
+    let b = Geodesic.destination(p, 0.0, 500.0);
+    let sector = Pattern::Sector { beamwidth_deg: 30.0, gain_dbi: 20.0, sidelobe_dbi: -5.0 };
+    let nodes =
+        vec![node("A", a.x(), a.y(), 270.0, sector, 20.0, 10.0), node("B", b.x(), b.y(), 90.0, sector, 20.0, 10.0)];
+    let pl = PathLoss::new(Law::FreeSpace, 28.0, 0.0, 1.0, "t").unwrap();
+    let sc = scenario(nodes, pl, BBox { west: 7.99, south: 49.99, east: 8.02, north: 50.01 }, 20.0, 10.0);
+    let r = probe(&sc, 50.0, 8.0);
+    // 1e-4 relative distance error (plane vs geodesic) is below 0.001 dB; 0.005 dB tolerance.
+    assert_eq!(r.server, "A");
+    assert!((r.total_dbm + 81.3364).abs() < 0.005, "{}", r.total_dbm);
+    assert!((r.interference_dbm.unwrap() + 100.3703).abs() < 0.005);
+    assert!((r.noise_dbm + 86.975).abs() < 0.001);
+    assert!((r.sinr_db - 5.3897).abs() < 0.005, "{}", r.sinr_db);
+    let ca = r.contributions.iter().find(|c| c.id == "A").unwrap();
+    assert!((ca.distance_m - 1000.0).abs() < 0.1 && (ca.bearing_deg - 90.0).abs() < 0.01);
+    assert_eq!(ca.tx_gain_dbi, 20.0);
+    let cb = r.contributions.iter().find(|c| c.id == "B").unwrap();
+    assert_eq!(cb.tx_gain_dbi, -5.0);
+    assert!((cb.path_loss_db - 115.3703).abs() < 0.005);
+}
+
+/// The engine's float32 kernels against the double-precision probe at cell centres of the
+/// bundled demo (aimed receiver, sector and parabolic patterns, absorption). Tolerance
+/// 0.02 dB: float32 sums of ~50 terms carry about 1e-5 relative error, the parabolic table
+/// under 1e-3 dB. Cells where the two strongest servers are within 0.05 dB are skipped, as
+/// there the choice of server is a tie.
+#[test]
+fn engine_agrees_with_probe_on_demo() {
+    let sc = Scenario::load(std::path::Path::new("sites/harbourlight/scenario.toml")).unwrap();
+    let eng = Engine::new(&sc);
+    let l = eng.run(&Options { layers: LayerSet::ALL, cutoff_m: None, progress: false });
+    let (t, i, s) = (l.total.unwrap(), l.interference.unwrap(), l.sinr.unwrap());
+    let g = &sc.grid;
+    let mut rng = rand_pcg::Pcg64::seed_from_u64(7);
+    let mut checked = 0;
+    for _ in 0..300 {
+        let (r, c) = (rng.random_range(0..g.rows()), rng.random_range(0..g.cols()));
+        let pr = probe(&sc, g.lat_of_row(r), g.lon_of_col(c));
+        let mut tx: Vec<f64> = pr.contributions.iter().map(|c| c.power_dbm - c.rx_gain_dbi).collect();
+        tx.sort_by(|a, b| b.total_cmp(a));
+        if tx[0] - tx[1] < 0.05 {
+            continue;
+        }
+        let k = r * g.cols() + c;
+        assert!((t[k] as f64 - pr.total_dbm).abs() < 0.02, "total at {r},{c}: {} vs {}", t[k], pr.total_dbm);
+        assert!((i[k] as f64 - pr.interference_dbm.unwrap()).abs() < 0.02, "interference at {r},{c}");
+        assert!((s[k] as f64 - pr.sinr_db).abs() < 0.02, "sinr at {r},{c}: {} vs {}", s[k], pr.sinr_db);
+        checked += 1;
+    }
+    assert!(checked > 250);
+}
+
+/// Campbell's theorem (e.g. Haenggi, Stochastic Geometry for Wireless Networks, 2012, Thm 4.1):
+/// for a Poisson field of density λ the mean of Σ g(x_i) is λ ∫ g dA. With g(r) = P E[G]
+/// max(r, d0)^−4 / K, ∫ g dA = 2π P E[G] / (K d0²) (hand integration: π d0² d0^−4 inside,
+/// 2π d0^−2 / 2 outside). The spatial mean M over the C cells is itself a Poisson sum
+/// Σ G_i φ(x_i) with φ(y) = (1/C) Σ_c g0(|c − y|), so Var M = λ E[G²] ∫ φ² ≤ λ E[G²] sup φ ∫ φ
+/// = (E[G²]/E[G]) sup φ · E[M]; sup φ is measured with one node placed at a cell centre and
+/// at a cell corner (the two extremes on a lattice) with a 10 % allowance. Tolerance 4 σ.
+#[test]
+fn campbell_mean_of_total_over_poisson_field() {
+    let lambda = 2e-2; // per m² (20 000 per km²)
+    let radius = 1200.0;
+    let d0 = 20.0;
+    let (gm, gs, bw) = (8.0, -2.0, 120.0);
+    let pattern = Pattern::Sector { beamwidth_deg: bw, gain_dbi: gm, sidelobe_dbi: gs };
+    let q = bw / 360.0;
+    let (gml, gsl) = (10f64.powf(gm / 10.0), 10f64.powf(gs / 10.0));
+    let (eg, eg2) = (q * gml + (1.0 - q) * gsl, q * gml * gml + (1.0 - q) * gsl * gsl);
+    let pl = PathLoss::new(Law::PowerLaw { exponent: 4.0, loss_at_1m_db: 0.0 }, 2.4, 0.0, d0, "t").unwrap();
+    let centre = (10.0, 40.0);
+    let frame = LocalFrame::new(centre.1, centre.0);
+    let half = 500.0;
+    let (w, s) = frame.to_geo(-half, -half);
+    let (e, n) = frame.to_geo(half, half);
+    let bbox = BBox { west: w, south: s, east: e, north: n };
+    let mut rng = rand_pcg::Pcg64::seed_from_u64(2024);
+    let count = Poisson::new(lambda * std::f64::consts::PI * radius * radius).unwrap().sample(&mut rng) as usize;
+    let nodes: Vec<Node> = (0..count)
+        .map(|k| {
+            let r = radius * rng.random::<f64>().sqrt();
+            let th = rng.random::<f64>() * std::f64::consts::TAU;
+            let (lon, lat) = frame.to_geo(r * th.cos(), r * th.sin());
+            node(&k.to_string(), lon, lat, rng.random::<f64>() * 360.0, pattern, 0.0, 2.0)
+        })
+        .collect();
+    let sc = scenario(nodes, pl, bbox, 20.0, 2.0);
+    let only_total = LayerSet { total: true, interference: false, sinr: false, server: false };
+    let tot = Engine::new(&sc).run(&Options { layers: only_total, cutoff_m: None, progress: false }).total.unwrap();
+    let cells = tot.len() as f64;
+    let mean: f64 = tot.iter().map(|v| 10f64.powf(*v as f64 / 10.0)).sum::<f64>() / cells;
+    let expect = lambda * 2.0 * std::f64::consts::PI * eg / (d0 * d0);
+    // sup φ: one omni 0 dBi node at a cell centre, then at a cell corner.
+    let g = &sc.grid;
+    let mut sup_phi: f64 = 0.0;
+    for (lon, lat) in [
+        (g.lon_of_col(g.cols() / 2), g.lat_of_row(g.rows() / 2)),
+        (g.lon_of_col(g.cols() / 2) - g.dlon() / 2.0, g.lat_of_row(g.rows() / 2) + g.dlat() / 2.0),
+    ] {
+        let one = vec![node("x", lon, lat, 0.0, Pattern::Omni { gain_dbi: 0.0 }, 0.0, 2.0)];
+        let sc1 = scenario(one, pl, bbox, 20.0, 2.0);
+        let t1 = Engine::new(&sc1).run(&Options { layers: only_total, cutoff_m: None, progress: false }).total.unwrap();
+        sup_phi = sup_phi.max(t1.iter().map(|v| 10f64.powf(*v as f64 / 10.0)).sum::<f64>() / cells);
+    }
+    let sd = ((eg2 / eg) * 1.1 * sup_phi * expect).sqrt();
+    // The field stops at 1200 m; the integral beyond 493 m (nearest disc edge to a cell) is
+    // at most 2π · 493^−2 / 2 per unit λ P E[G], below 0.1 % of the mean: covered by the 4 σ.
+    assert!((mean - expect).abs() < 4.0 * sd, "mean {mean:e}, Campbell {expect:e}, sd {sd:e}");
+    assert!(sd / expect < 0.05, "tolerance too loose to mean anything: {}", sd / expect);
+}
+
+/// With a distance cutoff, every cell's dropped power stays below the reported bound.
+#[test]
+fn cutoff_bound_holds() {
+    let sc = Scenario::load(std::path::Path::new("sites/harbourlight/scenario.toml")).unwrap();
+    let eng = Engine::new(&sc);
+    let only_total = LayerSet { total: true, interference: false, sinr: false, server: false };
+    let full = eng.run(&Options { layers: only_total, cutoff_m: None, progress: false }).total.unwrap();
+    let cut = eng.run(&Options { layers: only_total, cutoff_m: Some(300.0), progress: false });
+    let bound_db = cut.neglected_db.unwrap();
+    let noise_mw = 10f64.powf(sc.noise_dbm() / 10.0);
+    let bound_mw = noise_mw * 10f64.powf(bound_db / 10.0);
+    let t = cut.total.unwrap();
+    let mut worst: f64 = 0.0;
+    for (a, b) in full.iter().zip(&t) {
+        let drop =
+            10f64.powf(*a as f64 / 10.0) - if *b == lobemap::NODATA { 0.0 } else { 10f64.powf(*b as f64 / 10.0) };
+        worst = worst.max(drop);
+    }
+    // float32 sums: allow 1e-4 relative slack on the dropped power.
+    assert!(
+        worst <= bound_mw * 1.0001 + 1e-4 * full.iter().map(|a| 10f64.powf(*a as f64 / 10.0)).fold(0.0, f64::max),
+        "dropped {worst:e} mW > bound {bound_mw:e} mW"
+    );
+    assert!(cut.pair_evaluations < (sc.grid.cells() * sc.nodes.len()) as u64);
+}
