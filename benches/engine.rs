@@ -93,7 +93,7 @@ fn main() {
     let sc3 = layout(1000, 1000, 3.0, false);
     measure("total, sector, exponent 3", &sc3, total, reps);
     let sc35 = layout(1000, 500, 3.5, false);
-    measure("total, sector, exponent 3.5 (powf)", &sc35, total, reps);
+    measure("total, sector, exponent 3.5 (log2/exp2 path)", &sc35, total, reps);
     let cells = sc.grid.cells() as f64;
     println!(
         "memory estimate for 4 layers: {:.1} bytes per cell (layers at 4 bytes each plus row buffers)",

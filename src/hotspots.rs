@@ -24,21 +24,15 @@ pub struct Region {
 /// [`NODATA`] count as outside.
 pub fn regions(grid: &Grid, data: &[f32], level: f32, below: bool) -> Vec<Region> {
     let (rows, cols) = (grid.rows(), grid.cols());
-    // Marching squares treats each value as a pixel [i, i+1]; map to a field that is
-    // positive inside the region.
-    let field: Vec<f32> = data
-        .iter()
-        .map(|&v| {
-            if v == NODATA || !v.is_finite() {
-                -1.0
-            } else if below {
-                level - v
-            } else {
-                v - level
-            }
-        })
-        .collect();
-    let thr = if below { f32::MIN_POSITIVE } else { 0.0 };
+    // Marching squares treats each value as a pixel [i, i+1]. Above a level the layer is
+    // used as it is ([`NODATA`] lies below any level); below a level a field that is
+    // positive inside is built (one extra float a cell).
+    let (field, thr): (std::borrow::Cow<[f32]>, f32) = if below {
+        let f = data.iter().map(|&v| if v == NODATA || !v.is_finite() { -1.0 } else { level - v }).collect();
+        (std::borrow::Cow::Owned(f), f32::MIN_POSITIVE)
+    } else {
+        (std::borrow::Cow::Borrowed(data), level)
+    };
     let Ok(contours) = contour::ContourBuilder::new(cols, rows, true).contours(&field, &[thr]) else {
         return Vec::new();
     };
