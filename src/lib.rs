@@ -11,6 +11,7 @@ pub mod antenna;
 pub mod colormap;
 pub mod engine;
 pub mod error;
+pub mod fading;
 pub mod geodesy;
 pub mod grid;
 pub mod hotspots;
