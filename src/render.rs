@@ -49,6 +49,8 @@ pub struct MapSpec<'a> {
     pub markers: &'a [Marker],
     /// Planned links as pairs of marker indices.
     pub links: &'a [(usize, usize)],
+    /// Polygon rings (lon, lat) outlined over the map, e.g. hot spots.
+    pub outlines: &'a [Vec<(f64, f64)>],
 }
 
 /// A rendered map: PNG bytes and the world-file text that georeferences them.
@@ -144,6 +146,12 @@ pub fn render(spec: &MapSpec) -> Result<Rendered, String> {
             .map_err(e)?;
             root.draw(&PathElement::new(vec![to_px(p.lon, p.lat), to_px(q.lon, q.lat)], ink.stroke_width(1)))
                 .map_err(e)?;
+        }
+        // Outlined regions (hot spots): a light halo under a dark crimson line.
+        for ring in spec.outlines {
+            let pts: Vec<(i32, i32)> = ring.iter().map(|&(lon, lat)| to_px(lon, lat)).collect();
+            root.draw(&PathElement::new(pts.clone(), RGBColor(255, 255, 255).stroke_width(4))).map_err(e)?;
+            root.draw(&PathElement::new(pts, RGBColor(150, 20, 60).stroke_width(2))).map_err(e)?;
         }
         // Beam wedges and markers.
         let rad = ((mw.min(mh) as f64) * 0.06).clamp(14.0, 48.0);

@@ -100,8 +100,8 @@ pub fn run_map(sc: &Scenario, opts: &MapOptions) -> Result<MapResult, Error> {
     let tif = |st: &mut Staging, name: &str, data: &[f32]| {
         st.write_with(name, |w| write_geotiff(w, grid, data).map_err(std::io::Error::other))
     };
-    let png = |st: &mut Staging, name: &str, title: &str, unit: &str, data: &[f32]| -> Result<(), Error> {
-        let r = render(&MapSpec { grid, data, title, unit, markers: &markers, links: &links })
+    let png = |st: &mut Staging, name: &str, title: &str, unit: &str, data: &[f32], outlines: &[Vec<(f64, f64)>]| {
+        let r = render(&MapSpec { grid, data, title, unit, markers: &markers, links: &links, outlines })
             .map_err(|e| Error::Output { path: st.dir().join(name), source: std::io::Error::other(e) })?;
         st.write(&format!("{name}.png"), &r.png)?;
         st.write(&format!("{name}.pgw"), r.world.as_bytes())
@@ -109,15 +109,17 @@ pub fn run_map(sc: &Scenario, opts: &MapOptions) -> Result<MapResult, Error> {
     let mut hotspots = None;
     if let Some(t) = &layers.total {
         tif(&mut st, "total.tif", t)?;
-        png(&mut st, "total", "Total received", "dBm", t)?;
+        png(&mut st, "total", "Total received", "dBm", t, &[])?;
         files.extend(["total.tif", "total.png", "total.pgw"]);
     }
     if let Some(i) = &layers.interference {
         tif(&mut st, "interference.tif", i)?;
-        png(&mut st, "interference", "Interference", "dBm", i)?;
-        files.extend(["interference.tif", "interference.png", "interference.pgw"]);
         let level = (noise_dbm + sc.thresholds.hotspot_i_over_n_db) as f32;
         let regs = regions(grid, i, level, false);
+        let outlines: Vec<Vec<(f64, f64)>> =
+            regs.iter().map(|r| r.polygon.exterior().0.iter().map(|c| (c.x, c.y)).collect()).collect();
+        png(&mut st, "interference", "Interference", "dBm", i, &outlines)?;
+        files.extend(["interference.tif", "interference.png", "interference.pgw"]);
         let features: Vec<geojson::Feature> = regs
             .iter()
             .map(|r| {
@@ -153,7 +155,7 @@ pub fn run_map(sc: &Scenario, opts: &MapOptions) -> Result<MapResult, Error> {
     }
     if let Some(s) = &layers.sinr {
         tif(&mut st, "sinr.tif", s)?;
-        png(&mut st, "sinr", "Mean SINR", "dB", s)?;
+        png(&mut st, "sinr", "Mean SINR", "dB", s, &[])?;
         files.extend(["sinr.tif", "sinr.png", "sinr.pgw"]);
     }
     if let Some(v) = &layers.server {
