@@ -9,6 +9,7 @@
 
 pub mod antenna;
 pub mod colormap;
+pub mod draw;
 pub mod engine;
 pub mod error;
 pub mod fading;
