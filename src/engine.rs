@@ -190,7 +190,9 @@ pub fn fast_log2(x: f32) -> f32 {
 #[inline(always)]
 pub fn fast_exp2(y: f32) -> f32 {
     let y = y.clamp(-126.0, 127.0);
-    let i = y.round();
+    // Round to nearest with the 1.5·2²³ trick (exact for |y| < 2²²; no libm call on
+    // baseline x86-64, where `round` is not an instruction).
+    let i = (y + 12_582_912.0) - 12_582_912.0;
     let f = (y - i) * std::f32::consts::LN_2;
     let p = 1.0
         + f * (1.0

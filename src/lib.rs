@@ -7,15 +7,20 @@
 //! [`antenna::Pattern`] and [`noise`].
 #![deny(missing_docs)]
 
+pub mod aggregate;
 pub mod antenna;
+pub mod cdfplot;
 pub mod colormap;
 pub mod draw;
 pub mod engine;
 pub mod error;
 pub mod fading;
+pub mod field;
 pub mod geodesy;
 pub mod grid;
 pub mod hotspots;
+pub mod laplace;
+pub mod montecarlo;
 pub mod nodes;
 pub mod noise;
 pub mod output;

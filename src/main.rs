@@ -26,6 +26,7 @@ struct Cli {
 #[derive(Subcommand)]
 enum Cmd {
     /// Compute the layers of a scenario and write GeoTIFFs, PNGs, hot spots and a summary.
+    #[command(allow_negative_numbers = true)]
     Map {
         /// Scenario file (TOML).
         scenario: PathBuf,
@@ -51,11 +52,116 @@ enum Cmd {
         #[arg(long, default_value_t = 8192)]
         max_memory_mib: u64,
     },
+    /// Characterise the aggregate interference of a random (Poisson) field of interferers at a
+    /// reference receiver: cumulants, gamma fit, exact CDF, Monte Carlo, planning answers.
+    #[command(allow_negative_numbers = true)]
+    Aggregate(Box<AggArgs>),
     /// Run the map on the bundled demo scenario.
     Demo {
         #[command(flatten)]
         map: MapArgs,
     },
+}
+
+#[derive(clap::Args)]
+struct AggArgs {
+    /// Take radio, propagation, antenna and receiver values from this scenario; flags override.
+    #[arg(long)]
+    scenario: Option<PathBuf>,
+    /// Interferer density before thinning, per km².
+    #[arg(long)]
+    density_per_km2: Option<f64>,
+    /// Independent retention probability (0, 1].
+    #[arg(long, default_value_t = 1.0)]
+    keep: f64,
+    /// Matérn II hard-core distance, m (0: none).
+    #[arg(long, default_value_t = 0.0)]
+    hard_core_m: f64,
+    /// Outer radius of the interferer region, m.
+    #[arg(long, default_value_t = 1000.0)]
+    radius_m: f64,
+    /// Guard radius: no interferer closer than this, m.
+    #[arg(long, default_value_t = 10.0)]
+    guard_m: f64,
+    /// Interferer transmit power, dBm [default: scenario, else 20].
+    #[arg(long)]
+    power_dbm: Option<f64>,
+    /// Interferer main-lobe width, degrees [default: scenario, else 360].
+    #[arg(long)]
+    beamwidth_deg: Option<f64>,
+    /// Interferer main-lobe gain, dBi [default: scenario, else 0].
+    #[arg(long)]
+    gain_dbi: Option<f64>,
+    /// Interferer side-lobe gain, dBi [default: scenario, else the main gain].
+    #[arg(long)]
+    sidelobe_dbi: Option<f64>,
+    /// Receiver main-lobe width, degrees [default: scenario receiver, else 360 (omni)].
+    #[arg(long)]
+    rx_beamwidth_deg: Option<f64>,
+    /// Receiver main-lobe gain, dBi [default: scenario receiver, else 0].
+    #[arg(long)]
+    rx_gain_dbi: Option<f64>,
+    /// Receiver side-lobe gain, dBi [default: scenario receiver, else the main gain].
+    #[arg(long)]
+    rx_sidelobe_dbi: Option<f64>,
+    /// Path-loss model: free-space, close-in, power-law [default: scenario, else close-in].
+    #[arg(long)]
+    model: Option<String>,
+    /// Path-loss exponent [default: scenario, else 3].
+    #[arg(long)]
+    exponent: Option<f64>,
+    /// Loss at 1 m for power-law, dB [default: scenario, else 40].
+    #[arg(long)]
+    loss_at_1m_db: Option<f64>,
+    /// Carrier frequency, GHz [default: scenario, else 28].
+    #[arg(long)]
+    frequency_ghz: Option<f64>,
+    /// Gaseous absorption, dB/km [default: scenario, else 0].
+    #[arg(long)]
+    absorption_db_per_km: Option<f64>,
+    /// Minimum distance (clamp), m [default: scenario, else 1].
+    #[arg(long)]
+    min_distance_m: Option<f64>,
+    /// Fading of each interfering link: none, rayleigh, nakagami, rician.
+    #[arg(long, default_value = "rayleigh")]
+    fading: String,
+    /// Rician K-factor, dB.
+    #[arg(long, default_value_t = 6.0, allow_hyphen_values = true)]
+    k_db: f64,
+    /// Nakagami m.
+    #[arg(long, default_value_t = 2.0)]
+    m: f64,
+    /// Report P(I > x) at this level, dBm (repeatable).
+    #[arg(long = "threshold-dbm", allow_hyphen_values = true)]
+    thresholds_dbm: Vec<f64>,
+    /// Monte Carlo realisations (0: none).
+    #[arg(long, default_value_t = 0)]
+    realizations: usize,
+    /// Monte Carlo seed.
+    #[arg(long, default_value_t = 1)]
+    seed: u64,
+    /// One curve set per value: KEY=V1,V2,... with KEY beamwidth_deg, sidelobe_dbi,
+    /// density_per_km2 or k_db.
+    #[arg(long, allow_hyphen_values = true)]
+    sweep: Option<String>,
+    /// Find the highest density with P(I > --budget-dbm) <= --outage.
+    #[arg(long)]
+    max_density: bool,
+    /// Find the smallest guard radius with P(I > --budget-dbm) <= --outage.
+    #[arg(long)]
+    min_guard: bool,
+    /// Interference budget for --max-density / --min-guard, dBm.
+    #[arg(long, allow_hyphen_values = true)]
+    budget_dbm: Option<f64>,
+    /// Allowed outage probability for --max-density / --min-guard.
+    #[arg(long, default_value_t = 0.01)]
+    outage: f64,
+    /// Print JSON instead of a table.
+    #[arg(long)]
+    json: bool,
+    /// Write the CDF table (CSV), the plot (PNG, SVG) and the JSON report here.
+    #[arg(long)]
+    out: Option<PathBuf>,
 }
 
 #[derive(clap::Args)]
@@ -113,6 +219,7 @@ fn run(cli: Cli) -> anyhow::Result<ExitCode> {
             let sc = Scenario::load(&path)?;
             map_cmd(&sc, map, cli.quiet, Some("outputs/demo"))
         }
+        Cmd::Aggregate(a) => aggregate_cmd(*a),
         Cmd::Check { scenario, max_memory_mib } => match Scenario::load(&scenario) {
             Ok(sc) => {
                 lobemap::run::check_memory(&sc, 4, max_memory_mib)?;
@@ -209,4 +316,171 @@ fn demo_scenario() -> anyhow::Result<PathBuf> {
         }
     }
     Err(bad_flag("demo", format!("cannot find {}; run from the repository folder", rel.display())))
+}
+
+fn field_spec(a: &AggArgs) -> anyhow::Result<lobemap::aggregate::FieldSpec> {
+    use lobemap::antenna::Pattern;
+    use lobemap::pathloss::Law;
+    let sc = match &a.scenario {
+        Some(p) => Some(Scenario::load(p)?),
+        None => None,
+    };
+    let node0 = sc.as_ref().and_then(|s| s.nodes.first());
+    let (sc_bw, sc_g, sc_s, sc_p) = match node0.map(|n| (n.pattern, n.power_dbm)) {
+        Some((Pattern::Sector { beamwidth_deg, gain_dbi, sidelobe_dbi }, p)) => {
+            (Some(beamwidth_deg), Some(gain_dbi), Some(sidelobe_dbi), Some(p))
+        }
+        Some((Pattern::Parabolic { beamwidth_deg, gain_dbi, floor_dbi }, p)) => {
+            (Some(beamwidth_deg), Some(gain_dbi), Some(floor_dbi), Some(p))
+        }
+        Some((Pattern::Omni { gain_dbi }, p)) => (Some(360.0), Some(gain_dbi), Some(gain_dbi), Some(p)),
+        None => (None, None, None, None),
+    };
+    let rx = sc.as_ref().map(|s| s.receiver.pattern);
+    let (rx_bw, rx_g, rx_s) = match rx {
+        Some(Pattern::Sector { beamwidth_deg, gain_dbi, sidelobe_dbi }) => {
+            (Some(beamwidth_deg), Some(gain_dbi), Some(sidelobe_dbi))
+        }
+        Some(Pattern::Omni { gain_dbi }) => (Some(360.0), Some(gain_dbi), Some(gain_dbi)),
+        _ => (None, None, None),
+    };
+    let pl = sc.as_ref().map(|s| s.pathloss);
+    let (model, exponent, l1) = match pl.map(|p| p.law()) {
+        Some(Law::FreeSpace) => ("free-space", 2.0, 0.0),
+        Some(Law::CloseIn { exponent }) => ("close-in", exponent, 0.0),
+        Some(Law::PowerLaw { exponent, loss_at_1m_db }) => ("power-law", exponent, loss_at_1m_db),
+        None => ("close-in", 3.0, 40.0),
+    };
+    let gain = a.gain_dbi.or(sc_g).unwrap_or(0.0);
+    let rx_gain = a.rx_gain_dbi.or(rx_g).unwrap_or(0.0);
+    let density = match (a.density_per_km2, &a.sweep) {
+        (Some(d), _) => d,
+        (None, Some(sw)) if sw.starts_with("density_per_km2=") => 1.0,
+        _ => return Err(bad_flag("--density-per-km2", "missing; give the interferer density per km²".into())),
+    };
+    Ok(lobemap::aggregate::FieldSpec {
+        density_per_km2: density,
+        keep: a.keep,
+        hard_core_m: a.hard_core_m,
+        guard_m: a.guard_m,
+        radius_m: a.radius_m,
+        power_dbm: a.power_dbm.or(sc_p).unwrap_or(20.0),
+        tx: (a.beamwidth_deg.or(sc_bw).unwrap_or(360.0), gain, a.sidelobe_dbi.or(sc_s).unwrap_or(gain)),
+        rx: (a.rx_beamwidth_deg.or(rx_bw).unwrap_or(360.0), rx_gain, a.rx_sidelobe_dbi.or(rx_s).unwrap_or(rx_gain)),
+        fading: a.fading.clone(),
+        m: a.m,
+        k_db: a.k_db,
+        model: a.model.clone().unwrap_or(model.into()),
+        exponent: a.exponent.unwrap_or(exponent),
+        loss_at_1m_db: a.loss_at_1m_db.unwrap_or(l1),
+        frequency_ghz: a.frequency_ghz.or(pl.map(|p| p.frequency_ghz())).unwrap_or(28.0),
+        absorption_db_per_km: a.absorption_db_per_km.or(pl.map(|p| p.absorption_db_per_km())).unwrap_or(0.0),
+        min_distance_m: a.min_distance_m.or(pl.map(|p| p.min_distance_m())).unwrap_or(1.0),
+    })
+}
+
+fn aggregate_cmd(a: AggArgs) -> anyhow::Result<ExitCode> {
+    use lobemap::aggregate::{Request, characterise, max_density, min_guard};
+    let spec = field_spec(&a)?;
+    if a.realizations > 100_000_000 {
+        return Err(bad_flag(
+            "--realizations",
+            format!("value {} is outside the allowed range [0, 1e8]", a.realizations),
+        ));
+    }
+    if !(a.outage > 0.0 && a.outage < 1.0) {
+        return Err(bad_flag("--outage", format!("value {} is outside the allowed range (0, 1)", a.outage)));
+    }
+    if a.thresholds_dbm.iter().any(|t| !t.is_finite()) {
+        return Err(bad_flag("--threshold-dbm", "every value must be a finite number in dBm".into()));
+    }
+    let sets: Vec<(String, lobemap::aggregate::FieldSpec)> = match &a.sweep {
+        None => vec![(String::new(), spec.clone())],
+        Some(sw) => {
+            let (key, vals) =
+                sw.split_once('=').ok_or_else(|| bad_flag("--sweep", format!("value `{sw}` is not KEY=V1,V2,...")))?;
+            let mut out = Vec::new();
+            for v in vals.split(',') {
+                let x: f64 =
+                    v.trim().parse().map_err(|_| bad_flag("--sweep", format!("value `{v}` is not a number")))?;
+                out.push((format!("{key} = {x}"), spec.with(key, x).map_err(|m| bad_flag("--sweep", m))?));
+            }
+            if out.is_empty() || out.len() > 6 {
+                return Err(bad_flag("--sweep", "give between 1 and 6 values".into()));
+            }
+            out
+        }
+    };
+    let mut fields = Vec::new();
+    for (label, s) in &sets {
+        fields.push((label.clone(), s.build()?));
+    }
+    let out_stage = match &a.out {
+        Some(dir) => Some(lobemap::output::Staging::new(dir, &[])?),
+        None => None,
+    };
+    let req = Request {
+        thresholds_dbm: a.thresholds_dbm.clone(),
+        realizations: a.realizations,
+        seed: a.seed,
+        table_points: 160,
+    };
+    let reports: Vec<(String, lobemap::aggregate::Report)> =
+        fields.iter().map(|(l, f)| (l.clone(), characterise(f, &req))).collect();
+    let mut plans = Vec::new();
+    if a.max_density || a.min_guard {
+        let budget = a.budget_dbm.ok_or_else(|| {
+            bad_flag("--budget-dbm", "missing; --max-density and --min-guard need a budget in dBm".into())
+        })?;
+        let f = &fields[0].1;
+        if a.max_density {
+            plans.push(max_density(f, budget, a.outage));
+        }
+        if a.min_guard {
+            plans.push(min_guard(f, budget, a.outage));
+        }
+    }
+    let json = serde_json::json!({
+        "sets": reports.iter().map(|(l, r)| serde_json::json!({"label": l, "report": r})).collect::<Vec<_>>(),
+        "planning": plans,
+    });
+    let single =
+        if reports.len() == 1 && plans.is_empty() { serde_json::to_value(&reports[0].1)? } else { json.clone() };
+    if a.json {
+        println!("{}", serde_json::to_string_pretty(&single)?);
+    } else {
+        for (l, r) in &reports {
+            print!("{}", lobemap::aggregate::table(l, r));
+        }
+        for p in &plans {
+            let f = |x: Option<f64>| x.map(|v| format!("{v:.4}")).unwrap_or("none in range".into());
+            println!(
+                "{} for P(I > {} dBm) <= {}: exact {}, gamma alone {}, difference {}",
+                p.quantity,
+                p.budget_dbm,
+                p.outage,
+                f(p.exact),
+                f(p.gamma),
+                f(p.difference)
+            );
+        }
+    }
+    if let Some(mut st) = out_stage {
+        let refs: Vec<(String, &lobemap::aggregate::Report)> = reports.iter().map(|(l, r)| (l.clone(), r)).collect();
+        st.write("cdf.csv", lobemap::aggregate::cdf_csv(&refs).as_bytes())?;
+        let curves: Vec<lobemap::cdfplot::CurveSet> =
+            reports.iter().map(|(l, r)| lobemap::cdfplot::CurveSet { label: l.clone(), rows: &r.cdf }).collect();
+        let title = "Aggregate interference: exact, gamma fit, Monte Carlo";
+        let io = |e: String| Error::Output { path: PathBuf::from("cdf.png"), source: std::io::Error::other(e) };
+        st.write("cdf.png", &lobemap::cdfplot::png(&curves, title).map_err(io)?)?;
+        st.write("cdf.svg", lobemap::cdfplot::svg(&curves, title).map_err(io)?.as_bytes())?;
+        st.write("aggregate.json", serde_json::to_string_pretty(&json)?.as_bytes())?;
+        let files = st.commit()?;
+        eprintln!(
+            "wrote {} files to {}",
+            files.len(),
+            a.out.as_ref().map(|p| p.display().to_string()).unwrap_or_default()
+        );
+    }
+    Ok(ExitCode::SUCCESS)
 }

@@ -1,0 +1,732 @@
+//! The aggregate-interference characterisation of a random field: cumulants, the
+//! moment-matched gamma, the exact distribution by Laplace inversion, Monte Carlo with
+//! Kolmogorov–Smirnov distances, and planning answers (highest density, smallest guard).
+
+use crate::field::{Field, Radial};
+use crate::laplace::{DEFAULT_M, Euler};
+use crate::montecarlo::simulate;
+use crate::units::{dbm_to_mw, mw_to_dbm};
+use rayon::prelude::*;
+use serde::Serialize;
+use statrs::distribution::{ContinuousCDF, Gamma};
+use std::time::Instant;
+
+/// Probabilities at which quantiles are reported.
+pub const QUANTILE_LEVELS: [f64; 3] = [0.90, 0.99, 0.999];
+
+/// The moment-matched gamma law.
+#[derive(Debug, Clone, Copy, Serialize, PartialEq)]
+pub struct GammaFit {
+    /// Shape k = mean² / variance.
+    pub shape: f64,
+    /// Scale θ = variance / mean, mW.
+    pub scale_mw: f64,
+}
+
+impl GammaFit {
+    /// From the first two cumulants.
+    pub fn from_cumulants(k1: f64, k2: f64) -> GammaFit {
+        GammaFit { shape: k1 * k1 / k2, scale_mw: k2 / k1 }
+    }
+    fn dist(&self) -> Option<Gamma> {
+        Gamma::new(self.shape, 1.0 / self.scale_mw).ok()
+    }
+    /// P(I ≤ x).
+    pub fn cdf(&self, x_mw: f64) -> f64 {
+        self.dist().map(|g| g.cdf(x_mw)).unwrap_or(f64::NAN)
+    }
+    /// P(I > x), computed without cancellation.
+    pub fn sf(&self, x_mw: f64) -> f64 {
+        self.dist().map(|g| g.sf(x_mw)).unwrap_or(f64::NAN)
+    }
+    /// The p-quantile, mW.
+    pub fn quantile(&self, p: f64) -> f64 {
+        self.dist().map(|g| g.inverse_cdf(p)).unwrap_or(f64::NAN)
+    }
+}
+
+/// Quantiles in dBm at p90, p99, p99.9.
+#[derive(Debug, Clone, Copy, Serialize, PartialEq)]
+pub struct Quantiles {
+    /// 90th percentile.
+    pub p90: f64,
+    /// 99th percentile.
+    pub p99: f64,
+    /// 99.9th percentile.
+    pub p999: f64,
+}
+
+impl Quantiles {
+    fn from_fn(f: impl Fn(f64) -> f64) -> Quantiles {
+        let q = QUANTILE_LEVELS.map(|p| round3(mw_to_dbm(f(p))));
+        Quantiles { p90: q[0], p99: q[1], p999: q[2] }
+    }
+}
+
+/// Quantiles by method.
+#[derive(Debug, Clone, Serialize)]
+pub struct QuantileSet {
+    /// From the moment-matched gamma.
+    pub gamma: Quantiles,
+    /// From the exact (inverted) distribution.
+    pub exact: Quantiles,
+    /// From the Monte Carlo samples.
+    pub mc: Option<Quantiles>,
+}
+
+/// P(I > x) by method.
+#[derive(Debug, Clone, Serialize)]
+pub struct Exceedance {
+    /// Threshold, dBm.
+    pub threshold_dbm: f64,
+    /// Gamma approximation.
+    pub gamma: f64,
+    /// Exact.
+    pub exact: f64,
+    /// Monte Carlo fraction.
+    pub mc: Option<f64>,
+}
+
+/// Kolmogorov–Smirnov distances.
+#[derive(Debug, Clone, Serialize)]
+pub struct Ks {
+    /// sup |F_mc − F_gamma| over all samples.
+    pub gamma_vs_mc: f64,
+    /// max |F_mc − F_exact| over the CDF table's points.
+    pub exact_vs_mc: f64,
+    /// Dvoretzky–Kiefer–Wolfowitz 95 % bound for N samples: √(ln(2/0.05) / (2N)).
+    pub dkw_95: f64,
+}
+
+/// Monte Carlo run facts.
+#[derive(Debug, Clone, Serialize)]
+pub struct McFacts {
+    /// Realisations.
+    pub realizations: usize,
+    /// Seed.
+    pub seed: u64,
+    /// Interferers drawn in total.
+    pub interferer_draws: u64,
+    /// Wall-clock seconds (varies from run to run).
+    pub elapsed_s: f64,
+}
+
+/// Inversion facts.
+#[derive(Debug, Clone, Serialize)]
+pub struct InversionFacts {
+    /// Method name.
+    pub method: &'static str,
+    /// Euler parameter M.
+    pub m: usize,
+    /// Largest difference between M and M − 4 over the CDF table (an error estimate).
+    pub error_estimate: f64,
+}
+
+/// One row of the CDF table.
+#[derive(Debug, Clone, Copy, Serialize)]
+pub struct CdfRow {
+    /// Aggregate power, dBm.
+    pub x_dbm: f64,
+    /// Gamma CDF.
+    pub gamma: f64,
+    /// Exact CDF.
+    pub exact: f64,
+    /// Empirical CDF of the Monte Carlo samples.
+    pub mc: Option<f64>,
+}
+
+/// The full characterisation.
+#[derive(Debug, Clone, Serialize)]
+pub struct Report {
+    /// Density of the analytic Poisson field (after thinning), per km².
+    pub effective_density_per_km2: f64,
+    /// Mean number of interferers in the region.
+    pub mean_interferers: f64,
+    /// P(no interferer at all) = exp(−λ|A|): the atom of I at 0.
+    pub p_no_interferer: f64,
+    /// First four cumulants, mWⁿ.
+    pub cumulants: [f64; 4],
+    /// Mean, dBm.
+    pub mean_dbm: f64,
+    /// Variance, mW².
+    pub variance_mw2: f64,
+    /// Skewness κ3/κ2^1.5.
+    pub skewness: f64,
+    /// Excess kurtosis κ4/κ2².
+    pub excess_kurtosis: f64,
+    /// Moment-matched gamma.
+    pub gamma: GammaFit,
+    /// Quantiles by method.
+    pub quantiles_dbm: QuantileSet,
+    /// Exceedance probabilities by method.
+    pub exceedance: Vec<Exceedance>,
+    /// KS distances (with Monte Carlo).
+    pub ks: Option<Ks>,
+    /// Inversion facts.
+    pub inversion: InversionFacts,
+    /// Monte Carlo facts.
+    pub monte_carlo: Option<McFacts>,
+    /// Notes on approximations in force.
+    pub notes: Vec<String>,
+    /// The CDF table.
+    #[serde(skip)]
+    pub cdf: Vec<CdfRow>,
+}
+
+/// What to compute.
+#[derive(Debug, Clone)]
+pub struct Request {
+    /// Thresholds for exceedance, dBm.
+    pub thresholds_dbm: Vec<f64>,
+    /// Monte Carlo realisations (0: none).
+    pub realizations: usize,
+    /// Seed.
+    pub seed: u64,
+    /// Points in the CDF table.
+    pub table_points: usize,
+}
+
+fn round3(x: f64) -> f64 {
+    (x * 1000.0).round() / 1000.0
+}
+
+/// An exact-CDF evaluator sharing the quadrature and Euler weights.
+pub struct Exact<'a> {
+    field: &'a Field,
+    rad: Radial,
+    euler: Euler,
+}
+
+impl<'a> Exact<'a> {
+    /// Prepares the evaluator.
+    pub fn new(field: &'a Field) -> Self {
+        Exact { field, rad: field.radial(), euler: Euler::new(DEFAULT_M) }
+    }
+    /// P(I ≤ x).
+    pub fn cdf(&self, x_mw: f64) -> f64 {
+        self.field.cdf(x_mw, &self.euler, &self.rad)
+    }
+    /// P(I > x).
+    pub fn sf(&self, x_mw: f64) -> f64 {
+        1.0 - self.cdf(x_mw)
+    }
+    /// The p-quantile (mW) by the Illinois method on ln x, starting from a bracket.
+    pub fn quantile(&self, p: f64, mut lo: f64, mut hi: f64) -> f64 {
+        let mut flo = self.cdf(lo) - p;
+        let mut fhi = self.cdf(hi) - p;
+        let mut guard = 0;
+        while flo > 0.0 && guard < 60 {
+            lo /= 4.0;
+            flo = self.cdf(lo) - p;
+            guard += 1;
+        }
+        while fhi < 0.0 && guard < 120 {
+            hi *= 4.0;
+            fhi = self.cdf(hi) - p;
+            guard += 1;
+        }
+        if flo > 0.0 {
+            return 0.0; // the atom at zero already exceeds p
+        }
+        let (mut a, mut b) = (lo.ln(), hi.ln());
+        let mut side = 0;
+        for _ in 0..60 {
+            let c = (a * fhi - b * flo) / (fhi - flo);
+            let fc = self.cdf(c.exp()) - p;
+            if fc.abs() < 1e-9 || (b - a).abs() < 1e-9 {
+                return c.exp();
+            }
+            if (fc > 0.0) == (fhi > 0.0) {
+                b = c;
+                fhi = fc;
+                if side == 1 {
+                    flo /= 2.0;
+                }
+                side = 1;
+            } else {
+                a = c;
+                flo = fc;
+                if side == -1 {
+                    fhi /= 2.0;
+                }
+                side = -1;
+            }
+        }
+        ((a + b) / 2.0).exp()
+    }
+}
+
+/// Characterises the aggregate interference of `field`.
+pub fn characterise(field: &Field, req: &Request) -> Report {
+    let rad = field.radial();
+    let k: [f64; 4] = [1, 2, 3, 4].map(|n| field.cumulant(n, &rad));
+    let gamma = GammaFit::from_cumulants(k[0], k[1]);
+    let exact = Exact::new(field);
+    let lam_area = field.effective_density() * field.area_m2();
+    let mut notes = Vec::new();
+    if field.hard_core_m > 0.0 {
+        notes.push("hard core: cumulants, gamma and exact use a Poisson field of the Matérn II retained density (pair correlation ignored); the Monte Carlo simulates the hard core".into());
+    }
+    // Monte Carlo.
+    let (mc, facts) = if req.realizations > 0 {
+        let t0 = Instant::now();
+        let (mut v, draws) = simulate(field, req.realizations, req.seed);
+        let elapsed_s = t0.elapsed().as_secs_f64();
+        v.sort_by(f64::total_cmp);
+        (Some(v), Some(McFacts { realizations: req.realizations, seed: req.seed, interferer_draws: draws, elapsed_s }))
+    } else {
+        (None, None)
+    };
+    // The CDF table on a dBm axis covering the gamma and Monte Carlo ranges.
+    let mean_dbm = mw_to_dbm(k[0]);
+    let mut lo = gamma.quantile(1e-3).max(k[0] * 1e-6);
+    let mut hi = gamma.quantile(0.9999).max(k[0] * 10.0);
+    if let Some(v) = &mc {
+        let pos: Vec<&f64> = v.iter().filter(|x| **x > 0.0).collect();
+        if let (Some(a), Some(b)) = (pos.first(), pos.last()) {
+            lo = lo.min(**a);
+            hi = hi.max(**b);
+        }
+    }
+    let (lo_dbm, hi_dbm) = (mw_to_dbm(lo).max(mean_dbm - 60.0).floor(), mw_to_dbm(hi).min(mean_dbm + 40.0).ceil());
+    let n = req.table_points.max(10);
+    let xs: Vec<f64> = (0..n).map(|i| lo_dbm + (hi_dbm - lo_dbm) * i as f64 / (n - 1) as f64).collect();
+    let euler_lo = Euler::new(DEFAULT_M - 4);
+    let exact_vals: Vec<(f64, f64)> =
+        xs.par_iter().map(|&x| (exact.cdf(dbm_to_mw(x)), field.cdf(dbm_to_mw(x), &euler_lo, &rad))).collect();
+    let error_estimate = exact_vals.iter().map(|(a, b)| (a - b).abs()).fold(0.0, f64::max);
+    let emp =
+        |x_mw: f64| -> Option<f64> { mc.as_ref().map(|v| v.partition_point(|s| *s <= x_mw) as f64 / v.len() as f64) };
+    let cdf: Vec<CdfRow> = xs
+        .iter()
+        .zip(&exact_vals)
+        .map(|(&x, &(e, _))| CdfRow { x_dbm: x, gamma: gamma.cdf(dbm_to_mw(x)), exact: e, mc: emp(dbm_to_mw(x)) })
+        .collect();
+    // Exact quantiles, bracketed by the table.
+    let bracket = |p: f64| -> (f64, f64) {
+        let i = cdf.iter().position(|r| r.exact >= p).unwrap_or(cdf.len() - 1);
+        (dbm_to_mw(cdf[i.saturating_sub(1)].x_dbm), dbm_to_mw(cdf[i].x_dbm))
+    };
+    let exact_q = Quantiles::from_fn(|p| {
+        let (a, b) = bracket(p);
+        exact.quantile(p, a, b)
+    });
+    let mc_q =
+        mc.as_ref().map(|v| Quantiles::from_fn(|p| v[((p * v.len() as f64).ceil() as usize).clamp(1, v.len()) - 1]));
+    let exceedance = req
+        .thresholds_dbm
+        .iter()
+        .map(|&t| {
+            let x = dbm_to_mw(t);
+            Exceedance {
+                threshold_dbm: t,
+                gamma: gamma.sf(x),
+                exact: exact.sf(x).max(0.0),
+                mc: mc.as_ref().map(|v| (v.len() - v.partition_point(|s| *s <= x)) as f64 / v.len() as f64),
+            }
+        })
+        .collect();
+    let ks = mc.as_ref().map(|v| {
+        let nn = v.len() as f64;
+        let g = v
+            .par_iter()
+            .enumerate()
+            .map(|(i, &x)| {
+                let f = gamma.cdf(x);
+                (f - i as f64 / nn).abs().max(((i + 1) as f64 / nn - f).abs())
+            })
+            .reduce(|| 0.0, f64::max);
+        let e = cdf.iter().map(|r| (r.mc.unwrap_or(0.0) - r.exact).abs()).fold(0.0, f64::max);
+        Ks { gamma_vs_mc: g, exact_vs_mc: e, dkw_95: ((2.0f64 / 0.05).ln() / (2.0 * nn)).sqrt() }
+    });
+    Report {
+        effective_density_per_km2: field.effective_density() * 1e6,
+        mean_interferers: lam_area,
+        p_no_interferer: (-lam_area).exp(),
+        cumulants: k,
+        mean_dbm: round3(mean_dbm),
+        variance_mw2: k[1],
+        skewness: k[2] / k[1].powf(1.5),
+        excess_kurtosis: k[3] / (k[1] * k[1]),
+        gamma,
+        quantiles_dbm: QuantileSet { gamma: Quantiles::from_fn(|p| gamma.quantile(p)), exact: exact_q, mc: mc_q },
+        exceedance,
+        ks,
+        inversion: InversionFacts { method: "Abate-Whitt Euler (2006)", m: DEFAULT_M, error_estimate },
+        monte_carlo: facts,
+        notes,
+        cdf,
+    }
+}
+
+/// A planning answer: the value found from the exact distribution and from the gamma fit.
+#[derive(Debug, Clone, Serialize)]
+pub struct PlanAnswer {
+    /// What was searched (`max_density_per_km2` or `min_guard_m`).
+    pub quantity: String,
+    /// Answer from the exact distribution (None: no value meets the target in range).
+    pub exact: Option<f64>,
+    /// Answer the gamma approximation alone would give.
+    pub gamma: Option<f64>,
+    /// gamma − exact.
+    pub difference: Option<f64>,
+    /// Budget, dBm.
+    pub budget_dbm: f64,
+    /// Allowed outage P(I > budget).
+    pub outage: f64,
+}
+
+fn bisect(mut lo: f64, mut hi: f64, ok: impl Fn(f64) -> bool, geometric: bool) -> f64 {
+    // Invariant: ok(lo) is true, ok(hi) false.
+    for _ in 0..60 {
+        let mid = if geometric && lo > 0.0 { (lo * hi).sqrt() } else { (lo + hi) / 2.0 };
+        if ok(mid) {
+            lo = mid;
+        } else {
+            hi = mid;
+        }
+        if (hi - lo) <= 1e-6 * hi.abs().max(1e-12) {
+            break;
+        }
+    }
+    lo
+}
+
+/// The highest parent density (per km²) with P(I > budget) ≤ outage.
+pub fn max_density(field: &Field, budget_dbm: f64, outage: f64) -> PlanAnswer {
+    let x = dbm_to_mw(budget_dbm);
+    let with = |d: f64| Field { density_per_m2: d / 1e6, ..*field };
+    let exact_ok = |d: f64| Exact::new(&with(d)).sf(x) <= outage;
+    let gamma_ok = |d: f64| {
+        let f = with(d);
+        let rad = f.radial();
+        GammaFit::from_cumulants(f.cumulant(1, &rad), f.cumulant(2, &rad)).sf(x) <= outage
+    };
+    let search = |ok: &dyn Fn(f64) -> bool| -> Option<f64> {
+        let mut hi = (field.density_per_m2 * 1e6).max(1e-3);
+        let mut lo = hi;
+        if ok(hi) {
+            let mut n = 0;
+            while ok(hi) {
+                lo = hi;
+                hi *= 4.0;
+                n += 1;
+                if n > 30 {
+                    return None; // met at any density in range (e.g. a saturating hard core)
+                }
+            }
+        } else {
+            let mut n = 0;
+            while !ok(lo) {
+                hi = lo;
+                lo /= 4.0;
+                n += 1;
+                if n > 40 {
+                    return Some(0.0);
+                }
+            }
+        }
+        Some(bisect(lo, hi, ok, true))
+    };
+    let exact = search(&exact_ok);
+    let gamma = search(&gamma_ok);
+    PlanAnswer {
+        quantity: "max_density_per_km2".into(),
+        exact,
+        gamma,
+        difference: exact.zip(gamma).map(|(e, g)| g - e),
+        budget_dbm,
+        outage,
+    }
+}
+
+/// The smallest guard radius (m) with P(I > budget) ≤ outage at the field's density.
+pub fn min_guard(field: &Field, budget_dbm: f64, outage: f64) -> PlanAnswer {
+    let x = dbm_to_mw(budget_dbm);
+    let with = |g: f64| Field { guard_m: g, ..*field };
+    let exact_ok = |g: f64| Exact::new(&with(g)).sf(x) <= outage;
+    let gamma_ok = |g: f64| {
+        let f = with(g);
+        let rad = f.radial();
+        GammaFit::from_cumulants(f.cumulant(1, &rad), f.cumulant(2, &rad)).sf(x) <= outage
+    };
+    let r = field.radius_m;
+    let search = |ok: &dyn Fn(f64) -> bool| -> Option<f64> {
+        if ok(0.0) {
+            return Some(0.0);
+        }
+        let top = r * 0.999;
+        if !ok(top) {
+            return None;
+        }
+        // ok(guard) is monotone (false below the answer): bisect with inverted predicate.
+        Some(top - bisect(0.0, top, |g| !ok(top - g), false))
+    };
+    let exact = search(&exact_ok);
+    let gamma = search(&gamma_ok);
+    PlanAnswer {
+        quantity: "min_guard_m".into(),
+        exact,
+        gamma,
+        difference: exact.zip(gamma).map(|(e, g)| g - e),
+        budget_dbm,
+        outage,
+    }
+}
+
+/// Raw field parameters as given on the command line or taken from a scenario; [`Self::build`]
+/// validates them.
+#[derive(Debug, Clone, PartialEq)]
+pub struct FieldSpec {
+    /// Parent density, per km².
+    pub density_per_km2: f64,
+    /// Independent retention probability.
+    pub keep: f64,
+    /// Matérn II hard core, m.
+    pub hard_core_m: f64,
+    /// Guard radius, m.
+    pub guard_m: f64,
+    /// Outer radius, m.
+    pub radius_m: f64,
+    /// Transmit power, dBm.
+    pub power_dbm: f64,
+    /// Interferer (beamwidth, gain, side lobe).
+    pub tx: (f64, f64, f64),
+    /// Receiver (beamwidth, gain, side lobe).
+    pub rx: (f64, f64, f64),
+    /// Fading law name: none, rayleigh, nakagami, rician.
+    pub fading: String,
+    /// Nakagami m.
+    pub m: f64,
+    /// Rician K, dB.
+    pub k_db: f64,
+    /// Path-loss model name.
+    pub model: String,
+    /// Exponent.
+    pub exponent: f64,
+    /// Loss at 1 m (power-law).
+    pub loss_at_1m_db: f64,
+    /// Frequency, GHz.
+    pub frequency_ghz: f64,
+    /// Absorption, dB/km.
+    pub absorption_db_per_km: f64,
+    /// Minimum distance, m.
+    pub min_distance_m: f64,
+}
+
+impl FieldSpec {
+    /// Checks every value and builds the field; problems name the command-line flag.
+    pub fn build(&self) -> Result<Field, crate::Error> {
+        use crate::error::{Problem, Problems};
+        use crate::scenario::Range;
+        let mut p = Problems::default();
+        let mut chk = |flag: &str, v: f64, r: Range| {
+            if !r.contains(v) {
+                p.push(Problem::new(
+                    "(command line)",
+                    None,
+                    flag,
+                    format!("value {v} is outside the allowed range {r}"),
+                ));
+            }
+        };
+        chk("--density-per-km2", self.density_per_km2, Range::left_open(0.0, 1e7, "per km²"));
+        chk("--keep", self.keep, Range::left_open(0.0, 1.0, ""));
+        chk("--hard-core-m", self.hard_core_m, Range::closed(0.0, 10_000.0, "m"));
+        chk("--radius-m", self.radius_m, Range::left_open(0.0, 1e6, "m"));
+        chk("--guard-m", self.guard_m, Range::closed(0.0, self.radius_m.max(0.0), "m (below --radius-m)"));
+        chk("--power-dbm", self.power_dbm, Range::POWER);
+        chk("--beamwidth-deg", self.tx.0, Range::BEAMWIDTH);
+        chk("--gain-dbi", self.tx.1, Range::GAIN);
+        chk("--sidelobe-dbi", self.tx.2, Range::closed(-60.0, self.tx.1, "dBi (not above --gain-dbi)"));
+        chk("--rx-beamwidth-deg", self.rx.0, Range::BEAMWIDTH);
+        chk("--rx-gain-dbi", self.rx.1, Range::GAIN);
+        chk("--rx-sidelobe-dbi", self.rx.2, Range::closed(-60.0, self.rx.1, "dBi (not above --rx-gain-dbi)"));
+        if self.guard_m >= self.radius_m {
+            p.push(Problem::new(
+                "(command line)",
+                None,
+                "--guard-m",
+                format!("value {} must be below --radius-m {}", self.guard_m, self.radius_m),
+            ));
+        }
+        let fading = match self.fading.as_str() {
+            "none" => Some(crate::fading::Fading::None),
+            "rayleigh" => Some(crate::fading::Fading::Rayleigh),
+            "nakagami" => crate::fading::Fading::nakagami(self.m)
+                .map_err(|m| p.push(Problem::new("(command line)", None, "--m", m)))
+                .ok(),
+            "rician" => crate::fading::Fading::rician_db(self.k_db)
+                .map_err(|m| p.push(Problem::new("(command line)", None, "--k-db", m)))
+                .ok(),
+            other => {
+                p.push(Problem::new(
+                    "(command line)",
+                    None,
+                    "--fading",
+                    format!("value `{other}` is not one of none, rayleigh, nakagami, rician"),
+                ));
+                None
+            }
+        };
+        let law = match self.model.as_str() {
+            "free-space" => Some(crate::pathloss::Law::FreeSpace),
+            "close-in" => Some(crate::pathloss::Law::CloseIn { exponent: self.exponent }),
+            "power-law" => {
+                Some(crate::pathloss::Law::PowerLaw { exponent: self.exponent, loss_at_1m_db: self.loss_at_1m_db })
+            }
+            other => {
+                p.push(Problem::new(
+                    "(command line)",
+                    None,
+                    "--model",
+                    format!("value `{other}` is not one of free-space, close-in, power-law"),
+                ));
+                None
+            }
+        };
+        let pl = law.and_then(|law| {
+            crate::pathloss::PathLoss::new(
+                law,
+                self.frequency_ghz,
+                self.absorption_db_per_km,
+                self.min_distance_m,
+                "(command line)",
+            )
+            .map_err(|e| {
+                for mut q in e {
+                    q.field = format!("--{}", q.field.replace('_', "-"));
+                    q.feature = None;
+                    p.push(q);
+                }
+            })
+            .ok()
+        });
+        if law.is_some() && pl.is_some() && self.exponent <= 2.0 && self.model != "free-space" && self.radius_m > 1e5 {
+            p.push(Problem::new(
+                "(command line)",
+                None,
+                "--exponent",
+                "with exponent ≤ 2 the aggregate grows without bound with the radius; keep --radius-m at most 100 km",
+            ));
+        }
+        p.into_result()?;
+        let (Some(fading), Some(pathloss)) = (fading, pl) else { unreachable!("problems were recorded") };
+        Ok(Field {
+            density_per_m2: self.density_per_km2 / 1e6,
+            keep: self.keep,
+            hard_core_m: self.hard_core_m,
+            guard_m: self.guard_m,
+            radius_m: self.radius_m,
+            power_mw: dbm_to_mw(self.power_dbm),
+            tx: crate::field::SectorGain::from_db(self.tx.0, self.tx.1, self.tx.2),
+            rx: crate::field::SectorGain::from_db(self.rx.0, self.rx.1, self.rx.2),
+            fading,
+            pathloss,
+        })
+    }
+
+    /// Applies one sweep value: `beamwidth_deg` (interferers, and the receiver when it is
+    /// directional), `sidelobe_dbi` (likewise), `density_per_km2` or `k_db` (Rician).
+    pub fn with(&self, key: &str, v: f64) -> Result<FieldSpec, String> {
+        let mut s = self.clone();
+        match key {
+            "beamwidth_deg" => {
+                s.tx.0 = v;
+                if s.rx.0 < 360.0 {
+                    s.rx.0 = v;
+                }
+            }
+            "sidelobe_dbi" => {
+                s.tx.2 = v;
+                if s.rx.0 < 360.0 {
+                    s.rx.2 = v;
+                }
+            }
+            "density_per_km2" => s.density_per_km2 = v,
+            "k_db" => {
+                s.fading = "rician".into();
+                s.k_db = v;
+            }
+            other => {
+                return Err(format!(
+                    "unknown sweep key `{other}`; allowed: beamwidth_deg, sidelobe_dbi, density_per_km2, k_db"
+                ));
+            }
+        }
+        Ok(s)
+    }
+}
+
+/// CSV of the CDF tables (one block per curve set).
+pub fn cdf_csv(sets: &[(String, &Report)]) -> String {
+    let mut s = String::from("set,x_dbm,cdf_gamma,cdf_exact,cdf_mc\n");
+    for (label, r) in sets {
+        for row in &r.cdf {
+            s += &format!(
+                "{},{:.3},{:.9},{:.9},{}\n",
+                label,
+                row.x_dbm,
+                row.gamma,
+                row.exact,
+                row.mc.map(|m| format!("{m:.9}")).unwrap_or_default()
+            );
+        }
+    }
+    s
+}
+
+/// A plain-text summary of a report.
+pub fn table(label: &str, r: &Report) -> String {
+    let mut s = String::new();
+    if !label.is_empty() {
+        s += &format!("== {label}\n");
+    }
+    s += &format!(
+        "interferers: {:.1} on average (density {:.1} per km²), P(none) {:.3e}\n",
+        r.mean_interferers, r.effective_density_per_km2, r.p_no_interferer
+    );
+    s += &format!(
+        "mean {:.2} dBm, variance {:.3e} mW², skewness {:.3}, excess kurtosis {:.3}\n",
+        r.mean_dbm, r.variance_mw2, r.skewness, r.excess_kurtosis
+    );
+    s += &format!("gamma fit: shape {:.4}, scale {:.4e} mW\n", r.gamma.shape, r.gamma.scale_mw);
+    s += &format!("{:<12} {:>10} {:>10} {:>10}\n", "quantile", "gamma", "exact", "MC");
+    let q = &r.quantiles_dbm;
+    for (name, g, e, m) in [
+        ("p90 dBm", q.gamma.p90, q.exact.p90, q.mc.map(|x| x.p90)),
+        ("p99 dBm", q.gamma.p99, q.exact.p99, q.mc.map(|x| x.p99)),
+        ("p99.9 dBm", q.gamma.p999, q.exact.p999, q.mc.map(|x| x.p999)),
+    ] {
+        s += &format!("{name:<12} {g:>10.2} {e:>10.2} {:>10}\n", m.map(|x| format!("{x:.2}")).unwrap_or("-".into()));
+    }
+    for x in &r.exceedance {
+        s += &format!(
+            "P(I > {:.1} dBm): gamma {:.4e}, exact {:.4e}, MC {}\n",
+            x.threshold_dbm,
+            x.gamma,
+            x.exact,
+            x.mc.map(|m| format!("{m:.4e}")).unwrap_or("-".into())
+        );
+    }
+    if let Some(k) = &r.ks {
+        s += &format!(
+            "KS distance to Monte Carlo: gamma {:.4}, exact {:.4} (95 % DKW band {:.4})\n",
+            k.gamma_vs_mc, k.exact_vs_mc, k.dkw_95
+        );
+    }
+    if let Some(m) = &r.monte_carlo {
+        s += &format!(
+            "Monte Carlo: {} realisations, seed {}, {:.3e} interferer draws in {:.2} s\n",
+            m.realizations, m.seed, m.interferer_draws as f64, m.elapsed_s
+        );
+    }
+    s += &format!(
+        "exact CDF: {} M = {}, error estimate {:.1e}\n",
+        r.inversion.method, r.inversion.m, r.inversion.error_estimate
+    );
+    for n in &r.notes {
+        s += &format!("note: {n}\n");
+    }
+    s
+}
