@@ -459,8 +459,8 @@ pub fn min_guard(field: &Field, budget_dbm: f64, outage: f64) -> PlanAnswer {
         if !ok(top) {
             return None;
         }
-        // ok(guard) is monotone (false below the answer): bisect with inverted predicate.
-        Some(top - bisect(0.0, top, |g| !ok(top - g), false))
+        // ok(guard) is false below the answer and true above: bisect on u = top − guard.
+        Some(top - bisect(0.0, top, |u| ok(top - u), false))
     };
     let exact = search(&exact_ok);
     let gamma = search(&gamma_ok);

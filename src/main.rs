@@ -217,9 +217,43 @@ fn run(cli: Cli) -> anyhow::Result<ExitCode> {
         Cmd::Demo { map } => {
             let path = demo_scenario()?;
             let sc = Scenario::load(&path)?;
-            map_cmd(&sc, map, cli.quiet, Some("outputs/demo"))
+            let out = map.out.clone().unwrap_or_else(|| PathBuf::from("outputs/demo"));
+            map_cmd(&sc, map, cli.quiet, Some("outputs/demo"))?;
+            // One sweep of the random-field characterisation with the demo's radio values:
+            // how the beamwidth of a dense field of access nodes shapes the aggregate.
+            let agg_out = out.join("aggregate");
+            let args = [
+                "lobemap",
+                "aggregate",
+                "--scenario",
+                path.to_str().unwrap_or_default(),
+                "--density-per-km2",
+                "400",
+                "--guard-m",
+                "15",
+                "--radius-m",
+                "1500",
+                "--fading",
+                "rician",
+                "--k-db",
+                "6",
+                "--realizations",
+                "4000",
+                "--seed",
+                "7",
+                "--threshold-dbm",
+                "-35",
+                "--sweep",
+                "beamwidth_deg=10,30,90",
+                "--out",
+                agg_out.to_str().unwrap_or_default(),
+            ];
+            match Cli::try_parse_from(args)?.cmd {
+                Cmd::Aggregate(a) => aggregate_cmd(*a, cli.quiet),
+                _ => unreachable!("parsed an aggregate command"),
+            }
         }
-        Cmd::Aggregate(a) => aggregate_cmd(*a),
+        Cmd::Aggregate(a) => aggregate_cmd(*a, false),
         Cmd::Check { scenario, max_memory_mib } => match Scenario::load(&scenario) {
             Ok(sc) => {
                 lobemap::run::check_memory(&sc, 4, max_memory_mib)?;
@@ -379,7 +413,7 @@ fn field_spec(a: &AggArgs) -> anyhow::Result<lobemap::aggregate::FieldSpec> {
     })
 }
 
-fn aggregate_cmd(a: AggArgs) -> anyhow::Result<ExitCode> {
+fn aggregate_cmd(a: AggArgs, quiet: bool) -> anyhow::Result<ExitCode> {
     use lobemap::aggregate::{Request, characterise, max_density, min_guard};
     let spec = field_spec(&a)?;
     if a.realizations > 100_000_000 {
@@ -448,7 +482,7 @@ fn aggregate_cmd(a: AggArgs) -> anyhow::Result<ExitCode> {
         if reports.len() == 1 && plans.is_empty() { serde_json::to_value(&reports[0].1)? } else { json.clone() };
     if a.json {
         println!("{}", serde_json::to_string_pretty(&single)?);
-    } else {
+    } else if !quiet {
         for (l, r) in &reports {
             print!("{}", lobemap::aggregate::table(l, r));
         }

@@ -1,0 +1,168 @@
+//! Checks of the random-field characterisation against published results and reference
+//! libraries.
+
+use lobemap::aggregate::{GammaFit, Request, characterise, max_density, min_guard};
+use lobemap::fading::Fading;
+use lobemap::field::{Field, SectorGain};
+use lobemap::montecarlo::simulate;
+use lobemap::pathloss::{Law, PathLoss};
+use num_complex::Complex64;
+
+fn field(fading: Fading, bw: f64, main: f64, side: f64) -> Field {
+    Field {
+        density_per_m2: 1e-3,
+        keep: 1.0,
+        hard_core_m: 0.0,
+        guard_m: 10.0,
+        radius_m: 1000.0,
+        power_mw: 1.0,
+        tx: SectorGain::from_db(bw, main, side),
+        rx: SectorGain::from_db(bw, main, side),
+        fading,
+        pathloss: PathLoss::new(Law::PowerLaw { exponent: 3.0, loss_at_1m_db: 40.0 }, 28.0, 0.0, 1.0, "t").unwrap(),
+    }
+}
+
+fn mean_var(v: &[f64]) -> (f64, f64) {
+    let n = v.len() as f64;
+    let m = v.iter().sum::<f64>() / n;
+    (m, v.iter().map(|x| (x - m).powi(2)).sum::<f64>() / (n - 1.0))
+}
+
+/// Campbell's theorem (Haenggi 2012, Thm 4.1): E[I] = κ1 = λ P E[G_t] E[G_r] E[h] ∫ ℓ dA.
+/// The Monte Carlo mean of N seeded realisations must lie within 4 standard errors
+/// (√(κ2/N), κ2 the exact variance) of κ1; likewise the sample variance estimates κ2.
+#[test]
+fn campbell_mean_and_variance_against_monte_carlo() {
+    for f in [field(Fading::Rayleigh, 60.0, 6.0, -6.0), field(Fading::rician_db(6.0).unwrap(), 360.0, 0.0, 0.0)] {
+        let rad = f.radial();
+        let (k1, k2) = (f.cumulant(1, &rad), f.cumulant(2, &rad));
+        let n = 20_000;
+        let (v, _) = simulate(&f, n, 11);
+        let (m, var) = mean_var(&v);
+        assert!((m - k1).abs() < 4.0 * (k2 / n as f64).sqrt(), "mean {m:e} vs κ1 {k1:e}");
+        // Sample variance: relative standard error √((κ4/κ2² + 2)/N); 5 of them.
+        let rse = ((f.cumulant(4, &rad) / (k2 * k2) + 2.0) / n as f64).sqrt();
+        assert!((var / k2 - 1.0).abs() < 5.0 * rse, "var {var:e} vs κ2 {k2:e} (rse {rse})");
+    }
+}
+
+/// Gamma CDF, survival and quantiles against statrs and against scipy.stats.gamma 1.17.1
+/// (values computed with scipy on 2026-12-01 and pasted here).
+#[test]
+fn gamma_fit_against_scipy_and_statrs() {
+    let scipy = [
+        (0.5, 2.0, 0.1, 0.24817036595415076),
+        (0.5, 2.0, 3.0, 0.9167354833364496),
+        (2.0, 1.5, 2.0, 0.38494001106330406),
+        (2.0, 1.5, 8.0, 0.9694229833724008),
+        (0.02, 1e-6, 1e-9, 0.8807722325464475),
+        (7.5, 0.2, 1.0, 0.18026008049639844),
+    ];
+    for (k, th, x, want) in scipy {
+        let g = GammaFit { shape: k, scale_mw: th };
+        assert!((g.cdf(x) - want).abs() < 1e-10, "cdf({k},{th},{x}) = {}", g.cdf(x));
+        assert!((g.sf(x) - (1.0 - want)).abs() < 1e-10);
+    }
+    for (k, th, p, want) in [
+        (0.5, 2.0, 0.9, 2.705543454095404),
+        (2.0, 1.5, 0.99, 9.957528101990716),
+        (0.02, 1e-6, 0.999, 2.0063208017766133e-06),
+    ] {
+        let g = GammaFit { shape: k, scale_mw: th };
+        assert!((g.quantile(p) / want - 1.0).abs() < 1e-6, "ppf {k} {th} {p}: {}", g.quantile(p));
+    }
+    // Moment matching: the fit's mean and variance equal the cumulants.
+    let g = GammaFit::from_cumulants(3.0, 2.0);
+    assert!((g.shape * g.scale_mw - 3.0).abs() < 1e-12 && (g.shape * g.scale_mw * g.scale_mw - 2.0).abs() < 1e-12);
+}
+
+/// Haenggi (2012, §5.1) / Baccelli, Błaszczyszyn and Mühlethaler (2006) with directional
+/// interferers: the Rayleigh success probability on the plane is
+/// exp(−λπr²T^δ Γ(1+δ)Γ(1−δ) E[G^δ]/G₀^δ). Our Laplace transform on a 20 km disc with a
+/// 30° sector (10/−10 dBi) at the interferers must match within the disc truncation,
+/// λ·2π·s·E[G]·R^(2−α)/(α−2) ≈ 1e−6 here.
+#[test]
+fn directional_success_probability_matches_closed_form() {
+    let (lambda, r, alpha): (f64, f64, f64) = (1e-4, 20.0, 4.0);
+    let f = Field {
+        density_per_m2: lambda,
+        guard_m: 0.0,
+        radius_m: 20_000.0,
+        tx: SectorGain::from_db(30.0, 10.0, -10.0),
+        rx: SectorGain::from_db(360.0, 0.0, 0.0),
+        pathloss: PathLoss::new(Law::PowerLaw { exponent: alpha, loss_at_1m_db: 0.0 }, 28.0, 0.0, 1e-3, "t").unwrap(),
+        ..field(Fading::Rayleigh, 360.0, 0.0, 0.0)
+    };
+    let s: f64 = r.powf(alpha); // T = 1, G₀ = 1
+    let p = f.log_laplace(Complex64::new(s, 0.0), &f.radial()).exp().re;
+    let delta = 2.0 / alpha;
+    let g = statrs::function::gamma::gamma;
+    let closed = (-lambda * std::f64::consts::PI * r * r * g(1.0 + delta) * g(1.0 - delta) * f.tx.moment(delta)).exp();
+    assert!((p - closed).abs() < 1e-5, "{p} vs {closed}");
+}
+
+/// Kolmogorov–Smirnov: by the Dvoretzky–Kiefer–Wolfowitz inequality (Massart 1990) the
+/// distance between N samples and their true CDF exceeds √(ln(2/α)/(2N)) with probability at
+/// most α; with α = 1e−3 the exact CDF must stay inside for N = 2 000 and 20 000 (a bound
+/// shrinking like 1/√N). The gamma fit of this narrow-beam field is poor (shape ≪ 1), and
+/// its distance stays large whatever N: that is what the tool must show.
+#[test]
+fn ks_distances_shrink_for_exact_not_for_gamma() {
+    let f = field(Fading::Rayleigh, 30.0, 10.0, -10.0);
+    for n in [2_000usize, 20_000] {
+        let r = characterise(&f, &Request { thresholds_dbm: vec![], realizations: n, seed: 3, table_points: 160 });
+        let ks = r.ks.unwrap();
+        let bound = ((2.0f64 / 1e-3).ln() / (2.0 * n as f64)).sqrt();
+        assert!(ks.exact_vs_mc < bound, "N {n}: exact KS {} > {bound}", ks.exact_vs_mc);
+        assert!(ks.gamma_vs_mc > 0.5, "N {n}: gamma KS {}", ks.gamma_vs_mc);
+        assert!(r.gamma.shape < 0.05);
+        assert!(r.inversion.error_estimate < 1e-6);
+    }
+}
+
+/// Same seed, same samples, whatever the thread count.
+#[test]
+fn monte_carlo_is_thread_count_independent() {
+    let f = field(Fading::nakagami(2.0).unwrap(), 90.0, 8.0, -4.0);
+    let run =
+        |t: usize| rayon::ThreadPoolBuilder::new().num_threads(t).build().unwrap().install(|| simulate(&f, 3000, 99).0);
+    assert_eq!(run(1), run(2));
+    assert_ne!(run(1), simulate(&f, 3000, 100).0);
+}
+
+/// Matérn II hard core: Campbell's theorem holds for any stationary process, so the
+/// simulated hard-core mean must match κ1 computed with the retained intensity
+/// (1 − e^{−λπh²})/(πh²) (Matérn 1986) within 4 sample standard errors.
+#[test]
+fn hard_core_mean_matches_retained_intensity() {
+    let f = Field { hard_core_m: 30.0, radius_m: 400.0, ..field(Fading::Rayleigh, 360.0, 0.0, 0.0) };
+    let k1 = f.cumulant(1, &f.radial());
+    let (v, _) = simulate(&f, 4000, 5);
+    let (m, var) = mean_var(&v);
+    assert!((m - k1).abs() < 4.0 * (var / 4000.0).sqrt(), "{m:e} vs {k1:e}");
+}
+
+/// Planning answers are consistent: at the density found, the exact exceedance equals the
+/// target; the gamma answer is reported beside it.
+#[test]
+fn planning_answers_meet_the_target() {
+    let f = field(Fading::Rayleigh, 30.0, 10.0, -10.0);
+    let p = max_density(&f, -65.0, 0.05);
+    let d = p.exact.unwrap();
+    let at = |dens: f64| {
+        let g = Field { density_per_m2: dens / 1e6, ..f };
+        lobemap::aggregate::Exact::new(&g).sf(lobemap::units::dbm_to_mw(-65.0))
+    };
+    assert!((at(d) - 0.05).abs() < 2e-3 && at(d * 1.05) > 0.05, "{} {}", at(d), at(d * 1.05));
+    assert!(p.gamma.is_some());
+    // At 3000 per km² a guard is needed (at 10 m the exceedance is above 5 %).
+    let dense = Field { density_per_m2: 3e-3, ..f };
+    let g = min_guard(&dense, -65.0, 0.05);
+    let gm = g.exact.unwrap();
+    let at_g = |guard: f64| {
+        lobemap::aggregate::Exact::new(&Field { guard_m: guard, ..dense }).sf(lobemap::units::dbm_to_mw(-65.0))
+    };
+    assert!(gm > 10.0, "{gm}");
+    assert!(at_g(gm) <= 0.05 + 1e-6 && at_g(gm * 0.95) > 0.05, "{} {}", at_g(gm), at_g(gm * 0.95));
+}
