@@ -56,6 +56,7 @@ fn layout(nodes: usize, cells_side: usize, exponent: f64, aimed: bool) -> Scenar
         grid,
         frame,
         thresholds: Thresholds { sinr_db: 5.0, hotspot_i_over_n_db: 0.0 },
+        draw: None,
     }
 }
 

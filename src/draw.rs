@@ -8,6 +8,7 @@
 //!   (1 − exp(−λπh²)) / (πh²).
 
 use rand::RngExt;
+
 use rand_distr::{Distribution, Poisson};
 use rstar::{RTree, primitives::GeomWithData};
 
@@ -126,5 +127,265 @@ mod tests {
         let parent = poisson(&mut rng, 4e-3, &w);
         let n = thin_independent(&mut rng, parent, 0.25).len() as f64;
         assert!((n - 2000.0).abs() < 4.0 * 2000f64.sqrt(), "{n}");
+    }
+}
+
+use crate::antenna::Pattern;
+use crate::error::Problem;
+use crate::nodes::Node;
+use crate::scenario::{AntennaDefaults, Range, Scenario};
+use geo::{BoundingRect, Contains, MultiPolygon, Point, Polygon};
+use rand::SeedableRng;
+
+/// How drawn nodes are pointed.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub enum Azimuth {
+    /// Uniform on [0, 360).
+    Uniform,
+    /// At a given point (lon, lat).
+    Toward(f64, f64),
+    /// Like the nearest node of the fixed layout.
+    Nearest,
+}
+
+/// Whether drawn nodes join the fixed layout or replace it.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Mode {
+    /// Fixed nodes plus drawn nodes.
+    Add,
+    /// Drawn nodes only.
+    Replace,
+}
+
+/// The `[draw]` table, validated.
+#[derive(Debug, Clone, PartialEq)]
+pub struct DrawSpec {
+    /// Parent density, per km².
+    pub density_per_km2: f64,
+    /// Independent retention probability.
+    pub keep: f64,
+    /// Matérn II hard core, m (0: none).
+    pub hard_core_m: f64,
+    /// Orientation rule.
+    pub azimuth: Azimuth,
+    /// Seed.
+    pub seed: u64,
+    /// Add or replace.
+    pub mode: Mode,
+    /// Areas to draw in (lon/lat); empty: the grid box.
+    pub include: Vec<Polygon<f64>>,
+    /// Areas cut out (features with `kind = "exclusion"`).
+    pub exclude: Vec<Polygon<f64>>,
+    /// Antenna of drawn nodes (the `[antenna]` defaults): pattern, power, height, activity.
+    pub antenna: (Pattern, f64, f64, f64),
+}
+
+impl DrawSpec {
+    /// Validates the raw `[draw]` values; `dir` resolves the areas path.
+    #[allow(clippy::too_many_arguments)]
+    pub fn parse(
+        density_per_km2: f64,
+        areas: Option<&str>,
+        keep: Option<f64>,
+        hard_core_m: Option<f64>,
+        azimuth: Option<&str>,
+        toward: Option<[f64; 2]>,
+        seed: Option<u64>,
+        mode: Option<&str>,
+        antenna: &AntennaDefaults,
+        dir: &std::path::Path,
+        file: &str,
+    ) -> Result<DrawSpec, Vec<Problem>> {
+        let mut probs = Vec::new();
+        let mut bad = |field: &str, msg: String| probs.push(Problem::new(file, Some("[draw]".into()), field, msg));
+        let keep = keep.unwrap_or(1.0);
+        let hard_core_m = hard_core_m.unwrap_or(0.0);
+        for (f, v, r) in [
+            ("density_per_km2", density_per_km2, Range::left_open(0.0, 1e7, "per km²")),
+            ("keep", keep, Range::left_open(0.0, 1.0, "")),
+            ("hard_core_m", hard_core_m, Range::closed(0.0, 10_000.0, "m")),
+        ] {
+            if !r.contains(v) {
+                bad(f, format!("value {v} is outside the allowed range {r}"));
+            }
+        }
+        let az = match (azimuth.unwrap_or("uniform"), toward) {
+            ("uniform", _) => Some(Azimuth::Uniform),
+            ("nearest", _) => Some(Azimuth::Nearest),
+            ("toward", Some([lon, lat])) if (-180.0..=180.0).contains(&lon) && (-85.0..=85.0).contains(&lat) => {
+                Some(Azimuth::Toward(lon, lat))
+            }
+            ("toward", _) => {
+                bad(
+                    "toward",
+                    "needs [lon, lat] in degrees (lon in [-180, 180], lat in [-85, 85]) when azimuth = \"toward\""
+                        .into(),
+                );
+                None
+            }
+            (other, _) => {
+                bad("azimuth", format!("value `{other}` is not one of `uniform`, `toward`, `nearest`"));
+                None
+            }
+        };
+        let mode = match mode.unwrap_or("add") {
+            "add" => Some(Mode::Add),
+            "replace" => Some(Mode::Replace),
+            other => {
+                bad("mode", format!("value `{other}` is not one of `add`, `replace`"));
+                None
+            }
+        };
+        let ant =
+            antenna.resolve(&mut |field, msg| bad(field, format!("drawn nodes take the [antenna] defaults: {msg}")));
+        let (mut include, mut exclude) = (Vec::new(), Vec::new());
+        if let Some(a) = areas {
+            let path = dir.join(a);
+            let pf = path.display().to_string();
+            match std::fs::read_to_string(&path) {
+                Err(e) => bad("areas", format!("cannot read {pf}: {e}")),
+                Ok(text) => match text.parse::<geojson::GeoJson>() {
+                    Ok(geojson::GeoJson::FeatureCollection(fc)) => {
+                        for (i, f) in fc.features.iter().enumerate() {
+                            let excl = f.property("kind").and_then(|v| v.as_str()) == Some("exclusion");
+                            let geom = f.geometry.as_ref().and_then(|g| {
+                                MultiPolygon::<f64>::try_from(g.clone())
+                                    .ok()
+                                    .or_else(|| Polygon::<f64>::try_from(g.clone()).ok().map(|p| MultiPolygon(vec![p])))
+                            });
+                            match geom {
+                                Some(mp) => {
+                                    let all_ok =
+                                        mp.0.iter()
+                                            .flat_map(|p| p.exterior().0.iter())
+                                            .all(|c| (-180.0..=180.0).contains(&c.x) && (-85.0..=85.0).contains(&c.y));
+                                    if !all_ok {
+                                        probs.push(Problem::new(
+                                            &pf,
+                                            Some(format!("feature {i}")),
+                                            "geometry",
+                                            "coordinates outside lon [-180, 180], lat [-85, 85]",
+                                        ));
+                                    }
+                                    if excl { exclude.extend(mp.0) } else { include.extend(mp.0) }
+                                }
+                                None => probs.push(Problem::new(
+                                    &pf,
+                                    Some(format!("feature {i}")),
+                                    "geometry",
+                                    "expected a Polygon or MultiPolygon",
+                                )),
+                            }
+                        }
+                    }
+                    Ok(_) => probs.push(Problem::new(
+                        &pf,
+                        None,
+                        "type",
+                        "expected a FeatureCollection of Polygon/MultiPolygon features",
+                    )),
+                    Err(e) => probs.push(Problem::new(&pf, None, "(document)", format!("not valid GeoJSON: {e}"))),
+                },
+            }
+        }
+        if probs.is_empty()
+            && let (Some(azimuth), Some(mode), Some(antenna)) = (az, mode, ant)
+        {
+            return Ok(DrawSpec {
+                density_per_km2,
+                keep,
+                hard_core_m,
+                azimuth,
+                seed: seed.unwrap_or(1),
+                mode,
+                include,
+                exclude,
+                antenna,
+            });
+        }
+        Err(probs)
+    }
+}
+
+/// Draws one random layout for the scenario with `seed` and returns the layout the map uses:
+/// the fixed nodes plus the drawn ones (`add`) or the drawn ones alone (`replace`). Drawn
+/// ids are `draw-1`, `draw-2`, …
+pub fn layout(sc: &Scenario, spec: &DrawSpec, seed: u64) -> Vec<Node> {
+    let mut rng = rand_pcg::Pcg64::seed_from_u64(seed);
+    let b = sc.grid.bbox();
+    let region_box = if spec.include.is_empty() {
+        (b.west, b.south, b.east, b.north)
+    } else {
+        let r = MultiPolygon(spec.include.clone()).bounding_rect().expect("non-empty");
+        (r.min().x, r.min().y, r.max().x, r.max().y)
+    };
+    let corners = [
+        (region_box.0, region_box.1),
+        (region_box.0, region_box.3),
+        (region_box.2, region_box.1),
+        (region_box.2, region_box.3),
+    ];
+    let local: Vec<(f64, f64)> = corners.iter().map(|&(lon, lat)| sc.frame.to_local(lon, lat)).collect();
+    let w = Window {
+        xmin: local.iter().map(|p| p.0).fold(f64::MAX, f64::min),
+        xmax: local.iter().map(|p| p.0).fold(f64::MIN, f64::max),
+        ymin: local.iter().map(|p| p.1).fold(f64::MAX, f64::min),
+        ymax: local.iter().map(|p| p.1).fold(f64::MIN, f64::max),
+    };
+    let parent = poisson(&mut rng, spec.density_per_km2 / 1e6 * spec.keep, &w);
+    // The process lives in the region: keep parent points inside it, then thin.
+    let geo_pts: Vec<(f64, f64)> = parent.iter().map(|p| sc.frame.to_geo(p[0], p[1])).collect();
+    let inside: Vec<[f64; 2]> = parent
+        .iter()
+        .zip(&geo_pts)
+        .filter(|(_, g)| {
+            let pt = Point::new(g.0, g.1);
+            let inc = if spec.include.is_empty() {
+                g.0 >= b.west && g.0 <= b.east && g.1 >= b.south && g.1 <= b.north
+            } else {
+                spec.include.iter().any(|p| p.contains(&pt))
+            };
+            inc && !spec.exclude.iter().any(|p| p.contains(&pt))
+        })
+        .map(|(p, _)| *p)
+        .collect();
+    let pts = if spec.hard_core_m > 0.0 { thin_matern_ii(&mut rng, inside, spec.hard_core_m, &w) } else { inside };
+    let fixed_tree = rstar::RTree::bulk_load(
+        sc.nodes
+            .iter()
+            .enumerate()
+            .map(|(i, n)| {
+                let (x, y) = sc.frame.to_local(n.lon, n.lat);
+                GeomWithData::new([x, y], i)
+            })
+            .collect(),
+    );
+    let (pattern, power_dbm, height_m, activity) = spec.antenna;
+    let drawn = pts.iter().enumerate().map(|(k, p)| {
+        let (lon, lat) = sc.frame.to_geo(p[0], p[1]);
+        let az = match spec.azimuth {
+            Azimuth::Uniform => rng.random_range(0.0..360.0),
+            Azimuth::Toward(tlon, tlat) => {
+                let (tx, ty) = sc.frame.to_local(tlon, tlat);
+                crate::geodesy::bearing_deg(tx - p[0], ty - p[1])
+            }
+            Azimuth::Nearest => fixed_tree.nearest_neighbor(*p).map(|g| sc.nodes[g.data].azimuth_deg).unwrap_or(0.0),
+        };
+        Node {
+            id: format!("draw-{}", k + 1),
+            lon,
+            lat,
+            azimuth_deg: az,
+            pattern,
+            power_dbm,
+            height_m,
+            activity,
+            peer: None,
+            name: None,
+        }
+    });
+    match spec.mode {
+        Mode::Add => sc.nodes.iter().cloned().chain(drawn).collect(),
+        Mode::Replace => drawn.collect(),
     }
 }

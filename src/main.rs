@@ -56,6 +56,17 @@ enum Cmd {
     /// reference receiver: cumulants, gamma fit, exact CDF, Monte Carlo, planning answers.
     #[command(allow_negative_numbers = true)]
     Aggregate(Box<AggArgs>),
+    /// Draw one random layout from the scenario's [draw] table and write it as GeoJSON.
+    Draw {
+        /// Scenario file (TOML) with a [draw] table.
+        scenario: PathBuf,
+        /// Output GeoJSON file.
+        #[arg(long)]
+        out: PathBuf,
+        /// Seed (default: the [draw] table's).
+        #[arg(long)]
+        seed: Option<u64>,
+    },
     /// Run the map on the bundled demo scenario.
     Demo {
         #[command(flatten)]
@@ -179,6 +190,9 @@ struct MapArgs {
     /// Refuse grids whose layers need more memory than this (MiB).
     #[arg(long, default_value_t = 8192)]
     max_memory_mib: u64,
+    /// With a [draw] table: average the layers over this many independent layouts.
+    #[arg(long, default_value_t = 1)]
+    realizations: usize,
 }
 
 fn main() -> ExitCode {
@@ -254,6 +268,37 @@ fn run(cli: Cli) -> anyhow::Result<ExitCode> {
             }
         }
         Cmd::Aggregate(a) => aggregate_cmd(*a, false),
+        Cmd::Draw { scenario, out, seed } => {
+            let sc = Scenario::load(&scenario)?;
+            let spec = sc.draw.as_ref().ok_or_else(|| {
+                anyhow::Error::from(Error::input(Problem::new(
+                    scenario.display().to_string(),
+                    None,
+                    "draw",
+                    "missing: add a [draw] table (density_per_km2, ...)",
+                )))
+            })?;
+            let t0 = std::time::Instant::now();
+            let nodes = lobemap::draw::layout(&sc, spec, seed.unwrap_or(spec.seed));
+            let drawn = nodes.iter().filter(|n| n.id.starts_with("draw-")).count();
+            let dir = out.parent().filter(|p| !p.as_os_str().is_empty()).unwrap_or(Path::new("."));
+            let name = out
+                .file_name()
+                .and_then(|n| n.to_str())
+                .ok_or_else(|| bad_flag("--out", "needs a file name".into()))?;
+            let mut st = lobemap::output::Staging::new(dir, &[&sc.path, &sc.nodes_path])?;
+            st.write(name, lobemap::nodes::layout_geojson(&nodes).to_string().as_bytes())?;
+            st.commit()?;
+            if !cli.quiet {
+                eprintln!(
+                    "drew {drawn} nodes ({} in the layout) in {:.2} s; wrote {}",
+                    nodes.len(),
+                    t0.elapsed().as_secs_f64(),
+                    out.display()
+                );
+            }
+            Ok(ExitCode::SUCCESS)
+        }
         Cmd::Check { scenario, max_memory_mib } => match Scenario::load(&scenario) {
             Ok(sc) => {
                 lobemap::run::check_memory(&sc, 4, max_memory_mib)?;
@@ -310,6 +355,18 @@ fn map_cmd(sc: &Scenario, a: MapArgs, quiet: bool, default_out: Option<&str>) ->
     }
     let out =
         a.out.unwrap_or_else(|| PathBuf::from(default_out.map(String::from).unwrap_or(format!("outputs/{}", sc.name))));
+    if a.realizations == 0 || a.realizations > 10_000 {
+        return Err(bad_flag(
+            "--realizations",
+            format!("value {} is outside the allowed range [1, 10000]", a.realizations),
+        ));
+    }
+    if a.realizations > 1 && sc.draw.is_none() {
+        return Err(bad_flag(
+            "--realizations",
+            "averaging needs random layouts: add a [draw] table to the scenario".into(),
+        ));
+    }
     let res = run_map(
         sc,
         &MapOptions {
@@ -318,6 +375,7 @@ fn map_cmd(sc: &Scenario, a: MapArgs, quiet: bool, default_out: Option<&str>) ->
             cutoff_m: a.cutoff_m,
             max_memory_mib: a.max_memory_mib,
             progress: !quiet,
+            realizations: a.realizations,
         },
     )?;
     if !quiet {

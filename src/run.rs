@@ -28,6 +28,8 @@ pub struct MapOptions {
     pub max_memory_mib: u64,
     /// Show progress.
     pub progress: bool,
+    /// With a `[draw]` table: independent random layouts to average over (≥ 1).
+    pub realizations: usize,
 }
 
 /// What the map job produced.
@@ -90,8 +92,12 @@ pub fn run_map(sc: &Scenario, opts: &MapOptions) -> Result<MapResult, Error> {
     check_memory(sc, opts.layers.count(), opts.max_memory_mib)?;
     let mut st = Staging::new(&opts.out, &[&sc.path, &sc.nodes_path])?;
     let t0 = Instant::now();
-    let engine = Engine::new(sc);
-    let layers = engine.run(&Options { layers: opts.layers, cutoff_m: opts.cutoff_m, progress: opts.progress });
+    let eopts = Options { layers: opts.layers, cutoff_m: opts.cutoff_m, progress: opts.progress };
+    let (layers, used) = match &sc.draw {
+        None => (Engine::new(sc).run(&eopts), sc.clone()),
+        Some(spec) => ensemble(sc, spec, &eopts, opts.realizations.max(1)),
+    };
+    let sc = &used;
     let elapsed_s = t0.elapsed().as_secs_f64();
     let noise_dbm = sc.noise_dbm();
     let grid = &sc.grid;
@@ -158,7 +164,7 @@ pub fn run_map(sc: &Scenario, opts: &MapOptions) -> Result<MapResult, Error> {
         png(&mut st, "sinr", "Mean SINR", "dB", s, &[])?;
         files.extend(["sinr.tif", "sinr.png", "sinr.pgw"]);
     }
-    if let Some(v) = &layers.server {
+    if let Some(v) = layers.server.as_ref().filter(|_| opts.realizations <= 1) {
         tif(&mut st, "server.tif", v)?;
         files.push("server.tif");
     }
@@ -204,12 +210,60 @@ pub fn run_map(sc: &Scenario, opts: &MapOptions) -> Result<MapResult, Error> {
         pair_evaluations: layers.pair_evaluations,
         elapsed_s: (elapsed_s * 1000.0).round() / 1000.0,
         files: files.iter().map(|s| s.to_string()).collect(),
+        realizations: sc.draw.as_ref().map(|_| opts.realizations.max(1)),
+        drawn_nodes: sc.draw.as_ref().map(|_| sc.nodes.iter().filter(|n| n.id.starts_with("draw-")).count()),
     };
     let json = serde_json::to_string_pretty(&summary)
         .map_err(|e| Error::Output { path: opts.out.join("summary.json"), source: e.into() })?;
     st.write("summary.json", json.as_bytes())?;
     let written = st.commit()?;
     Ok(MapResult { summary, layers, files: written })
+}
+
+/// Runs the engine over `n` drawn layouts (seeds seed, seed+1, …) and averages: `total` and
+/// `interference` as ensemble means in mW, `sinr` as the mean of its dB values; `server` is
+/// left out when n > 1. Returns the layers and the scenario with the first drawn layout.
+fn ensemble(sc: &Scenario, spec: &crate::draw::DrawSpec, eopts: &Options, n: usize) -> (Layers, Scenario) {
+    let first = Scenario { nodes: crate::draw::layout(sc, spec, spec.seed), ..sc.clone() };
+    let mut acc = Engine::new(&first).run(eopts);
+    if n == 1 {
+        return (acc, first);
+    }
+    let to_mw = |v: &mut Vec<f32>| {
+        v.iter_mut().for_each(|x| *x = if *x == crate::NODATA { 0.0 } else { 10f32.powf(*x / 10.0) })
+    };
+    for l in [&mut acc.total, &mut acc.interference].into_iter().flatten() {
+        to_mw(l);
+    }
+    acc.server = None;
+    for i in 1..n {
+        let sci = Scenario { nodes: crate::draw::layout(sc, spec, spec.seed + i as u64), ..sc.clone() };
+        let mut l = Engine::new(&sci).run(eopts);
+        for (a, b) in [(&mut acc.total, &mut l.total), (&mut acc.interference, &mut l.interference)] {
+            if let (Some(a), Some(b)) = (a, b) {
+                to_mw(b);
+                a.iter_mut().zip(b.iter()).for_each(|(x, y)| *x += *y);
+            }
+        }
+        if let (Some(a), Some(b)) = (&mut acc.sinr, &l.sinr) {
+            a.iter_mut().zip(b).for_each(|(x, y)| {
+                *x = if *x == crate::NODATA || *y == crate::NODATA { crate::NODATA } else { *x + *y }
+            });
+        }
+        acc.pair_evaluations += l.pair_evaluations;
+        acc.neglected_db = match (acc.neglected_db, l.neglected_db) {
+            (Some(a), Some(b)) => Some(a.max(b)),
+            (a, b) => a.or(b),
+        };
+    }
+    let nf = n as f32;
+    for l in [&mut acc.total, &mut acc.interference].into_iter().flatten() {
+        l.iter_mut().for_each(|x| *x = if *x > 0.0 { 10.0 * (*x / nf).log10() } else { crate::NODATA });
+    }
+    if let Some(s) = &mut acc.sinr {
+        s.iter_mut().filter(|x| **x != crate::NODATA).for_each(|x| *x /= nf);
+    }
+    (acc, first)
 }
 
 fn round2(x: f64) -> f64 {

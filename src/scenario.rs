@@ -144,6 +144,20 @@ struct RawScenario {
     grid: RawGrid,
     #[serde(default)]
     thresholds: RawThresholds,
+    draw: Option<RawDraw>,
+}
+
+#[derive(Debug, Deserialize)]
+#[serde(deny_unknown_fields)]
+struct RawDraw {
+    density_per_km2: f64,
+    areas: Option<String>,
+    keep: Option<f64>,
+    hard_core_m: Option<f64>,
+    azimuth: Option<String>,
+    toward: Option<[f64; 2]>,
+    seed: Option<u64>,
+    mode: Option<String>,
 }
 
 #[derive(Debug, Deserialize)]
@@ -251,6 +265,8 @@ pub struct Scenario {
     pub frame: LocalFrame,
     /// Decision thresholds.
     pub thresholds: Thresholds,
+    /// Random layout drawn around (or instead of) the fixed nodes.
+    pub draw: Option<crate::draw::DrawSpec>,
 }
 
 fn toml_problem(file: &str, e: &toml::de::Error) -> Problem {
@@ -433,6 +449,23 @@ impl Scenario {
             }
             (None, _, None) => None,
         };
+        let draw = raw.draw.as_ref().and_then(|d| {
+            crate::draw::DrawSpec::parse(
+                d.density_per_km2,
+                d.areas.as_deref(),
+                d.keep,
+                d.hard_core_m,
+                d.azimuth.as_deref(),
+                d.toward,
+                d.seed,
+                d.mode.as_deref(),
+                &raw.antenna,
+                dir,
+                &file,
+            )
+            .map_err(|e| probs.0.extend(e))
+            .ok()
+        });
         probs.into_result()?;
         let (pathloss, nodes, bbox, receiver_pattern) = match (pathloss, nodes, bbox, receiver_pattern) {
             (Some(a), Some(b), Some(c), Some(d)) => (a, b, c, d),
@@ -456,6 +489,7 @@ impl Scenario {
             grid,
             frame: LocalFrame::new(clat, clon),
             thresholds: thr,
+            draw,
         })
     }
 

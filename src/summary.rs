@@ -78,4 +78,10 @@ pub struct Summary {
     pub elapsed_s: f64,
     /// Files written, relative to the output folder.
     pub files: Vec<String>,
+    /// With `[draw]`: layouts averaged (total and interference in mW, SINR in dB).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub realizations: Option<usize>,
+    /// With `[draw]`: nodes drawn in the first layout (the one in layout.geojson).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub drawn_nodes: Option<usize>,
 }

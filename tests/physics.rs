@@ -42,6 +42,7 @@ fn scenario(nodes: Vec<Node>, pathloss: PathLoss, bbox: BBox, cell_m: f64, rx_he
         grid,
         frame: LocalFrame::new(lat, lon),
         thresholds: Thresholds { sinr_db: 5.0, hotspot_i_over_n_db: 0.0 },
+        draw: None,
     }
 }
 
