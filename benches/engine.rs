@@ -55,8 +55,11 @@ fn layout(nodes: usize, cells_side: usize, exponent: f64, aimed: bool) -> Scenar
         receiver: Receiver { height_m: 1.5, pattern: rx, aimed },
         grid,
         frame,
-        thresholds: Thresholds { sinr_db: 5.0, hotspot_i_over_n_db: 0.0 },
+        thresholds: Thresholds { sinr_db: 5.0, hotspot_i_over_n_db: 0.0, coverage_target: 0.9 },
         draw: None,
+        fading: Default::default(),
+        links: lobemap::scenario::LinkSettings { capacity_gap_db: 3.0, max_spectral_efficiency: 8.0 },
+        install: lobemap::scenario::InstallSettings { declination_date: (2026, 1) },
     }
 }
 
@@ -84,13 +87,28 @@ fn main() {
     let reps = if quick { 1 } else { 5 };
     let threads = rayon::current_num_threads();
     println!("lobemap engine benchmark, {threads} threads");
-    let total = LayerSet { total: true, interference: false, sinr: false, server: false };
-    let sinr = LayerSet { total: false, interference: false, sinr: true, server: false };
+    let total = LayerSet::TOTAL;
+    let sinr = LayerSet { sinr: true, total: false, ..LayerSet::TOTAL };
+    let coverage = LayerSet { coverage: true, total: false, ..LayerSet::TOTAL };
     let sc = layout(1000, 1000, 2.0, false);
     measure("total, sector, exponent 2", &sc, total, reps);
     measure("sinr (server + interference), omni rx", &sc, sinr, reps);
     let sc_aim = layout(1000, 1000, 2.0, true);
     measure("sinr, aimed rx (two passes)", &sc_aim, sinr, reps);
+    let mut sc_ray = layout(1000, 1000, 2.0, true);
+    sc_ray.fading = lobemap::scenario::FadingSpec {
+        signal: lobemap::fading::Fading::Rayleigh,
+        interferer: lobemap::fading::Fading::Rayleigh,
+        shadowing_db: 0.0,
+    };
+    measure("coverage exact (Rayleigh), aimed rx", &sc_ray, coverage, reps);
+    let mut sc_ric = layout(1000, 1000, 2.0, true);
+    sc_ric.fading = lobemap::scenario::FadingSpec {
+        signal: lobemap::fading::Fading::Rician { k: 4.0 },
+        interferer: lobemap::fading::Fading::Rayleigh,
+        shadowing_db: 0.0,
+    };
+    measure("coverage moment (Rician signal), aimed rx", &sc_ric, coverage, reps);
     let sc3 = layout(1000, 1000, 3.0, false);
     measure("total, sector, exponent 3", &sc3, total, reps);
     let sc35 = layout(1000, 500, 3.5, false);

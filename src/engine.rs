@@ -33,37 +33,47 @@ pub struct LayerSet {
     pub sinr: bool,
     /// Best server index.
     pub server: bool,
+    /// Coverage probability P[SINR ≥ T] with fading.
+    pub coverage: bool,
 }
 
 impl LayerSet {
     /// Every layer.
-    pub const ALL: LayerSet = LayerSet { total: true, interference: true, sinr: true, server: true };
+    pub const ALL: LayerSet = LayerSet { total: true, interference: true, sinr: true, server: true, coverage: true };
+    /// Only `total`.
+    pub const TOTAL: LayerSet =
+        LayerSet { total: true, interference: false, sinr: false, server: false, coverage: false };
 
     /// Parses a comma-separated list such as `total,sinr`.
     pub fn parse(s: &str) -> Result<LayerSet, String> {
-        let mut l = LayerSet { total: false, interference: false, sinr: false, server: false };
+        let mut l = LayerSet { total: false, interference: false, sinr: false, server: false, coverage: false };
         for name in s.split(',').map(str::trim).filter(|x| !x.is_empty()) {
             match name {
                 "total" => l.total = true,
                 "interference" => l.interference = true,
                 "sinr" => l.sinr = true,
                 "server" => l.server = true,
-                other => return Err(format!("unknown layer `{other}`; allowed: total, interference, sinr, server")),
+                "coverage" => l.coverage = true,
+                other => {
+                    return Err(format!(
+                        "unknown layer `{other}`; allowed: total, interference, sinr, server, coverage"
+                    ));
+                }
             }
         }
         if l.count() == 0 {
-            return Err("no layer named; allowed: total, interference, sinr, server".into());
+            return Err("no layer named; allowed: total, interference, sinr, server, coverage".into());
         }
         Ok(l)
     }
 
     /// Number of layers selected.
     pub fn count(&self) -> usize {
-        [self.total, self.interference, self.sinr, self.server].iter().filter(|b| **b).count()
+        [self.total, self.interference, self.sinr, self.server, self.coverage].iter().filter(|b| **b).count()
     }
 
     fn needs_server(&self) -> bool {
-        self.interference || self.sinr || self.server
+        self.interference || self.sinr || self.server || self.coverage
     }
 }
 
@@ -91,6 +101,8 @@ pub struct Layers {
     pub sinr: Option<Vec<f32>>,
     /// `server`, node index.
     pub server: Option<Vec<f32>>,
+    /// `coverage`, probability 0..1.
+    pub coverage: Option<Vec<f32>>,
     /// Node-cell pair evaluations performed.
     pub pair_evaluations: u64,
     /// With a cutoff: the worst cell's upper bound on the dropped power, dB relative to noise.
@@ -245,6 +257,9 @@ struct RowBufs {
     ux: Vec<f32>,
     uy: Vec<f32>,
     iacc: Vec<f32>,
+    tinv: Vec<f32>,
+    cacc: Vec<f32>,
+    cvar: Vec<f32>,
 }
 
 impl RowBufs {
@@ -259,6 +274,9 @@ impl RowBufs {
             ux: vec![0.0; n],
             uy: vec![0.0; n],
             iacc: vec![0.0; n],
+            tinv: vec![0.0; n],
+            cacc: vec![0.0; n],
+            cvar: vec![0.0; n],
         }
     }
 }
@@ -316,6 +334,84 @@ fn pass_aimed<D: Decay, G: TxGain>(d: D, g: G, n: &NodeK, rx: (f32, f32, f32), b
     }
 }
 
+/// The interferers' Laplace transform E[e^{−t h}] in the vectorisable form.
+trait Lt: Copy {
+    fn l(self, t: f32) -> f32;
+}
+#[derive(Clone, Copy)]
+struct LtNone;
+#[derive(Clone, Copy)]
+struct LtRayleigh;
+#[derive(Clone, Copy)]
+struct LtNakagami(f32);
+#[derive(Clone, Copy)]
+struct LtRician(f32);
+impl Lt for LtNone {
+    #[inline(always)]
+    fn l(self, t: f32) -> f32 {
+        fast_exp2(-t * std::f32::consts::LOG2_E)
+    }
+}
+impl Lt for LtRayleigh {
+    #[inline(always)]
+    fn l(self, t: f32) -> f32 {
+        1.0 / (1.0 + t)
+    }
+}
+impl Lt for LtNakagami {
+    #[inline(always)]
+    fn l(self, t: f32) -> f32 {
+        fast_exp2(-self.0 * fast_log2(1.0 + t / self.0))
+    }
+}
+impl Lt for LtRician {
+    #[inline(always)]
+    fn l(self, t: f32) -> f32 {
+        let d = 1.0 + self.0 + t;
+        (1.0 + self.0) / d * fast_exp2(-self.0 * t / d * std::f32::consts::LOG2_E)
+    }
+}
+
+/// Coverage, exact form: Σ log2(1 − a + a L(T p g_rx / S)) over interferers.
+#[inline(always)]
+fn pass_cov_exact<D: Decay, G: TxGain, L: Lt>(d: D, g: G, lt: L, n: &NodeK, rx: (f32, f32, f32), b: &mut RowBufs) {
+    let (rcc, rmain, rside) = rx;
+    let len = b.xs.len();
+    let (xs, ys, ux, uy, server, tinv, acc) =
+        (&b.xs[..len], &b.ys[..len], &b.ux[..len], &b.uy[..len], &b.server[..len], &b.tinv[..len], &mut b.cacc[..len]);
+    for c in 0..len {
+        let wx = xs[c] - n.x;
+        let wy = ys[c] - n.y;
+        let w2 = wx * wx + wy * wy;
+        let p = g.eval(n, wx, wy, w2) * d.inv(w2 + n.dz2);
+        let t = -(ux[c] * wx + uy[c] * wy);
+        let gr = if t * t.abs() >= rcc * w2 { rmain } else { rside };
+        let term = 1.0 - n.act + n.act * lt.l(tinv[c] * p * gr);
+        let own = server[c] == n.idx;
+        acc[c] += if own { 0.0 } else { fast_log2(term) };
+    }
+}
+
+/// Coverage, moment form: Σ a p g_rx and Σ (a e2 − a² e1²)(p g_rx)².
+#[inline(always)]
+fn pass_cov_moment<D: Decay, G: TxGain>(d: D, g: G, n: &NodeK, rx: (f32, f32, f32), coef: f32, b: &mut RowBufs) {
+    let (rcc, rmain, rside) = rx;
+    let len = b.xs.len();
+    let (xs, ys, ux, uy, server) = (&b.xs[..len], &b.ys[..len], &b.ux[..len], &b.uy[..len], &b.server[..len]);
+    let (acc, var) = (&mut b.cacc[..len], &mut b.cvar[..len]);
+    for c in 0..len {
+        let wx = xs[c] - n.x;
+        let wy = ys[c] - n.y;
+        let w2 = wx * wx + wy * wy;
+        let p = g.eval(n, wx, wy, w2) * d.inv(w2 + n.dz2);
+        let t = -(ux[c] * wx + uy[c] * wy);
+        let q = p * if t * t.abs() >= rcc * w2 { rmain } else { rside };
+        let own = server[c] == n.idx;
+        acc[c] += if own { 0.0 } else { n.act * q };
+        var[c] += if own { 0.0 } else { coef * q * q };
+    }
+}
+
 /// Prepared nodes and model, ready to run over the grid.
 pub struct Engine<'s> {
     sc: &'s Scenario,
@@ -328,6 +424,7 @@ pub struct Engine<'s> {
     g_omni: f32,
     rx_aim: Option<(f32, f32, f32)>,
     g_signal: f32,
+    cov: crate::coverage::CoverageModel,
 }
 
 impl<'s> Engine<'s> {
@@ -398,7 +495,13 @@ impl<'s> Engine<'s> {
             g_omni: db_to_lin(sc.receiver.omni_gain_dbi()) as f32,
             rx_aim,
             g_signal: db_to_lin(rxp.max_gain_dbi()) as f32,
+            cov: crate::coverage::CoverageModel::new(sc.fading, sc.thresholds.sinr_db, sc.noise_dbm()),
         }
+    }
+
+    /// How the coverage layer is computed.
+    pub fn coverage_method(&self) -> crate::coverage::Method {
+        self.cov.method
     }
 
     /// Node indices within `radius_m` (horizontal) of a local point, nearest first (R-tree).
@@ -441,6 +544,7 @@ impl<'s> Engine<'s> {
         let mut interference = alloc(l.interference);
         let mut sinr = alloc(l.sinr);
         let mut server = alloc(l.server);
+        let mut coverage = alloc(l.coverage);
         fn chunks(v: &mut Option<Vec<f32>>, cols: usize, rows: usize) -> Vec<Option<&mut [f32]>> {
             match v {
                 Some(v) => v.chunks_mut(cols).map(Some).collect(),
@@ -452,8 +556,9 @@ impl<'s> Engine<'s> {
             .zip(chunks(&mut interference, cols, rows))
             .zip(chunks(&mut sinr, cols, rows))
             .zip(chunks(&mut server, cols, rows))
+            .zip(chunks(&mut coverage, cols, rows))
             .enumerate()
-            .map(|(r, (((t, i), s), v))| (r, t, i, s, v))
+            .map(|(r, ((((t, i), s), v), cv))| (r, [t, i, s, v, cv]))
             .collect();
         let bar = if opts.progress && rows * cols * self.nodes.len() > 50_000_000 {
             let b = indicatif::ProgressBar::new(rows as u64);
@@ -470,8 +575,8 @@ impl<'s> Engine<'s> {
             .into_par_iter()
             .map_init(
                 || RowBufs::new(cols),
-                |bufs, (r, t, i, s, v)| {
-                    let out = self.row(d, r, l, opts.cutoff_m, bufs, [t, i, s, v]);
+                |bufs, (r, out)| {
+                    let out = self.row(d, r, l, opts.cutoff_m, bufs, out);
                     bar.inc(1);
                     out
                 },
@@ -483,7 +588,7 @@ impl<'s> Engine<'s> {
             let worst = per_row.iter().map(|x| x.1).fold(0.0, f64::max);
             if worst > 0.0 { lin_to_db(worst / self.noise_mw) } else { -300.0 }
         });
-        Layers { total, interference, sinr, server, pair_evaluations: pairs, neglected_db: neglected }
+        Layers { total, interference, sinr, server, coverage, pair_evaluations: pairs, neglected_db: neglected }
     }
 
     /// One row; returns (pair evaluations, bound on dropped power in mW).
@@ -494,7 +599,7 @@ impl<'s> Engine<'s> {
         l: LayerSet,
         cutoff: Option<f64>,
         b: &mut RowBufs,
-        out: [Option<&mut [f32]>; 4],
+        out: [Option<&mut [f32]>; 5],
     ) -> (u64, f64) {
         #[cfg(target_arch = "x86_64")]
         {
@@ -519,7 +624,7 @@ impl<'s> Engine<'s> {
         l: LayerSet,
         cutoff: Option<f64>,
         b: &mut RowBufs,
-        out: [Option<&mut [f32]>; 4],
+        out: [Option<&mut [f32]>; 5],
     ) -> (u64, f64) {
         self.row_body(d, r, l, cutoff, b, out)
     }
@@ -533,7 +638,7 @@ impl<'s> Engine<'s> {
         l: LayerSet,
         cutoff: Option<f64>,
         b: &mut RowBufs,
-        out: [Option<&mut [f32]>; 4],
+        out: [Option<&mut [f32]>; 5],
     ) -> (u64, f64) {
         self.row_body(d, r, l, cutoff, b, out)
     }
@@ -546,7 +651,7 @@ impl<'s> Engine<'s> {
         l: LayerSet,
         cutoff: Option<f64>,
         b: &mut RowBufs,
-        out: [Option<&mut [f32]>; 4],
+        out: [Option<&mut [f32]>; 5],
     ) -> (u64, f64) {
         let g = &self.sc.grid;
         let cols = g.cols();
@@ -604,7 +709,7 @@ impl<'s> Engine<'s> {
             pairs += cols as u64;
         }
         let aimed_needed = self.rx_aim.is_some() && (l.interference || l.sinr);
-        if let (Some(rx), true) = (self.rx_aim, aimed_needed) {
+        if self.rx_aim.is_some() && (aimed_needed || l.coverage) {
             for c in 0..cols {
                 let s = b.server[c];
                 let (ux, uy) = if s == u32::MAX {
@@ -618,6 +723,8 @@ impl<'s> Engine<'s> {
                 b.ux[c] = ux;
                 b.uy[c] = uy;
             }
+        }
+        if let (Some(rx), true) = (self.rx_aim, aimed_needed) {
             b.iacc.fill(0.0);
             for &k in &cand {
                 let n = &self.nodes[k];
@@ -628,9 +735,61 @@ impl<'s> Engine<'s> {
                 pairs += cols as u64;
             }
         }
+        if l.coverage {
+            // An omni receiver is the aimed kernel with an always-true beam test.
+            let rx = self.rx_aim.unwrap_or((-1.0, self.g_omni, self.g_omni));
+            let t_lin = self.cov.t_lin as f32;
+            for c in 0..cols {
+                let sig = self.g_signal * b.best[c];
+                b.tinv[c] = if sig > 0.0 { t_lin / sig } else { 0.0 };
+            }
+            b.cacc.fill(0.0);
+            b.cvar.fill(0.0);
+            let exact = self.cov.method == crate::coverage::Method::Exact;
+            let (e1, e2) = (self.cov.e1 as f32, self.cov.e2 as f32);
+            for &k in &cand {
+                let n = &self.nodes[k];
+                macro_rules! lt_pass {
+                    ($lt:expr) => {
+                        match n.lut {
+                            None => pass_cov_exact(d, Flat, $lt, n, rx, b),
+                            Some(t) => pass_cov_exact(d, Table(&self.luts[t]), $lt, n, rx, b),
+                        }
+                    };
+                }
+                if exact {
+                    match self.cov.spec.interferer {
+                        crate::fading::Fading::None => lt_pass!(LtNone),
+                        crate::fading::Fading::Rayleigh => lt_pass!(LtRayleigh),
+                        crate::fading::Fading::Nakagami { m } => lt_pass!(LtNakagami(m as f32)),
+                        crate::fading::Fading::Rician { k } => lt_pass!(LtRician(k as f32)),
+                    }
+                } else {
+                    let coef = n.act * e2 - n.act * n.act * e1 * e1;
+                    match n.lut {
+                        None => pass_cov_moment(d, Flat, n, rx, coef, b),
+                        Some(t) => pass_cov_moment(d, Table(&self.luts[t]), n, rx, coef, b),
+                    }
+                }
+                pairs += cols as u64;
+            }
+        }
         let db = |v: f32| if v > 0.0 { 10.0 * v.log10() } else { NODATA };
         let noise = self.noise_mw as f32;
-        let [mut t, mut i, mut s, mut v] = out;
+        let [mut t, mut i, mut s, mut v, cv] = out;
+        if let Some(cv) = cv {
+            let exact = self.cov.method == crate::coverage::Method::Exact;
+            for (c, out) in cv.iter_mut().enumerate() {
+                let sig = (self.g_signal * b.best[c]) as f64;
+                *out = if b.server[c] == u32::MAX || sig <= 0.0 {
+                    NODATA
+                } else if exact {
+                    self.cov.from_log2_product(sig, b.cacc[c] as f64) as f32
+                } else {
+                    self.cov.from_moments(sig, b.cacc[c] as f64, b.cvar[c] as f64) as f32
+                };
+            }
+        }
         for c in 0..cols {
             let all = if full { b.other[c] + b.bestw[c] } else { b.other[c] };
             let interf = if aimed_needed { b.iacc[c] } else { self.g_omni * b.other[c] };

@@ -76,30 +76,7 @@ pub struct Field {
     pub pathloss: PathLoss,
 }
 
-/// Gauss–Legendre nodes and weights on [−1, 1] (Newton on the Legendre recurrence).
-pub fn gauss_legendre(n: usize) -> Vec<(f64, f64)> {
-    let mut out = Vec::with_capacity(n);
-    for i in 0..n {
-        let mut x = (PI * (i as f64 + 0.75) / (n as f64 + 0.5)).cos();
-        let mut dp = 0.0;
-        for _ in 0..100 {
-            let (mut p0, mut p1) = (1.0, x);
-            for k in 2..=n {
-                let p2 = ((2 * k - 1) as f64 * x * p1 - (k - 1) as f64 * p0) / k as f64;
-                p0 = p1;
-                p1 = p2;
-            }
-            dp = n as f64 * (x * p1 - p0) / (x * x - 1.0);
-            let dx = p1 / dp;
-            x -= dx;
-            if dx.abs() < 1e-15 {
-                break;
-            }
-        }
-        out.push((x, 2.0 / ((1.0 - x * x) * dp * dp)));
-    }
-    out
-}
+pub use crate::quadrature::gauss_legendre;
 
 /// Radial quadrature of ∫_{guard}^{radius} f(r) 2πr dr as (r, weight) pairs, with the
 /// constant-gain disc inside the minimum distance handled separately by the caller.
@@ -260,16 +237,6 @@ mod tests {
             pathloss: PathLoss::new(Law::PowerLaw { exponent: alpha, loss_at_1m_db: 0.0 }, 2.0, 0.0, 1e-3, "t")
                 .unwrap(),
         }
-    }
-
-    // Gauss–Legendre rules integrate polynomials of degree 2n−1 exactly (Abramowitz and
-    // Stegun 25.4.29): ∫_{−1}^{1} x^14 dx = 2/15 with 8 points.
-    #[test]
-    fn gauss_legendre_exactness() {
-        let gl = gauss_legendre(8);
-        let s: f64 = gl.iter().map(|(x, w)| w * x.powi(14)).sum();
-        assert!((s - 2.0 / 15.0).abs() < 1e-14);
-        assert!((gl.iter().map(|g| g.1).sum::<f64>() - 2.0).abs() < 1e-14);
     }
 
     // Closed-form cumulants on an annulus (Campbell; hand integration in the module docs)

@@ -3,7 +3,6 @@
 use clap::{Parser, Subcommand};
 use lobemap::engine::LayerSet;
 use lobemap::error::{Error, Problem};
-use lobemap::probe::probe;
 use lobemap::run::{MapOptions, run_map};
 use lobemap::scenario::Scenario;
 use std::path::{Path, PathBuf};
@@ -43,6 +42,39 @@ enum Cmd {
         /// Print JSON instead of a table.
         #[arg(long)]
         json: bool,
+        /// Cross-check the coverage probability with this many seeded Monte Carlo trials.
+        #[arg(long, value_name = "N")]
+        monte_carlo: Option<usize>,
+        /// Seed of the Monte Carlo.
+        #[arg(long, default_value_t = 1)]
+        seed: u64,
+    },
+    /// Check every planned link (node with a `peer`) and write the link table, the installer
+    /// sheet and the HTML report.
+    Links {
+        /// Scenario file (TOML).
+        scenario: PathBuf,
+        /// Output folder (default: outputs/<scenario name>/).
+        #[arg(long)]
+        out: Option<PathBuf>,
+        /// Exit with code 3 when any link misses its SINR threshold or coverage target.
+        #[arg(long)]
+        strict: bool,
+        /// Cross-check each link's coverage with this many seeded Monte Carlo trials.
+        #[arg(long, value_name = "N")]
+        monte_carlo: Option<usize>,
+        /// Seed of the Monte Carlo (link k uses seed + k).
+        #[arg(long, default_value_t = 1)]
+        seed: u64,
+        /// Leave the maps out of the report (faster on large grids).
+        #[arg(long)]
+        no_maps: bool,
+        /// Print the rows as JSON instead of a table.
+        #[arg(long)]
+        json: bool,
+        /// Refuse map grids whose layers need more memory than this (MiB).
+        #[arg(long, default_value_t = 8192)]
+        max_memory_mib: u64,
     },
     /// Validate a scenario and its node file; list every problem.
     Check {
@@ -180,8 +212,8 @@ struct MapArgs {
     /// Output folder (default: outputs/<scenario name>/, or outputs/demo/ for the demo).
     #[arg(long)]
     out: Option<PathBuf>,
-    /// Layers to compute and write, comma-separated: total, interference, sinr, server.
-    #[arg(long, default_value = "total,interference,sinr,server")]
+    /// Layers to compute and write, comma-separated: total, interference, sinr, server, coverage.
+    #[arg(long, default_value = "total,interference,sinr,server,coverage")]
     layers: String,
     /// Skip nodes farther than this from a grid row (m); the dropped power is bounded and
     /// reported as `neglected_db` in summary.json.
@@ -263,11 +295,17 @@ fn run(cli: Cli) -> anyhow::Result<ExitCode> {
                 agg_out.to_str().unwrap_or_default(),
             ];
             match Cli::try_parse_from(args)?.cmd {
-                Cmd::Aggregate(a) => aggregate_cmd(*a, cli.quiet),
+                Cmd::Aggregate(a) => aggregate_cmd(*a, cli.quiet)?,
                 _ => unreachable!("parsed an aggregate command"),
-            }
+            };
+            links_cmd(&sc, Some(out), false, None, true, false, 8192, cli.quiet)
         }
         Cmd::Aggregate(a) => aggregate_cmd(*a, false),
+        Cmd::Links { scenario, out, strict, monte_carlo, seed, no_maps, json, max_memory_mib } => {
+            check_trials(monte_carlo)?;
+            let sc = Scenario::load(&scenario)?;
+            links_cmd(&sc, out, strict, monte_carlo.map(|n| (n, seed)), !no_maps, json, max_memory_mib, cli.quiet)
+        }
         Cmd::Draw { scenario, out, seed } => {
             let sc = Scenario::load(&scenario)?;
             let spec = sc.draw.as_ref().ok_or_else(|| {
@@ -315,10 +353,11 @@ fn run(cli: Cli) -> anyhow::Result<ExitCode> {
             }
             Err(e) => Err(e.into()),
         },
-        Cmd::Probe { scenario, at, json } => {
+        Cmd::Probe { scenario, at, json, monte_carlo, seed } => {
             let (lat, lon) = parse_lat_lon(&at)?;
+            check_trials(monte_carlo)?;
             let sc = Scenario::load(&scenario)?;
-            let p = probe(&sc, lat, lon);
+            let p = lobemap::probe::probe_with(&sc, lat, lon, monte_carlo.map(|n| (n, seed)));
             if json {
                 println!("{}", serde_json::to_string_pretty(&p)?);
             } else {
@@ -326,6 +365,15 @@ fn run(cli: Cli) -> anyhow::Result<ExitCode> {
             }
             Ok(ExitCode::SUCCESS)
         }
+    }
+}
+
+fn check_trials(n: Option<usize>) -> anyhow::Result<()> {
+    match n {
+        Some(n) if n == 0 || n > 100_000_000 => {
+            Err(bad_flag("--monte-carlo", format!("value {n} is outside the allowed range [1, 1e8]")))
+        }
+        _ => Ok(()),
     }
 }
 
@@ -573,6 +621,36 @@ fn aggregate_cmd(a: AggArgs, quiet: bool) -> anyhow::Result<ExitCode> {
             files.len(),
             a.out.as_ref().map(|p| p.display().to_string()).unwrap_or_default()
         );
+    }
+    Ok(ExitCode::SUCCESS)
+}
+
+#[allow(clippy::too_many_arguments)]
+fn links_cmd(
+    sc: &Scenario,
+    out: Option<PathBuf>,
+    strict: bool,
+    monte_carlo: Option<(usize, u64)>,
+    maps: bool,
+    json: bool,
+    max_memory_mib: u64,
+    quiet: bool,
+) -> anyhow::Result<ExitCode> {
+    let out = out.unwrap_or_else(|| PathBuf::from(format!("outputs/{}", sc.name)));
+    let res = lobemap::run::run_links(
+        sc,
+        &lobemap::run::LinksOptions { out: out.clone(), monte_carlo, maps, max_memory_mib },
+    )?;
+    if json {
+        println!("{}", serde_json::to_string_pretty(&res.rows)?);
+    } else if !quiet {
+        print!("{}", lobemap::links::table(&res.rows, sc.thresholds.sinr_db, sc.thresholds.coverage_target));
+    }
+    if !quiet {
+        eprintln!("wrote {} files to {}", res.files.len(), out.display());
+    }
+    if strict && res.rows.iter().any(|r| !r.passes) {
+        return Ok(ExitCode::from(3));
     }
     Ok(ExitCode::SUCCESS)
 }

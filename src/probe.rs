@@ -47,12 +47,41 @@ pub struct Probe {
     pub sinr_db: f64,
     /// Id of the best server.
     pub server: String,
+    /// P[SINR ≥ T] with the scenario's fading (T = `[thresholds] sinr_db`).
+    pub coverage: f64,
+    /// SINR threshold T, dB.
+    pub sinr_threshold_db: f64,
+    /// How `coverage` was computed.
+    pub coverage_method: String,
+    /// Monte Carlo cross-check of `coverage`, when asked for.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub monte_carlo: Option<McCheck>,
     /// Per-node contributions, strongest first.
     pub contributions: Vec<Contribution>,
 }
 
+/// A seeded Monte Carlo estimate of a probability with its 95 % Wilson interval.
+#[derive(Debug, Clone, Serialize)]
+pub struct McCheck {
+    /// Trials.
+    pub trials: usize,
+    /// Seed.
+    pub seed: u64,
+    /// Estimate.
+    pub estimate: f64,
+    /// 95 % interval, low end.
+    pub low: f64,
+    /// 95 % interval, high end.
+    pub high: f64,
+}
+
 /// Computes the breakdown at (`lat`, `lon`).
 pub fn probe(sc: &Scenario, lat: f64, lon: f64) -> Probe {
+    probe_with(sc, lat, lon, None)
+}
+
+/// Like [`probe`], with an optional Monte Carlo check of the coverage (trials, seed).
+pub fn probe_with(sc: &Scenario, lat: f64, lon: f64, mc: Option<(usize, u64)>) -> Probe {
     let (px, py) = sc.frame.to_local(lon, lat);
     let rx = &sc.receiver;
     let g_omni = rx.omni_gain_dbi();
@@ -95,8 +124,20 @@ pub fn probe(sc: &Scenario, lat: f64, lon: f64) -> Probe {
     let signal_mw = dbm_to_mw(contributions[server].power_dbm);
     let noise_dbm = sc.noise_dbm();
     let sinr_db = mw_to_dbm(signal_mw / (interference_mw + dbm_to_mw(noise_dbm)));
+    let cov = crate::coverage::CoverageModel::new(sc.fading, sc.thresholds.sinr_db, noise_dbm);
+    let interferers: Vec<(f64, f64)> =
+        contributions.iter().filter(|c| c.index != server).map(|c| (c.activity, dbm_to_mw(c.power_dbm))).collect();
+    let coverage = cov.probability(signal_mw, &interferers);
+    let monte_carlo = mc.map(|(trials, seed)| {
+        let (estimate, low, high) = cov.monte_carlo(signal_mw, &interferers, trials, seed);
+        McCheck { trials, seed, estimate, low, high }
+    });
     contributions.sort_by(|a, b| b.power_dbm.total_cmp(&a.power_dbm).then(a.index.cmp(&b.index)));
     Probe {
+        coverage,
+        sinr_threshold_db: sc.thresholds.sinr_db,
+        coverage_method: cov.method.name().to_string(),
+        monte_carlo,
         lat,
         lon,
         total_dbm: mw_to_dbm(total_mw),
@@ -137,6 +178,13 @@ impl Probe {
         }
         s += &format!("noise         {:>10.2} dBm\n", self.noise_dbm);
         s += &format!("SINR          {:>10.2} dB\n", self.sinr_db);
+        s += &format!("P[SINR >= {} dB] {:>7.4}   ({})\n", self.sinr_threshold_db, self.coverage, self.coverage_method);
+        if let Some(m) = &self.monte_carlo {
+            s += &format!(
+                "Monte Carlo   {:>10.4}   95 % interval [{:.4}, {:.4}], {} trials, seed {}\n",
+                m.estimate, m.low, m.high, m.trials, m.seed
+            );
+        }
         s
     }
 }

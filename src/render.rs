@@ -51,6 +51,8 @@ pub struct MapSpec<'a> {
     pub links: &'a [(usize, usize)],
     /// Polygon rings (lon, lat) outlined over the map, e.g. hot spots.
     pub outlines: &'a [Vec<(f64, f64)>],
+    /// Fixed colour-scale limits (e.g. 0..1 for probabilities); None: from the data.
+    pub range: Option<(f32, f32)>,
 }
 
 /// A rendered map: PNG bytes and the world-file text that georeferences them.
@@ -109,7 +111,7 @@ pub fn render(spec: &MapSpec) -> Result<Rendered, String> {
     let mh = ((g.rows() as f64 * scale).round() as u32).max(1);
     let (w, h) = (mw + PANEL_W, mh.max(460));
     let cmap = tideline();
-    let (lo, hi) = colour_range(spec.data);
+    let (lo, hi) = spec.range.unwrap_or_else(|| colour_range(spec.data));
     let mut buf = vec![255u8; (w * h * 3) as usize];
     for y in 0..mh {
         let r = ((y as f64 + 0.5) / mh as f64 * g.rows() as f64) as usize;
@@ -215,14 +217,24 @@ pub fn render(spec: &MapSpec) -> Result<Rendered, String> {
         }
         root.draw(&Rectangle::new([(px0, top), (px0 + bar_w, bot)], ink.stroke_width(1))).map_err(e)?;
         let span = hi - lo;
-        let step = if span > 60.0 { 10.0 } else { 5.0 };
+        let step = if span > 60.0 {
+            10.0
+        } else if span > 2.0 {
+            5.0
+        } else {
+            span / 10.0
+        };
         let mut v = (lo / step).ceil() * step;
         while v <= hi + 1e-3 {
             let y = bot - ((v - lo) / span * (bot - top) as f32).round() as i32;
             root.draw(&PathElement::new(vec![(px0 + bar_w, y), (px0 + bar_w + 6, y)], ink.stroke_width(1)))
                 .map_err(e)?;
-            root.draw(&Text::new(format!("{v:.0}"), (px0 + bar_w + 10, y - 7), (FONT, 13).into_font().color(&ink)))
-                .map_err(e)?;
+            root.draw(&Text::new(
+                if step < 1.0 { format!("{v:.1}") } else { format!("{v:.0}") },
+                (px0 + bar_w + 10, y - 7),
+                (FONT, 13).into_font().color(&ink),
+            ))
+            .map_err(e)?;
             v += step;
         }
         root.draw(&Text::new("grey: no data", (px0, h as i32 - 26), (FONT, 12).into_font().color(&ink))).map_err(e)?;

@@ -107,12 +107,14 @@ pub fn run_map(sc: &Scenario, opts: &MapOptions) -> Result<MapResult, Error> {
         st.write_with(name, |w| write_geotiff(w, grid, data).map_err(std::io::Error::other))
     };
     let png = |st: &mut Staging, name: &str, title: &str, unit: &str, data: &[f32], outlines: &[Vec<(f64, f64)>]| {
-        let r = render(&MapSpec { grid, data, title, unit, markers: &markers, links: &links, outlines })
+        let range = (unit == "probability").then_some((0.0, 1.0));
+        let r = render(&MapSpec { grid, data, title, unit, markers: &markers, links: &links, outlines, range })
             .map_err(|e| Error::Output { path: st.dir().join(name), source: std::io::Error::other(e) })?;
         st.write(&format!("{name}.png"), &r.png)?;
         st.write(&format!("{name}.pgw"), r.world.as_bytes())
     };
     let mut hotspots = None;
+    let mut hotspot_features = Vec::new();
     if let Some(t) = &layers.total {
         tif(&mut st, "total.tif", t)?;
         png(&mut st, "total", "Total received", "dBm", t, &[])?;
@@ -155,7 +157,39 @@ pub fn run_map(sc: &Scenario, opts: &MapOptions) -> Result<MapResult, Error> {
             })
             .collect();
         hotspots = Some(features.len());
-        let fc = geojson::FeatureCollection { bbox: None, features, foreign_members: None };
+        hotspot_features = features;
+    }
+    let mut outage = None;
+    if let Some(cv) = &layers.coverage {
+        tif(&mut st, "coverage.tif", cv)?;
+        let target = sc.thresholds.coverage_target as f32;
+        let regs = regions(grid, cv, target, true);
+        let outlines: Vec<Vec<(f64, f64)>> =
+            regs.iter().map(|r| r.polygon.exterior().0.iter().map(|c| (c.x, c.y)).collect()).collect();
+        let title = format!("Coverage T={} dB", sc.thresholds.sinr_db);
+        png(&mut st, "coverage", &title, "probability", cv, &outlines)?;
+        files.extend(["coverage.tif", "coverage.png", "coverage.pgw"]);
+        outage = Some(regs.len());
+        for r in &regs {
+            let (lat, lon) = (grid.lat_of_row(r.peak_cell.0), grid.lon_of_col(r.peak_cell.1));
+            let mut p = serde_json::Map::new();
+            p.insert("kind".into(), "outage".into());
+            p.insert("min_coverage".into(), ((r.peak_value as f64 * 1e4).round() / 1e4).into());
+            p.insert("coverage_target".into(), sc.thresholds.coverage_target.into());
+            p.insert("worst_lon".into(), lon.into());
+            p.insert("worst_lat".into(), lat.into());
+            p.insert("area_m2".into(), round2(r.area_m2).into());
+            hotspot_features.push(geojson::Feature {
+                bbox: None,
+                geometry: Some(geojson::Geometry::from(&r.polygon)),
+                id: None,
+                properties: Some(p),
+                foreign_members: None,
+            });
+        }
+    }
+    if layers.interference.is_some() || layers.coverage.is_some() {
+        let fc = geojson::FeatureCollection { bbox: None, features: hotspot_features, foreign_members: None };
         st.write("hotspots.geojson", fc.to_string().as_bytes())?;
         files.push("hotspots.geojson");
     }
@@ -172,6 +206,7 @@ pub fn run_map(sc: &Scenario, opts: &MapOptions) -> Result<MapResult, Error> {
     files.push("layout.geojson");
     let b = grid.bbox();
     let sinr_hist = layers.sinr.as_deref().map(Histogram::of);
+    let cov_hist = layers.coverage.as_deref().map(|c| Histogram::of_scaled(c, 100.0));
     let mut names = vec![];
     for (on, n) in [
         (opts.layers.total, "total"),
@@ -210,6 +245,19 @@ pub fn run_map(sc: &Scenario, opts: &MapOptions) -> Result<MapResult, Error> {
         pair_evaluations: layers.pair_evaluations,
         elapsed_s: (elapsed_s * 1000.0).round() / 1000.0,
         files: files.iter().map(|s| s.to_string()).collect(),
+        coverage: cov_hist.as_ref().map(|h| {
+            let r = |x: Option<f64>| x.map(|v| (v / 100.0 * 1e4).round() / 1e4);
+            Spread { p10: r(h.quantile(0.1)), p50: r(h.quantile(0.5)), p90: r(h.quantile(0.9)), max: None }
+        }),
+        coverage_target: sc.thresholds.coverage_target,
+        coverage_ok_fraction: cov_hist
+            .as_ref()
+            .and_then(|h| h.fraction_at_least(sc.thresholds.coverage_target * 100.0))
+            .map(|f| (f * 1e6).round() / 1e6),
+        coverage_method: layers.coverage.as_ref().map(|_| {
+            crate::coverage::CoverageModel::new(sc.fading, sc.thresholds.sinr_db, noise_dbm).method.name().to_string()
+        }),
+        outage_zones: outage,
         realizations: sc.draw.as_ref().map(|_| opts.realizations.max(1)),
         drawn_nodes: sc.draw.as_ref().map(|_| sc.nodes.iter().filter(|n| n.id.starts_with("draw-")).count()),
     };
@@ -221,7 +269,8 @@ pub fn run_map(sc: &Scenario, opts: &MapOptions) -> Result<MapResult, Error> {
 }
 
 /// Runs the engine over `n` drawn layouts (seeds seed, seed+1, …) and averages: `total` and
-/// `interference` as ensemble means in mW, `sinr` as the mean of its dB values; `server` is
+/// `interference` as ensemble means in mW, `sinr` as the mean of its dB values, `coverage` as
+/// the mean probability; `server` is
 /// left out when n > 1. Returns the layers and the scenario with the first drawn layout.
 fn ensemble(sc: &Scenario, spec: &crate::draw::DrawSpec, eopts: &Options, n: usize) -> (Layers, Scenario) {
     let first = Scenario { nodes: crate::draw::layout(sc, spec, spec.seed), ..sc.clone() };
@@ -260,7 +309,7 @@ fn ensemble(sc: &Scenario, spec: &crate::draw::DrawSpec, eopts: &Options, n: usi
     for l in [&mut acc.total, &mut acc.interference].into_iter().flatten() {
         l.iter_mut().for_each(|x| *x = if *x > 0.0 { 10.0 * (*x / nf).log10() } else { crate::NODATA });
     }
-    if let Some(s) = &mut acc.sinr {
+    for s in [&mut acc.sinr, &mut acc.coverage].into_iter().flatten() {
         s.iter_mut().filter(|x| **x != crate::NODATA).for_each(|x| *x /= nf);
     }
     (acc, first)
@@ -268,4 +317,110 @@ fn ensemble(sc: &Scenario, spec: &crate::draw::DrawSpec, eopts: &Options, n: usi
 
 fn round2(x: f64) -> f64 {
     (x * 100.0).round() / 100.0
+}
+
+/// Options of the links job.
+#[derive(Debug, Clone)]
+pub struct LinksOptions {
+    /// Output folder.
+    pub out: PathBuf,
+    /// Monte Carlo check of each link's coverage: (trials, seed).
+    pub monte_carlo: Option<(usize, u64)>,
+    /// Embed interference, coverage and SINR maps in the report.
+    pub maps: bool,
+    /// Memory limit for the maps, MiB.
+    pub max_memory_mib: u64,
+}
+
+/// What the links job produced.
+pub struct LinksResult {
+    /// One row per planned link.
+    pub rows: Vec<crate::links::LinkRow>,
+    /// The installer sheet.
+    pub sheet: crate::install::InstallSheet,
+    /// Paths written.
+    pub files: Vec<PathBuf>,
+}
+
+/// Runs the link check and writes `links.csv`, `links.geojson`, `install.csv` and
+/// `report.html` into `opts.out`.
+pub fn run_links(sc: &Scenario, opts: &LinksOptions) -> Result<LinksResult, Error> {
+    let mut st = Staging::new(&opts.out, &[&sc.path, &sc.nodes_path])?;
+    let rows = crate::links::links(sc, opts.monte_carlo);
+    let sheet = crate::install::sheet(sc).map_err(|m| {
+        Error::input(Problem::new(sc.path.display().to_string(), Some("[install]".into()), "declination_date", m))
+    })?;
+    let mut maps = Vec::new();
+    if opts.maps {
+        let layers = LayerSet { interference: true, sinr: true, coverage: true, total: false, server: false };
+        check_memory(sc, layers.count(), opts.max_memory_mib)?;
+        let l = Engine::new(sc).run(&Options { layers, cutoff_m: None, progress: false });
+        let (markers, links) = markers_and_links(sc);
+        let grid = &sc.grid;
+        let noise = sc.noise_dbm();
+        let outline = |regs: Vec<crate::hotspots::Region>| -> Vec<Vec<(f64, f64)>> {
+            regs.iter().map(|r| r.polygon.exterior().0.iter().map(|c| (c.x, c.y)).collect()).collect()
+        };
+        let mut add = |title: String,
+                       unit: &str,
+                       data: &[f32],
+                       outlines: Vec<Vec<(f64, f64)>>,
+                       caption: String|
+         -> Result<(), Error> {
+            let range = (unit == "probability").then_some((0.0, 1.0));
+            let r = render(&MapSpec {
+                grid,
+                data,
+                title: &title,
+                unit,
+                markers: &markers,
+                links: &links,
+                outlines: &outlines,
+                range,
+            })
+            .map_err(|e| Error::Output { path: opts.out.join("report.html"), source: std::io::Error::other(e) })?;
+            maps.push(crate::report::MapImage { title, png: r.png, caption });
+            Ok(())
+        };
+        if let Some(c) = &l.coverage {
+            let target = sc.thresholds.coverage_target;
+            add(
+                format!("Coverage T={} dB", sc.thresholds.sinr_db),
+                "probability",
+                c,
+                outline(regions(grid, c, target as f32, true)),
+                format!(
+                    "Probability that a receiver at each spot, served by its best node, reaches the SINR threshold with fading; crimson outlines: below the {target} target."
+                ),
+            )?;
+        }
+        if let Some(i) = &l.interference {
+            let level = noise + sc.thresholds.hotspot_i_over_n_db;
+            add(
+                "Interference".into(),
+                "dBm",
+                i,
+                outline(regions(grid, i, level as f32, false)),
+                format!(
+                    "Aggregate interference at a receiver served by its best node; crimson outlines: hot spots at or above {level:.1} dBm (noise + {} dB).",
+                    sc.thresholds.hotspot_i_over_n_db
+                ),
+            )?;
+        }
+        if let Some(s) = &l.sinr {
+            add(
+                "Mean SINR".into(),
+                "dB",
+                s,
+                Vec::new(),
+                "Mean SINR without fading; nodes with beam wedges, planned links as lines.".into(),
+            )?;
+        }
+    }
+    st.write("links.csv", crate::links::csv(&rows).as_bytes())?;
+    st.write("links.geojson", crate::links::geojson(sc, &rows).to_string().as_bytes())?;
+    st.write("install.csv", crate::install::csv(&sheet).as_bytes())?;
+    st.write("report.html", crate::report::html(sc, &rows, &sheet, &maps).as_bytes())?;
+    let files = st.commit()?;
+    Ok(LinksResult { rows, sheet, files })
 }

@@ -145,6 +145,37 @@ struct RawScenario {
     #[serde(default)]
     thresholds: RawThresholds,
     draw: Option<RawDraw>,
+    #[serde(default)]
+    fading: RawFading,
+    #[serde(default)]
+    links: RawLinks,
+    #[serde(default)]
+    install: RawInstall,
+}
+
+#[derive(Debug, Default, Deserialize)]
+#[serde(deny_unknown_fields)]
+struct RawFading {
+    model: Option<String>,
+    m: Option<f64>,
+    k_db: Option<f64>,
+    interferer_model: Option<String>,
+    interferer_m: Option<f64>,
+    interferer_k_db: Option<f64>,
+    shadowing_db: Option<f64>,
+}
+
+#[derive(Debug, Default, Deserialize)]
+#[serde(deny_unknown_fields)]
+struct RawLinks {
+    capacity_gap_db: Option<f64>,
+    max_spectral_efficiency: Option<f64>,
+}
+
+#[derive(Debug, Default, Deserialize)]
+#[serde(deny_unknown_fields)]
+struct RawInstall {
+    declination_date: Option<String>,
 }
 
 #[derive(Debug, Deserialize)]
@@ -201,6 +232,7 @@ struct RawGrid {
 struct RawThresholds {
     sinr_db: Option<f64>,
     hotspot_i_over_n_db: Option<f64>,
+    coverage_target: Option<f64>,
 }
 
 /// `[radio]`.
@@ -240,6 +272,42 @@ pub struct Thresholds {
     pub sinr_db: f64,
     /// Interference-over-noise level that marks a hot spot, dB (default 0).
     pub hotspot_i_over_n_db: f64,
+    /// Coverage probability a cell or link must reach (default 0.9).
+    pub coverage_target: f64,
+}
+
+/// `[fading]`: small-scale fading of the wanted signal and of interferers, and log-normal
+/// shadowing of every link.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct FadingSpec {
+    /// Fading of the wanted signal.
+    pub signal: crate::fading::Fading,
+    /// Fading of each interferer.
+    pub interferer: crate::fading::Fading,
+    /// Log-normal shadowing standard deviation, dB (0: none).
+    pub shadowing_db: f64,
+}
+
+impl Default for FadingSpec {
+    fn default() -> Self {
+        FadingSpec { signal: crate::fading::Fading::None, interferer: crate::fading::Fading::None, shadowing_db: 0.0 }
+    }
+}
+
+/// `[links]`: capacity estimate settings.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct LinkSettings {
+    /// Implementation gap Γ in C = B log2(1 + SINR/Γ), dB (default 3).
+    pub capacity_gap_db: f64,
+    /// Cap on the spectral efficiency, bit/s/Hz (default 8: 256-QAM at rate about 1).
+    pub max_spectral_efficiency: f64,
+}
+
+/// `[install]`: installer-sheet settings.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct InstallSettings {
+    /// Date at which magnetic declination is evaluated (year, ordinal day).
+    pub declination_date: (i32, u16),
 }
 
 /// A validated scenario with its nodes loaded.
@@ -267,6 +335,12 @@ pub struct Scenario {
     pub thresholds: Thresholds,
     /// Random layout drawn around (or instead of) the fixed nodes.
     pub draw: Option<crate::draw::DrawSpec>,
+    /// Fading and shadowing.
+    pub fading: FadingSpec,
+    /// Link-table settings.
+    pub links: LinkSettings,
+    /// Installer-sheet settings.
+    pub install: InstallSettings,
 }
 
 fn toml_problem(file: &str, e: &toml::de::Error) -> Problem {
@@ -279,6 +353,22 @@ fn toml_problem(file: &str, e: &toml::de::Error) -> Problem {
         .to_string();
     let loc = e.span().map(|s| format!(" (at byte {})", s.start)).unwrap_or_default();
     Problem::new(file, None, field, format!("{msg}{loc}"))
+}
+
+/// Parses `YYYY-MM-DD` into (year, day of the year), checking the calendar.
+pub fn parse_date(s: &str) -> Option<(i32, u16)> {
+    let p: Vec<&str> = s.trim().split('-').collect();
+    if p.len() != 3 {
+        return None;
+    }
+    let (y, m, d): (i32, u32, u32) = (p[0].parse().ok()?, p[1].parse().ok()?, p[2].parse().ok()?);
+    let leap = (y % 4 == 0 && y % 100 != 0) || y % 400 == 0;
+    let days = [31, if leap { 29 } else { 28 }, 31, 30, 31, 30, 31, 31, 30, 31, 30, 31];
+    if !(1..=12).contains(&m) || d == 0 || d > days[(m - 1) as usize] {
+        return None;
+    }
+    let ordinal = days[..(m - 1) as usize].iter().sum::<u32>() + d;
+    Some((y, ordinal as u16))
 }
 
 impl Scenario {
@@ -328,7 +418,16 @@ impl Scenario {
         let thr = Thresholds {
             sinr_db: raw.thresholds.sinr_db.unwrap_or(5.0),
             hotspot_i_over_n_db: raw.thresholds.hotspot_i_over_n_db.unwrap_or(0.0),
+            coverage_target: raw.thresholds.coverage_target.unwrap_or(0.9),
         };
+        bad("thresholds", "coverage_target", thr.coverage_target, Range::left_open(0.0, 1.0, ""));
+        let fz = &raw.fading;
+        let shadowing_db = fz.shadowing_db.unwrap_or(0.0);
+        bad("fading", "shadowing_db", shadowing_db, Range::closed(0.0, 20.0, "dB"));
+        let capacity_gap_db = raw.links.capacity_gap_db.unwrap_or(3.0);
+        bad("links", "capacity_gap_db", capacity_gap_db, Range::closed(0.0, 20.0, "dB"));
+        let max_se = raw.links.max_spectral_efficiency.unwrap_or(8.0);
+        bad("links", "max_spectral_efficiency", max_se, Range::left_open(0.0, 20.0, "bit/s/Hz"));
         bad("thresholds", "sinr_db", thr.sinr_db, Range::closed(-30.0, 60.0, "dB"));
         bad("thresholds", "hotspot_i_over_n_db", thr.hotspot_i_over_n_db, Range::closed(-40.0, 60.0, "dB"));
         bad("grid", "cell_m", raw.grid.cell_m, Range::closed(0.1, 10_000.0, "m"));
@@ -362,6 +461,37 @@ impl Scenario {
                 format!("value `{}` must be non-empty and use only letters, digits, space, '-', '_' or '.'", raw.name),
             ));
         }
+        let mut fading_law = |field: &str, model: Option<&str>, m: Option<f64>, k: Option<f64>| {
+            use crate::fading::Fading;
+            let r = match model.unwrap_or("none") {
+                "none" => Ok(Fading::None),
+                "rayleigh" => Ok(Fading::Rayleigh),
+                "nakagami" => Fading::nakagami(m.unwrap_or(f64::NAN)).map_err(|e| (field.replace("model", "m"), e)),
+                "rician" => Fading::rician_db(k.unwrap_or(f64::NAN)).map_err(|e| (field.replace("model", "k_db"), e)),
+                other => Err((
+                    field.to_string(),
+                    format!("value `{other}` is not one of `none`, `rayleigh`, `nakagami`, `rician`"),
+                )),
+            };
+            r.map_err(|(f, e)| probs.push(Problem::new(&file, Some("[fading]".into()), f, e))).ok()
+        };
+        let sig = fading_law("model", fz.model.as_deref(), fz.m, fz.k_db);
+        let intf = match fz.interferer_model.as_deref() {
+            None => sig,
+            Some(m) => {
+                fading_law("interferer_model", Some(m), fz.interferer_m.or(fz.m), fz.interferer_k_db.or(fz.k_db))
+            }
+        };
+        let declination_date = match raw.install.declination_date.as_deref() {
+            None => Some((2026, 1)),
+            Some(d) => match parse_date(d) {
+                Some(ymd) if (2020..=2029).contains(&ymd.0) => Some(ymd),
+                _ => {
+                    probs.push(Problem::new(&file, Some("[install]".into()), "declination_date", format!("value `{d}` is not a date YYYY-MM-DD within the World Magnetic Model's validity, 2020-01-01 to 2029-12-31")));
+                    None
+                }
+            },
+        };
         let p = &raw.propagation;
         let law = match p.model.as_str() {
             "free-space" => Some(Law::FreeSpace),
@@ -490,6 +620,13 @@ impl Scenario {
             frame: LocalFrame::new(clat, clon),
             thresholds: thr,
             draw,
+            fading: FadingSpec {
+                signal: sig.unwrap_or(crate::fading::Fading::None),
+                interferer: intf.unwrap_or(crate::fading::Fading::None),
+                shadowing_db,
+            },
+            links: LinkSettings { capacity_gap_db, max_spectral_efficiency: max_se },
+            install: InstallSettings { declination_date: declination_date.unwrap_or((2026, 1)) },
         })
     }
 

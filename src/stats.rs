@@ -16,6 +16,12 @@ pub struct Histogram {
 impl Histogram {
     /// Builds the histogram of every value that is not [`NODATA`] or NaN.
     pub fn of(data: &[f32]) -> Histogram {
+        Self::of_scaled(data, 1.0)
+    }
+
+    /// Like [`Self::of`] for values multiplied by `scale` (e.g. 100 for probabilities, so the
+    /// resolution is 1e−4); quantiles and the maximum come back in the scaled unit.
+    pub fn of_scaled(data: &[f32], scale: f32) -> Histogram {
         let nb = ((HI - LO) / BIN) as usize;
         let mut counts = vec![0u64; nb];
         let (mut n, mut max) = (0u64, f32::MIN);
@@ -23,6 +29,7 @@ impl Histogram {
             if v == NODATA || !v.is_finite() {
                 continue;
             }
+            let v = v * scale;
             let k = (((v as f64 - LO) / BIN + 1e-6).floor().max(0.0) as usize).min(nb - 1);
             counts[k] += 1;
             n += 1;

@@ -63,6 +63,16 @@ pub struct Summary {
     pub sinr_threshold_db: f64,
     /// Fraction of cells with SINR at or above the threshold.
     pub sinr_ok_fraction: Option<f64>,
+    /// Percentiles of `coverage` (probability).
+    pub coverage: Option<Spread>,
+    /// Coverage target.
+    pub coverage_target: f64,
+    /// Fraction of cells with coverage at or above the target.
+    pub coverage_ok_fraction: Option<f64>,
+    /// How `coverage` was computed.
+    pub coverage_method: Option<String>,
+    /// Number of outage polygons (coverage below the target) in hotspots.geojson.
+    pub outage_zones: Option<usize>,
     /// Number of hot-spot polygons (null when the interference layer was not computed).
     pub hotspots: Option<usize>,
     /// Hot-spot level, dB over noise.

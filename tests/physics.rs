@@ -41,8 +41,11 @@ fn scenario(nodes: Vec<Node>, pathloss: PathLoss, bbox: BBox, cell_m: f64, rx_he
         receiver: Receiver { height_m: rx_height, pattern: Pattern::Omni { gain_dbi: 0.0 }, aimed: false },
         grid,
         frame: LocalFrame::new(lat, lon),
-        thresholds: Thresholds { sinr_db: 5.0, hotspot_i_over_n_db: 0.0 },
+        thresholds: Thresholds { sinr_db: 5.0, hotspot_i_over_n_db: 0.0, coverage_target: 0.9 },
         draw: None,
+        fading: Default::default(),
+        links: lobemap::scenario::LinkSettings { capacity_gap_db: 3.0, max_spectral_efficiency: 8.0 },
+        install: lobemap::scenario::InstallSettings { declination_date: (2026, 1) },
     }
 }
 
@@ -147,7 +150,7 @@ fn campbell_mean_of_total_over_poisson_field() {
         })
         .collect();
     let sc = scenario(nodes, pl, bbox, 20.0, 2.0);
-    let only_total = LayerSet { total: true, interference: false, sinr: false, server: false };
+    let only_total = LayerSet::TOTAL;
     let tot = Engine::new(&sc).run(&Options { layers: only_total, cutoff_m: None, progress: false }).total.unwrap();
     let cells = tot.len() as f64;
     let mean: f64 = tot.iter().map(|v| 10f64.powf(*v as f64 / 10.0)).sum::<f64>() / cells;
@@ -176,7 +179,7 @@ fn campbell_mean_of_total_over_poisson_field() {
 fn cutoff_bound_holds() {
     let sc = Scenario::load(std::path::Path::new("sites/harbourlight/scenario.toml")).unwrap();
     let eng = Engine::new(&sc);
-    let only_total = LayerSet { total: true, interference: false, sinr: false, server: false };
+    let only_total = LayerSet::TOTAL;
     let full = eng.run(&Options { layers: only_total, cutoff_m: None, progress: false }).total.unwrap();
     let cut = eng.run(&Options { layers: only_total, cutoff_m: Some(300.0), progress: false });
     let bound_db = cut.neglected_db.unwrap();

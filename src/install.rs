@@ -1,0 +1,212 @@
+//! Installer sheet: per node, where to mount, where to point (true and magnetic), how far to
+//! tilt toward its peer, what level to expect at the peer when aligned, and how far to stay
+//! out of the beam (RF exposure keep-out).
+//!
+//! # References
+//! - NOAA NCEI / BGS World Magnetic Model WMM2025 (declination), through the
+//!   `world_magnetic_model` crate.
+//! - Far-field power density S = EIRP / (4π d²) (e.g. FCC OET Bulletin 65), so the keep-out
+//!   distance is d = √(EIRP / (4π S_lim)).
+//! - Reference levels for the general public: 10 W/m² for 2–300 GHz (ICNIRP 2020 guidelines,
+//!   whole-body average; from memory), f/200 W/m² with f in MHz for 400–2000 MHz (ICNIRP 2020;
+//!   from memory), 2 W/m² below 400 MHz (ICNIRP 2020, 10–400 MHz; from memory). The US limit
+//!   for the general population is the same 1 mW/cm² = 10 W/m² for 1.5–100 GHz
+//!   (47 CFR 1.1310, confirmed in the model notes).
+
+use crate::links::angle_diff;
+use crate::scenario::Scenario;
+use serde::Serialize;
+use world_magnetic_model::GeomagneticField;
+use world_magnetic_model::time::Date;
+use world_magnetic_model::uom::si::angle::degree;
+use world_magnetic_model::uom::si::f32::{Angle, Length};
+use world_magnetic_model::uom::si::length::meter;
+
+/// The general-public power-density reference level at a frequency: (W/m², its name).
+pub fn reference_level(frequency_ghz: f64) -> (f64, &'static str) {
+    let f_mhz = frequency_ghz * 1000.0;
+    if f_mhz >= 2000.0 {
+        (10.0, "ICNIRP 2020 general public, 2-300 GHz: 10 W/m2 (US 47 CFR 1.1310: 1 mW/cm2, 1.5-100 GHz)")
+    } else if f_mhz >= 400.0 {
+        (f_mhz / 200.0, "ICNIRP 2020 general public, 400-2000 MHz: f/200 W/m2")
+    } else {
+        (2.0, "ICNIRP 2020 general public, 10-400 MHz: 2 W/m2")
+    }
+}
+
+/// Far-field distance at which EIRP / (4π d²) falls to `limit_w_m2`, m.
+pub fn keepout_m(eirp_dbm: f64, limit_w_m2: f64) -> f64 {
+    let eirp_w = 10f64.powf((eirp_dbm - 30.0) / 10.0);
+    (eirp_w / (4.0 * std::f64::consts::PI * limit_w_m2)).sqrt()
+}
+
+/// Magnetic declination (degrees, east positive) at a place and date (year, day of year).
+pub fn declination_deg(lat: f64, lon: f64, height_m: f64, date: (i32, u16)) -> Result<f64, String> {
+    let d = Date::from_ordinal_date(date.0, date.1).map_err(|e| e.to_string())?;
+    let f = GeomagneticField::new(
+        Length::new::<meter>(height_m as f32),
+        Angle::new::<degree>(lat as f32),
+        Angle::new::<degree>(lon as f32),
+        d,
+    )
+    .map_err(|e| e.to_string())?;
+    Ok(f.declination().get::<degree>() as f64)
+}
+
+/// One node's installer row.
+#[derive(Debug, Clone, Serialize)]
+pub struct InstallRow {
+    /// Node id.
+    pub id: String,
+    /// Name, if any.
+    pub name: String,
+    /// Latitude, degrees.
+    pub lat: f64,
+    /// Longitude, degrees.
+    pub lon: f64,
+    /// Mounting height, m.
+    pub height_m: f64,
+    /// Boresight, degrees from true north.
+    pub azimuth_true_deg: f64,
+    /// Magnetic declination used, degrees east.
+    pub declination_deg: f64,
+    /// Boresight, degrees from magnetic north (compass reading).
+    pub azimuth_magnetic_deg: f64,
+    /// Peer id.
+    pub peer: String,
+    /// Mechanical down-tilt toward the peer from the two heights, degrees (negative: up-tilt).
+    pub downtilt_deg: Option<f64>,
+    /// Expected level at the peer with both ends aligned, dBm (peer's main-lobe gain).
+    pub expected_at_peer_dbm: Option<f64>,
+    /// EIRP on boresight, dBm.
+    pub eirp_dbm: f64,
+    /// Keep-out distance in front of the antenna, m.
+    pub keepout_m: f64,
+}
+
+/// The sheet plus the reference level it used.
+#[derive(Debug, Clone, Serialize)]
+pub struct InstallSheet {
+    /// Rows in node order.
+    pub rows: Vec<InstallRow>,
+    /// Reference level, W/m².
+    pub limit_w_m2: f64,
+    /// Which limit and frequency range.
+    pub limit_name: String,
+    /// Declination date, ISO.
+    pub declination_date: String,
+}
+
+/// Builds the sheet; fails only if the magnetic model rejects a place or date.
+pub fn sheet(sc: &Scenario) -> Result<InstallSheet, String> {
+    let (limit, name) = reference_level(sc.radio.frequency_ghz);
+    let date = sc.install.declination_date;
+    let index: std::collections::HashMap<&str, usize> =
+        sc.nodes.iter().enumerate().map(|(i, n)| (n.id.as_str(), i)).collect();
+    let mut rows = Vec::with_capacity(sc.nodes.len());
+    for n in &sc.nodes {
+        let decl = declination_deg(n.lat, n.lon, n.height_m, date)?;
+        let peer = n.peer.as_deref().and_then(|p| index.get(p)).map(|&j| &sc.nodes[j]);
+        let (tilt, expected) = match peer {
+            Some(p) => {
+                let (x0, y0) = sc.frame.to_local(n.lon, n.lat);
+                let (x1, y1) = sc.frame.to_local(p.lon, p.lat);
+                let horiz = ((x1 - x0).powi(2) + (y1 - y0).powi(2)).sqrt();
+                let tilt = (n.height_m - p.height_m).atan2(horiz).to_degrees();
+                let d = (horiz * horiz + (n.height_m - p.height_m).powi(2)).sqrt();
+                let level = n.eirp_dbm() + p.pattern.max_gain_dbi() - sc.pathloss.loss_db(d);
+                (Some((tilt * 100.0).round() / 100.0), Some((level * 100.0).round() / 100.0))
+            }
+            None => (None, None),
+        };
+        rows.push(InstallRow {
+            id: n.id.clone(),
+            name: n.name.clone().unwrap_or_default(),
+            lat: n.lat,
+            lon: n.lon,
+            height_m: n.height_m,
+            azimuth_true_deg: (n.azimuth_deg * 10.0).round() / 10.0,
+            declination_deg: (decl * 100.0).round() / 100.0,
+            azimuth_magnetic_deg: ((angle_diff(n.azimuth_deg, decl).rem_euclid(360.0)) * 10.0).round() / 10.0,
+            peer: n.peer.clone().unwrap_or_default(),
+            downtilt_deg: tilt,
+            expected_at_peer_dbm: expected,
+            eirp_dbm: (n.eirp_dbm() * 100.0).round() / 100.0,
+            keepout_m: (keepout_m(n.eirp_dbm(), limit) * 1000.0).round() / 1000.0,
+        });
+    }
+    Ok(InstallSheet {
+        rows,
+        limit_w_m2: limit,
+        limit_name: name.to_string(),
+        declination_date: {
+            let d = Date::from_ordinal_date(date.0, date.1).map_err(|e| e.to_string())?;
+            format!("{:04}-{:02}-{:02}", d.year(), u8::from(d.month()), d.day())
+        },
+    })
+}
+
+/// CSV of the sheet, with the limit named in a comment line first.
+pub fn csv(s: &InstallSheet) -> String {
+    let mut out = format!(
+        "# keep-out: far-field distance where EIRP/(4 pi d^2) falls to {} W/m2 ({}); magnetic azimuth = true azimuth - declination (WMM, {}); estimates only: follow local exposure rules and licensed practice\n",
+        s.limit_w_m2, s.limit_name, s.declination_date
+    );
+    out += "id,name,lat,lon,height_m,azimuth_true_deg,declination_deg,azimuth_magnetic_deg,peer,downtilt_deg,expected_at_peer_dbm,eirp_dbm,keepout_m\n";
+    for r in &s.rows {
+        out += &format!(
+            "{},\"{}\",{:.7},{:.7},{},{},{},{},{},{},{},{},{}\n",
+            r.id,
+            r.name.replace('"', "'"),
+            r.lat,
+            r.lon,
+            r.height_m,
+            r.azimuth_true_deg,
+            r.declination_deg,
+            r.azimuth_magnetic_deg,
+            r.peer,
+            r.downtilt_deg.map(|v| v.to_string()).unwrap_or_default(),
+            r.expected_at_peer_dbm.map(|v| v.to_string()).unwrap_or_default(),
+            r.eirp_dbm,
+            r.keepout_m
+        );
+    }
+    out
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    // Hand calculation: EIRP 40 dBm = 10 W; d = √(10 / (4π·10)) = 0.2821 m; 60 dBm = 1000 W
+    // gives 2.821 m (shared model notes).
+    #[test]
+    fn keepout_hand_calculation() {
+        assert!((keepout_m(40.0, 10.0) - 0.28209).abs() < 1e-4);
+        assert!((keepout_m(60.0, 10.0) - 2.82095).abs() < 1e-4);
+        assert_eq!(reference_level(60.0).0, 10.0);
+        assert!((reference_level(0.9).0 - 4.5).abs() < 1e-12);
+    }
+
+    // WMM2025 declination against an independent implementation: pygeomag 1.1.0 with the
+    // WMM_2025.COF coefficients (computed on 2026-12-01 and pasted here). Tolerance 0.05°:
+    // the crate evaluates in float32.
+    #[test]
+    fn declination_against_pygeomag() {
+        for (lat, lon, date, want) in [
+            (45.5, -4.8, (2026, 1), 0.034433402755151776),
+            (-33.9, 151.2, (2027, 182), 12.851907412833778),
+            (64.1, -21.9, (2025, 182), -11.39410196516562),
+            (0.0, 0.0, (2028, 1), -3.6456009087187002),
+            (40.0, -105.0, (2026, 329), 7.5145180592024685),
+        ] {
+            let got = declination_deg(lat, lon, 0.0, date).unwrap();
+            assert!((got - want).abs() < 0.05, "{lat},{lon} {date:?}: {got} vs {want}");
+        }
+    }
+
+    #[test]
+    fn declination_outside_model_validity_is_an_error() {
+        assert!(declination_deg(45.0, 7.0, 0.0, (2031, 1)).is_err());
+    }
+}

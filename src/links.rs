@@ -1,0 +1,328 @@
+//! Planned links: every node with a `peer` forms a link from it to its peer. For each link:
+//! geometry, misalignment of both ends, received signal, aggregate interference at the
+//! receiving end (its own antenna as installed), mean SINR, coverage probability with fading,
+//! margin, a Shannon capacity estimate with an implementation gap, and the strongest
+//! interferers.
+//!
+//! # References
+//! - C. E. Shannon, "A mathematical theory of communication", 1948: C = B log2(1 + SNR); the
+//!   gap Γ (dB) between this bound and a practical modem is common practice (e.g. Cioffi's
+//!   SNR-gap approximation).
+
+use crate::coverage::CoverageModel;
+use crate::geodesy::bearing_deg;
+use crate::nodes::Node;
+use crate::probe::McCheck;
+use crate::scenario::Scenario;
+use crate::units::{db_to_lin, dbm_to_mw, mw_to_dbm};
+use rayon::prelude::*;
+use serde::Serialize;
+
+/// One interferer's share of a link's interference.
+#[derive(Debug, Clone, Serialize)]
+pub struct Share {
+    /// Node id.
+    pub id: String,
+    /// Activity-weighted mean power at the receiver, dBm.
+    pub power_dbm: f64,
+    /// Fraction of the link's aggregate interference.
+    pub share: f64,
+}
+
+/// One planned link (from → to).
+#[derive(Debug, Clone, Serialize)]
+pub struct LinkRow {
+    /// Transmitting node.
+    pub from: String,
+    /// Receiving node.
+    pub to: String,
+    /// 3-D distance between the antennas, m.
+    pub length_m: f64,
+    /// Bearing from `from` to `to`, degrees from true north.
+    pub bearing_deg: f64,
+    /// `from`'s boresight minus the bearing to `to`, degrees in (−180, 180].
+    pub misalign_from_deg: f64,
+    /// `to`'s boresight minus the bearing to `from`, degrees in (−180, 180].
+    pub misalign_to_deg: f64,
+    /// Whether `from` is misaligned beyond half its beamwidth.
+    pub misaligned_from: bool,
+    /// Whether `to` is misaligned beyond half its beamwidth.
+    pub misaligned_to: bool,
+    /// Azimuth `from` should have, degrees.
+    pub azimuth_from_should_deg: f64,
+    /// Azimuth `to` should have, degrees.
+    pub azimuth_to_should_deg: f64,
+    /// Transmit gain toward the peer as installed, dBi.
+    pub tx_gain_dbi: f64,
+    /// Receive gain toward the peer as installed, dBi.
+    pub rx_gain_dbi: f64,
+    /// Path loss, dB.
+    pub path_loss_db: f64,
+    /// Mean received signal, dBm.
+    pub signal_dbm: f64,
+    /// Activity-weighted aggregate interference at `to`, dBm (None: no interferer).
+    pub interference_dbm: Option<f64>,
+    /// Noise, dBm.
+    pub noise_dbm: f64,
+    /// Mean SINR, dB.
+    pub sinr_db: f64,
+    /// P[SINR ≥ T] with fading.
+    pub coverage: f64,
+    /// Mean SINR minus the threshold, dB.
+    pub margin_db: f64,
+    /// Shannon estimate B log2(1 + SINR/Γ), capped at the maximum spectral efficiency, Mbit/s.
+    pub capacity_mbps: f64,
+    /// The three strongest interferers.
+    pub top_interferers: Vec<Share>,
+    /// SINR ≥ threshold and coverage ≥ target.
+    pub passes: bool,
+    /// Monte Carlo check of `coverage`.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub monte_carlo: Option<McCheck>,
+}
+
+/// Signed difference a − b folded into (−180, 180].
+pub fn angle_diff(a: f64, b: f64) -> f64 {
+    let d = (a - b).rem_euclid(360.0);
+    if d > 180.0 { d - 360.0 } else { d }
+}
+
+/// Computes every planned link, in node order; `mc` = (trials, seed) adds Monte Carlo checks.
+pub fn links(sc: &Scenario, mc: Option<(usize, u64)>) -> Vec<LinkRow> {
+    let pos: Vec<(f64, f64)> = sc.nodes.iter().map(|n| sc.frame.to_local(n.lon, n.lat)).collect();
+    let index: std::collections::HashMap<&str, usize> =
+        sc.nodes.iter().enumerate().map(|(i, n)| (n.id.as_str(), i)).collect();
+    let pairs: Vec<(usize, usize)> = sc
+        .nodes
+        .iter()
+        .enumerate()
+        .filter_map(|(i, n)| n.peer.as_deref().and_then(|p| index.get(p)).map(|&j| (i, j)))
+        .collect();
+    let noise_dbm = sc.noise_dbm();
+    let cov = CoverageModel::new(sc.fading, sc.thresholds.sinr_db, noise_dbm);
+    pairs
+        .par_iter()
+        .enumerate()
+        .map(|(k, &(f, t))| {
+            let (a, b) = (&sc.nodes[f], &sc.nodes[t]);
+            let link_mc = mc.map(|(n, seed)| (n, seed.wrapping_add(k as u64)));
+            one(sc, &pos, f, t, a, b, &cov, noise_dbm, link_mc)
+        })
+        .collect()
+}
+
+#[allow(clippy::too_many_arguments)]
+fn one(
+    sc: &Scenario,
+    pos: &[(f64, f64)],
+    f: usize,
+    t: usize,
+    a: &Node,
+    b: &Node,
+    cov: &CoverageModel,
+    noise_dbm: f64,
+    mc: Option<(usize, u64)>,
+) -> LinkRow {
+    let (dx, dy) = (pos[t].0 - pos[f].0, pos[t].1 - pos[f].1);
+    let length_m = (dx * dx + dy * dy + (a.height_m - b.height_m).powi(2)).sqrt();
+    let brg = bearing_deg(dx, dy);
+    let back = (brg + 180.0) % 360.0;
+    let mis_a = angle_diff(a.azimuth_deg, brg);
+    let mis_b = angle_diff(b.azimuth_deg, back);
+    let tx_gain = a.pattern.gain_dbi(mis_a);
+    let rx_gain = b.pattern.gain_dbi(mis_b);
+    let pl = sc.pathloss.loss_db(length_m);
+    let signal_dbm = a.power_dbm + tx_gain + rx_gain - pl;
+    // Interference at b from every other node, b's antenna as installed.
+    let mut contrib: Vec<(usize, f64, f64)> = Vec::new(); // (node, activity, mean power mW)
+    for (i, n) in sc.nodes.iter().enumerate() {
+        if i == f || i == t {
+            continue;
+        }
+        let (wx, wy) = (pos[t].0 - pos[i].0, pos[t].1 - pos[i].1);
+        let d = (wx * wx + wy * wy + (n.height_m - b.height_m).powi(2)).sqrt();
+        let g_tx = n.pattern.gain_dbi(bearing_deg(wx, wy) - n.azimuth_deg);
+        let g_rx = b.pattern.gain_dbi(bearing_deg(-wx, -wy) - b.azimuth_deg);
+        let p = dbm_to_mw(n.power_dbm + g_tx + g_rx - sc.pathloss.loss_db(d));
+        contrib.push((i, n.activity, p));
+    }
+    let i_mw: f64 = contrib.iter().map(|c| c.1 * c.2).sum();
+    let s_mw = dbm_to_mw(signal_dbm);
+    let n_mw = dbm_to_mw(noise_dbm);
+    let sinr = s_mw / (i_mw + n_mw);
+    let sinr_db = mw_to_dbm(sinr);
+    let interferers: Vec<(f64, f64)> = contrib.iter().map(|c| (c.1, c.2)).collect();
+    let coverage = cov.probability(s_mw, &interferers);
+    contrib.sort_by(|x, y| (y.1 * y.2).total_cmp(&(x.1 * x.2)).then(x.0.cmp(&y.0)));
+    let top_interferers = contrib
+        .iter()
+        .take(3)
+        .filter(|c| c.1 * c.2 > 0.0)
+        .map(|c| Share {
+            id: sc.nodes[c.0].id.clone(),
+            power_dbm: round(mw_to_dbm(c.1 * c.2), 2),
+            share: round(c.1 * c.2 / i_mw, 4),
+        })
+        .collect();
+    let bw_hz = sc.radio.bandwidth_mhz * 1e6;
+    let se = (1.0 + sinr / db_to_lin(sc.links.capacity_gap_db)).log2().min(sc.links.max_spectral_efficiency);
+    let margin_db = sinr_db - sc.thresholds.sinr_db;
+    let monte_carlo = mc.map(|(trials, seed)| {
+        let (estimate, low, high) = cov.monte_carlo(s_mw, &interferers, trials, seed);
+        McCheck { trials, seed, estimate, low, high }
+    });
+    LinkRow {
+        from: a.id.clone(),
+        to: b.id.clone(),
+        length_m: round(length_m, 2),
+        bearing_deg: round(brg, 2),
+        misalign_from_deg: round(mis_a, 2),
+        misalign_to_deg: round(mis_b, 2),
+        misaligned_from: !a.pattern.is_omni() && mis_a.abs() > a.pattern.beamwidth_deg() / 2.0,
+        misaligned_to: !b.pattern.is_omni() && mis_b.abs() > b.pattern.beamwidth_deg() / 2.0,
+        azimuth_from_should_deg: round(brg, 2),
+        azimuth_to_should_deg: round(back, 2),
+        tx_gain_dbi: round(tx_gain, 2),
+        rx_gain_dbi: round(rx_gain, 2),
+        path_loss_db: round(pl, 2),
+        signal_dbm: round(signal_dbm, 2),
+        interference_dbm: (i_mw > 0.0).then(|| round(mw_to_dbm(i_mw), 2)),
+        noise_dbm: round(noise_dbm, 2),
+        sinr_db: round(sinr_db, 2),
+        coverage: round(coverage, 4),
+        margin_db: round(margin_db, 2),
+        capacity_mbps: round(bw_hz * se / 1e6, 1),
+        top_interferers,
+        passes: sinr_db >= sc.thresholds.sinr_db && coverage >= sc.thresholds.coverage_target,
+        monte_carlo,
+    }
+}
+
+fn round(x: f64, d: i32) -> f64 {
+    let m = 10f64.powi(d);
+    (x * m).round() / m
+}
+
+fn tops(r: &LinkRow) -> String {
+    r.top_interferers.iter().map(|s| format!("{} {:.0}%", s.id, s.share * 100.0)).collect::<Vec<_>>().join("; ")
+}
+
+/// CSV with one row per link.
+pub fn csv(rows: &[LinkRow]) -> String {
+    let mut s = String::from(
+        "from,to,length_m,bearing_deg,misalign_from_deg,misalign_to_deg,misaligned_from,misaligned_to,azimuth_from_should_deg,azimuth_to_should_deg,tx_gain_dbi,rx_gain_dbi,path_loss_db,signal_dbm,interference_dbm,noise_dbm,sinr_db,coverage,margin_db,capacity_mbps,passes,top_interferers,mc_estimate,mc_low,mc_high\n",
+    );
+    for r in rows {
+        let mc = r
+            .monte_carlo
+            .as_ref()
+            .map(|m| format!("{:.4},{:.4},{:.4}", m.estimate, m.low, m.high))
+            .unwrap_or(",,".into());
+        s += &format!(
+            "{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},\"{}\",{}\n",
+            r.from,
+            r.to,
+            r.length_m,
+            r.bearing_deg,
+            r.misalign_from_deg,
+            r.misalign_to_deg,
+            r.misaligned_from,
+            r.misaligned_to,
+            r.azimuth_from_should_deg,
+            r.azimuth_to_should_deg,
+            r.tx_gain_dbi,
+            r.rx_gain_dbi,
+            r.path_loss_db,
+            r.signal_dbm,
+            r.interference_dbm.map(|v| v.to_string()).unwrap_or_default(),
+            r.noise_dbm,
+            r.sinr_db,
+            r.coverage,
+            r.margin_db,
+            r.capacity_mbps,
+            r.passes,
+            tops(r),
+            mc
+        );
+    }
+    s
+}
+
+/// LineStrings from → to carrying the row's properties.
+pub fn geojson(sc: &Scenario, rows: &[LinkRow]) -> geojson::FeatureCollection {
+    let index: std::collections::HashMap<&str, &Node> = sc.nodes.iter().map(|n| (n.id.as_str(), n)).collect();
+    let features = rows
+        .iter()
+        .map(|r| {
+            let (a, b) = (index[r.from.as_str()], index[r.to.as_str()]);
+            let props = match serde_json::to_value(r) {
+                Ok(serde_json::Value::Object(m)) => m,
+                _ => serde_json::Map::new(),
+            };
+            geojson::Feature {
+                bbox: None,
+                geometry: Some(geojson::Geometry::new(geojson::GeometryValue::new_line_string([
+                    [a.lon, a.lat],
+                    [b.lon, b.lat],
+                ]))),
+                id: None,
+                properties: Some(props),
+                foreign_members: None,
+            }
+        })
+        .collect();
+    geojson::FeatureCollection { bbox: None, features, foreign_members: None }
+}
+
+/// An aligned text table.
+pub fn table(rows: &[LinkRow], sinr_db: f64, target: f64) -> String {
+    let mut s = format!(
+        "{:<8} {:<8} {:>8} {:>7} {:>7} {:>7} {:>8} {:>8} {:>7} {:>7} {:>7} {:>8}  {}\n",
+        "from",
+        "to",
+        "len_m",
+        "mis_tx",
+        "mis_rx",
+        "sig_dBm",
+        "int_dBm",
+        "SINR_dB",
+        "P_cov",
+        "margin",
+        "Mbit/s",
+        "status",
+        "top interferers"
+    );
+    for r in rows {
+        let flag = |m: bool| if m { "!" } else { "" };
+        s += &format!(
+            "{:<8} {:<8} {:>8.1} {:>6.1}{:1} {:>6.1}{:1} {:>7.1} {:>8} {:>8.2} {:>7.4} {:>7.2} {:>7.0} {:>8}  {}\n",
+            r.from,
+            r.to,
+            r.length_m,
+            r.misalign_from_deg,
+            flag(r.misaligned_from),
+            r.misalign_to_deg,
+            flag(r.misaligned_to),
+            r.signal_dbm,
+            r.interference_dbm.map(|v| format!("{v:.1}")).unwrap_or("-".into()),
+            r.sinr_db,
+            r.coverage,
+            r.margin_db,
+            r.capacity_mbps,
+            if r.passes { "ok" } else { "FAIL" },
+            tops(r)
+        );
+        if let Some(m) = &r.monte_carlo {
+            s += &format!("{:>40} Monte Carlo P_cov {:.4} [{:.4}, {:.4}]\n", "", m.estimate, m.low, m.high);
+        }
+    }
+    let fails = rows.iter().filter(|r| !r.passes).count();
+    s += &format!(
+        "{} link(s); {} below SINR {} dB or coverage {}; '!' marks an end misaligned beyond half its beamwidth\n",
+        rows.len(),
+        fails,
+        sinr_db,
+        target
+    );
+    s
+}

@@ -1,0 +1,176 @@
+//! The links job, the installer sheet and the HTML report, end to end on the demo site.
+
+use std::path::Path;
+use std::process::{Command, Output};
+
+fn run(args: &[&str]) -> Output {
+    Command::new(env!("CARGO_BIN_EXE_lobemap")).current_dir(env!("CARGO_MANIFEST_DIR")).args(args).output().unwrap()
+}
+
+fn links_out() -> (tempfile::TempDir, std::path::PathBuf) {
+    let d = tempfile::tempdir().unwrap();
+    let out = d.path().join("links");
+    let o = run(&["links", "sites/harbourlight/scenario.toml", "--out", out.to_str().unwrap(), "--quiet"]);
+    assert!(o.status.success(), "{}", String::from_utf8_lossy(&o.stderr));
+    (d, out)
+}
+
+#[test]
+fn links_tables_and_installer_sheet() {
+    let (_d, out) = links_out();
+    let gj: serde_json::Value =
+        serde_json::from_str(&std::fs::read_to_string(out.join("links.geojson")).unwrap()).unwrap();
+    let feats = gj["features"].as_array().unwrap();
+    assert_eq!(feats.len(), 20, "12 backbone links (6 mutual pairs) and 8 terminal links");
+    for f in feats {
+        assert_eq!(f["geometry"]["type"], "LineString");
+        for k in [
+            "from",
+            "to",
+            "length_m",
+            "signal_dbm",
+            "interference_dbm",
+            "noise_dbm",
+            "sinr_db",
+            "coverage",
+            "margin_db",
+            "capacity_mbps",
+            "misalign_from_deg",
+            "misalign_to_deg",
+            "top_interferers",
+        ] {
+            assert!(f["properties"].get(k).is_some(), "{k}");
+        }
+        let c = f["properties"]["coverage"].as_f64().unwrap();
+        assert!((0.0..=1.0).contains(&c));
+    }
+    // The deliberately misaligned dish (BB08, 4° off with a 2.5° beam) is flagged with the
+    // azimuth it should have.
+    let bb = feats.iter().find(|f| f["properties"]["from"] == "BB07").unwrap();
+    assert_eq!(bb["properties"]["misaligned_to"], true);
+    let should = bb["properties"]["azimuth_to_should_deg"].as_f64().unwrap();
+    let back = (bb["properties"]["bearing_deg"].as_f64().unwrap() + 180.0) % 360.0;
+    assert!((should - back).abs() < 0.02);
+    let csv = std::fs::read_to_string(out.join("install.csv")).unwrap();
+    let lines: Vec<&str> = csv.lines().collect();
+    assert!(lines[0].starts_with('#') && lines[0].contains("W/m2") && lines[0].contains("local exposure rules"));
+    assert!(lines[1].starts_with("id,name,lat,lon,height_m,azimuth_true_deg,declination_deg,azimuth_magnetic_deg"));
+    assert_eq!(lines.len(), 2 + 44);
+    // Magnetic = true − declination, modulo 360 (the definition of declination).
+    for l in &lines[2..] {
+        let f: Vec<&str> = l.split(',').collect();
+        let (t, d, m): (f64, f64, f64) = (f[5].parse().unwrap(), f[6].parse().unwrap(), f[7].parse().unwrap());
+        let diff = ((t - d - m) % 360.0 + 360.0) % 360.0;
+        assert!(!(0.11..=359.89).contains(&diff), "{l}");
+    }
+}
+
+#[test]
+fn strict_exits_3_when_a_link_fails() {
+    let d = tempfile::tempdir().unwrap();
+    let o = run(&[
+        "links",
+        "sites/harbourlight/scenario.toml",
+        "--out",
+        d.path().join("s").to_str().unwrap(),
+        "--strict",
+        "--no-maps",
+        "--quiet",
+    ]);
+    assert_eq!(o.status.code(), Some(3));
+}
+
+#[test]
+fn bad_fading_and_date_are_input_errors() {
+    let d = tempfile::tempdir().unwrap();
+    let text = std::fs::read_to_string(Path::new(env!("CARGO_MANIFEST_DIR")).join("sites/harbourlight/scenario.toml"))
+        .unwrap();
+    std::fs::copy(
+        Path::new(env!("CARGO_MANIFEST_DIR")).join("sites/harbourlight/nodes.geojson"),
+        d.path().join("nodes.geojson"),
+    )
+    .unwrap();
+    let bad = text
+        .replace("k_db = 9", "k_db = 90")
+        .replace("declination_date = \"2026-12-01\"", "declination_date = \"2034-02-30\"");
+    let p = d.path().join("s.toml");
+    std::fs::write(&p, bad).unwrap();
+    let o = run(&["links", p.to_str().unwrap(), "--out", d.path().join("o").to_str().unwrap()]);
+    assert_eq!(o.status.code(), Some(2));
+    let e = String::from_utf8_lossy(&o.stderr);
+    assert!(e.contains("[fading]") && e.contains("k_db") && e.contains("[-30, 40]"), "{e}");
+    assert!(e.contains("declination_date") && e.contains("2029-12-31"), "{e}");
+    assert!(!d.path().join("o").exists());
+    let self_peer = std::fs::read_to_string(d.path().join("nodes.geojson")).unwrap().replacen(
+        "\"peer\": \"BB02\"",
+        "\"peer\": \"BB01\"",
+        1,
+    );
+    std::fs::write(d.path().join("nodes.geojson"), self_peer).unwrap();
+    std::fs::write(&p, &text).unwrap();
+    let o = run(&["check", p.to_str().unwrap()]);
+    assert_eq!(o.status.code(), Some(2));
+    assert!(String::from_utf8_lossy(&o.stderr).contains("names itself"));
+}
+
+/// The report is self-contained (no external references) and, opened in headless Chromium,
+/// logs nothing to the console and renders a non-blank page. .ci/run installs Debian's
+/// chromium; only when that install is impossible does it set LOBEMAP_BROWSER_OPTIONAL=1.
+#[test]
+fn report_renders_in_headless_chromium() {
+    let (d, out) = links_out();
+    let html = std::fs::read_to_string(out.join("report.html")).unwrap();
+    assert!(
+        html.contains("Cautions")
+            && html.contains("RF exposure")
+            && html.contains("Work at height")
+            && html.contains("licensing")
+    );
+    assert!(html.matches("data:image/png;base64,").count() == 3);
+    for bad in ["src=\"http", "href=\"http", "<script", "@import", "url(http"] {
+        assert!(!html.contains(bad), "external or scripted content: {bad}");
+    }
+    let chromium = ["chromium", "chromium-browser"]
+        .into_iter()
+        .find(|c| Command::new(c).arg("--version").output().is_ok_and(|o| o.status.success()));
+    let Some(chromium) = chromium else {
+        if std::env::var("LOBEMAP_BROWSER_OPTIONAL").is_ok() {
+            eprintln!(
+                "\n!!!!! SKIPPED: chromium is not installed and could not be installed; the report was NOT checked in a browser !!!!!\n"
+            );
+            return;
+        }
+        panic!("chromium not found: install Debian's chromium package (bash .ci/run does)");
+    };
+    let shot = d.path().join("shot.png");
+    let profile = d.path().join("profile");
+    let o = Command::new(chromium)
+        .args([
+            "--headless",
+            "--no-sandbox",
+            "--disable-gpu",
+            "--disable-quic",
+            "--no-first-run",
+            "--disable-background-networking",
+            "--disable-component-update",
+            "--disable-sync",
+            "--enable-logging=stderr",
+            "--v=0",
+            "--window-size=1400,1800",
+        ])
+        .arg(format!("--user-data-dir={}", profile.display()))
+        .arg(format!("--screenshot={}", shot.display()))
+        .arg(format!("file://{}", out.join("report.html").display()))
+        .output()
+        .unwrap();
+    let log = String::from_utf8_lossy(&o.stderr);
+    let console: Vec<&str> = log.lines().filter(|l| l.contains(":CONSOLE")).collect();
+    assert!(console.is_empty(), "console messages: {console:?}");
+    let img = image::open(&shot).unwrap_or_else(|e| panic!("no screenshot ({e}); chromium said: {log}")).to_rgb8();
+    let n = (img.width() * img.height()) as f64;
+    let mean = img.pixels().map(|p| p.0.iter().map(|v| *v as f64).sum::<f64>() / 3.0).sum::<f64>() / n;
+    let var = img.pixels().map(|p| (p.0.iter().map(|v| *v as f64).sum::<f64>() / 3.0 - mean).powi(2)).sum::<f64>() / n;
+    assert!(var.sqrt() > 20.0, "screenshot looks blank (sd {})", var.sqrt());
+    let distinct: std::collections::HashSet<[u8; 3]> = img.pixels().step_by(7).map(|p| p.0).collect();
+    assert!(distinct.len() > 200, "too few colours: the maps did not render");
+}
