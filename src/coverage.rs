@@ -13,9 +13,12 @@
 //! - Moment matching: μ = E[X] Σ a_i P̄_i, σ² = Σ (a_i E[h²]E[X²] − a_i² E[X]²) P̄_i²; I ≈ Gamma(μ²/σ²,
 //!   σ²/μ). The signal's fading is put in gamma form with shape 1/(E[h₀²] − 1) (for Rician h₀
 //!   this is (K+1)²/(2K+1), Nakagami 1960; shapes above 50 are taken as 50) and
-//!   P = E_{h₀,X₀}[F_I(S̄h₀X₀/T − N)]. Below s* = T·N the integrand is zero, so the signal
-//!   integral starts at s*: with s = s* + θ_s x, ∫ f_S(s) F_I(s/T − N) ds = ∫ e^{−x} g(x) dx with a
-//!   smooth g, done by 32-point Gauss–Laguerre; the shadowing by 6-point Gauss–Hermite.
+//!   P = E_{h₀,X₀}[F_I(S̄h₀X₀/T − N)]. For an integer signal shape m this has the closed
+//!   "Laplace form" Σ_{j<m} (−s)^j/j! L^{(j)}(s), s = mT/S̄, with L the transform of the gamma
+//!   interference plus noise (see [`gamma_signal_laplace_form`]); other m ≥ 1 interpolate
+//!   between the neighbouring integers the ratio to the exact noise-only probability (error
+//!   below 0.006 in the tests); m < 1 integrates numerically over ln z. Shadowing: 6-point
+//!   Gauss–Hermite.
 //!
 //! # References
 //! - J. G. Andrews, F. Baccelli and R. K. Ganti, "A tractable approach to coverage and rate in
@@ -24,7 +27,6 @@
 //! - M. Haenggi, Stochastic Geometry for Wireless Networks, 2012, ch. 5.
 
 use crate::fading::{Fading, lognormal_moment};
-use crate::quadrature::gamma_expectation_rule;
 
 use crate::scenario::FadingSpec;
 use crate::units::{db_to_lin, dbm_to_mw};
@@ -32,6 +34,34 @@ use rand::{RngExt, SeedableRng};
 use rand_distr::{Distribution, Exp1, Gamma, StandardNormal};
 use rayon::prelude::*;
 use statrs::function::gamma::gamma_lr;
+
+/// P[S ≥ T(I + N)] for S ~ Gamma(m, S̄/m) with integer m ≥ 1 and I ~ Gamma(k, θ) (or I = 0
+/// when k is infinite), from the Laplace transform L(s) = e^{−sN}(1 + θs)^{−k} of I + N:
+/// P = Σ_{j<m} (−s)^j/j! L^{(j)}(s) at s = mT/S̄, expanded by Leibniz's rule into
+/// e^{−sN}(1+θs)^{−k} Σ_j Σ_{i≤j} (sN)^{j−i}/(j−i)! · (k)_i/i! · (θs/(1+θs))^i (all terms positive).
+pub fn gamma_signal_laplace_form(m: u32, s_bar: f64, t_lin: f64, noise: f64, k: f64, theta: f64) -> f64 {
+    let s = m as f64 * t_lin / s_bar;
+    let sn = s * noise;
+    let r = if theta > 0.0 { theta * s / (1.0 + theta * s) } else { 0.0 };
+    let base_ln = -sn - if theta > 0.0 { k * (theta * s).ln_1p() } else { 0.0 };
+    // a_i = (k)_i r^i / i!, b_l = (sN)^l / l!; P = e^base Σ_{j<m} Σ_{i≤j} a_i b_{j−i}.
+    let m = m as usize;
+    let mut a = vec![0.0; m];
+    let mut b = vec![0.0; m];
+    a[0] = 1.0;
+    b[0] = 1.0;
+    for i in 1..m {
+        a[i] = a[i - 1] * (k + (i - 1) as f64) * r / i as f64;
+        b[i] = b[i - 1] * sn / i as f64;
+    }
+    let mut sum = 0.0;
+    for j in 0..m {
+        for i in 0..=j {
+            sum += a[i] * b[j - i];
+        }
+    }
+    (base_ln.exp() * sum).clamp(0.0, 1.0)
+}
 
 /// Largest gamma shape used for the signal (Rician K above about 20 dB is treated as 50).
 pub const MAX_SIGNAL_SHAPE: f64 = 50.0;
@@ -72,7 +102,7 @@ pub struct CoverageModel {
     pub e2: f64,
     /// Gamma shape of the signal's fading (∞: none).
     pub signal_shape: f64,
-    rule: Vec<(f64, f64)>,
+    gl: Vec<(f64, f64)>,
     /// (shadowing factor X₀, weight) nodes.
     shadow_rule: Vec<(f64, f64)>,
 }
@@ -88,7 +118,7 @@ impl CoverageModel {
             Method::MomentGamma
         };
         let signal_shape = spec.signal.gamma_shape().min(MAX_SIGNAL_SHAPE);
-        let rule = gamma_expectation_rule(32, 1.0);
+        let gl = crate::quadrature::gauss_legendre(4);
         let s_ln = spec.shadowing_db * std::f64::consts::LN_10 / 10.0;
         let shadow_rule = if spec.shadowing_db > 0.0 {
             crate::quadrature::normal_expectation_rule(6).into_iter().map(|(z, w)| ((s_ln * z).exp(), w)).collect()
@@ -103,7 +133,7 @@ impl CoverageModel {
             e1,
             e2: spec.interferer.moment(2) * ex2,
             signal_shape,
-            rule,
+            gl,
             shadow_rule,
         }
     }
@@ -147,33 +177,68 @@ impl CoverageModel {
         };
         let mut total = 0.0;
         let m = self.signal_shape;
-        let s_star = self.t_lin * self.noise_mw;
-        let lg = statrs::function::gamma::ln_gamma(m);
+        let (k, theta) =
+            if mu <= 0.0 || var <= mu * mu * 1e-12 { (f64::INFINITY, 0.0) } else { (mu * mu / var, var / mu) };
         for &(x0, wx) in &self.shadow_rule {
             let s = s_mw * x0;
             total += wx
-                * if m.is_finite() {
-                    // s = s* + θ x, θ = s̄/m; f_S(s) ds = e^{−x} · e^{−y*} (y* + x)^{m−1} / Γ(m) dx.
-                    let theta = s / m;
-                    let ystar = s_star / theta;
-                    // F_I ≤ 1, so P ≤ Q(m, y*): when that bound is negligible, skip the sum.
-                    if statrs::function::gamma::gamma_ur(m, ystar) < 1e-9 {
+                * if !m.is_finite() {
+                    f_i(s / self.t_lin - self.noise_mw)
+                } else if m >= 1.0 {
+                    // Laplace form at the integers around m, interpolated linearly in m.
+                    let (lo, hi) = (m.floor(), m.ceil());
+                    let at = |mi: f64| -> f64 {
+                        if k.is_finite() {
+                            gamma_signal_laplace_form(mi as u32, s, self.t_lin, self.noise_mw, k, theta)
+                        } else {
+                            // Deterministic interference μ: the signal's survival at T(μ + N).
+                            statrs::function::gamma::gamma_ur(mi, mi * self.t_lin * (mu + self.noise_mw) / s)
+                        }
+                    };
+                    // Interpolate the ratio to the noise-only value, which is exact for any m,
+                    // so noise-limited cells come out exact and the rest interpolate smoothly.
+                    let q = |mi: f64| statrs::function::gamma::gamma_ur(mi, mi * self.t_lin * self.noise_mw / s);
+                    let qm = q(m);
+                    if qm < 1e-12 {
                         0.0
+                    } else if hi == lo {
+                        at(lo)
                     } else {
-                        self.rule
-                            .iter()
-                            .map(|&(x, w)| {
-                                let y = ystar + x;
-                                let lnf = -ystar + (m - 1.0) * y.ln() - lg;
-                                w * lnf.exp() * f_i(theta * y / self.t_lin - self.noise_mw)
-                            })
-                            .sum::<f64>()
+                        let ratio = |mi: f64| {
+                            let qi = q(mi);
+                            if qi > 0.0 { at(mi) / qi } else { 0.0 }
+                        };
+                        (qm * (ratio(lo) * (hi - m) + ratio(hi) * (m - lo))).clamp(0.0, 1.0)
                     }
                 } else {
-                    f_i(s / self.t_lin - self.noise_mw)
+                    self.numeric(s, m, &f_i)
                 };
         }
         total.clamp(0.0, 1.0)
+    }
+
+    /// T ∫_0^∞ f_S(s* + T z) F_I(z) dz over u = ln z (16 panels of 4-point Gauss–Legendre on
+    /// seven decades below the signal's upper range), for signal shapes below 1.
+    fn numeric(&self, s: f64, m: f64, f_i: &dyn Fn(f64) -> f64) -> f64 {
+        let s_star = self.t_lin * self.noise_mw;
+        let theta_s = s / m;
+        let lg = statrs::function::gamma::ln_gamma(m);
+        let s_hi = theta_s * (m + 12.0 * m.sqrt() + 40.0);
+        let z_hi = ((s_hi - s_star) / self.t_lin).max(1e-300);
+        let (u0, u1) = ((z_hi * 1e-7).ln(), z_hi.ln());
+        let panels = 16;
+        let h = (u1 - u0) / panels as f64;
+        let mut acc = 0.0;
+        for p in 0..panels {
+            let c = u0 + (p as f64 + 0.5) * h;
+            for &(x, w) in &self.gl {
+                let z = (c + x * h / 2.0).exp();
+                let y = (s_star + self.t_lin * z) / theta_s;
+                let f_s = ((m - 1.0) * y.ln() - y - lg).exp() / theta_s;
+                acc += w * h / 2.0 * self.t_lin * f_s * f_i(z) * z;
+            }
+        }
+        acc
     }
 
     /// P[SINR ≥ T] for mean signal `s_mw` and interferers (activity, mean power mW).
@@ -333,5 +398,57 @@ mod tests {
         let (p, lo, hi) = wilson(8, 10);
         assert_eq!(p, 0.8);
         assert!((lo - 0.4902).abs() < 1e-3 && (hi - 0.9433).abs() < 1e-3, "{lo} {hi}");
+    }
+}
+#[cfg(test)]
+mod laplace_form_checks {
+    use super::*;
+
+    // Self-consistency of the two evaluations of the moment-matched coverage: the Laplace
+    // form at integer signal shapes (interpolated in m through the exact noise-only value)
+    // against direct numerical integration (16 log-spaced panels of 8-point Gauss–Legendre),
+    // over Rician K from −3 to 15 dB, interference shapes 0.05 to 20 and I/N from −20 to
+    // +3 dB. The interpolation in m costs at most 0.006.
+    #[test]
+    fn laplace_form_matches_numerical_integration() {
+        let mut worst = 0.0f64;
+        for k_db in [-3.0, 3.0, 9.0, 15.0] {
+            let spec = FadingSpec {
+                signal: Fading::rician_db(k_db).unwrap(),
+                interferer: Fading::Rayleigh,
+                shadowing_db: 0.0,
+            };
+            let mut mref = CoverageModel::new(spec, 6.0, -80.0);
+            mref.gl = crate::quadrature::gauss_legendre(8);
+            for s_dbm in [-80.0, -76.0, -72.0, -68.0, -60.0] {
+                for i_rel in [-20.0, -10.0, -6.0, -3.0, 0.0, 3.0] {
+                    for k in [0.05, 0.5, 2.0, 20.0] {
+                        let mu = dbm_to_mw(-80.0 + i_rel);
+                        let var = mu * mu / k;
+                        let a = mref.from_moments(dbm_to_mw(s_dbm), mu, var);
+                        let f_i = |z: f64| if z < 0.0 { 0.0 } else { gamma_lr(k, z / (var / mu)) };
+                        let b = mref.numeric(dbm_to_mw(s_dbm), mref.signal_shape, &f_i);
+                        worst = worst.max((a - b).abs());
+                    }
+                }
+            }
+        }
+        assert!(worst < 0.006, "worst difference {worst}");
+    }
+
+    // For an integer Nakagami signal the Laplace form is exact: against the numerical
+    // integral at m = 3 within 1e-4.
+    #[test]
+    fn laplace_form_is_exact_at_integer_shape() {
+        let spec = FadingSpec { signal: Fading::Nakagami { m: 3.0 }, interferer: Fading::Rayleigh, shadowing_db: 0.0 };
+        let mut m = CoverageModel::new(spec, 3.0, -80.0);
+        m.gl = crate::quadrature::gauss_legendre(8);
+        for (s_dbm, mu_dbm, k) in [(-70.0, -82.0, 0.3), (-74.0, -79.0, 3.0), (-66.0, -75.0, 0.08)] {
+            let (mu, var) = (dbm_to_mw(mu_dbm), dbm_to_mw(mu_dbm).powi(2) / k);
+            let a = m.from_moments(dbm_to_mw(s_dbm), mu, var);
+            let f_i = |z: f64| if z < 0.0 { 0.0 } else { gamma_lr(k, z / (var / mu)) };
+            let b = m.numeric(dbm_to_mw(s_dbm), 3.0, &f_i);
+            assert!((a - b).abs() < 1e-4, "{s_dbm} {mu_dbm} {k}: {a} vs {b}");
+        }
     }
 }

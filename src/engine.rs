@@ -372,7 +372,9 @@ impl Lt for LtRician {
     }
 }
 
-/// Coverage, exact form: Σ log2(1 − a + a L(T p g_rx / S)) over interferers.
+/// Coverage, exact form: Π (1 − a + a L(T p g_rx / S)) over interferers, accumulated as a
+/// product floored at 1e−30 (a coverage below that is zero for any purpose; no underflow into
+/// slow subnormals).
 #[inline(always)]
 fn pass_cov_exact<D: Decay, G: TxGain, L: Lt>(d: D, g: G, lt: L, n: &NodeK, rx: (f32, f32, f32), b: &mut RowBufs) {
     let (rcc, rmain, rside) = rx;
@@ -388,7 +390,7 @@ fn pass_cov_exact<D: Decay, G: TxGain, L: Lt>(d: D, g: G, lt: L, n: &NodeK, rx: 
         let gr = if t * t.abs() >= rcc * w2 { rmain } else { rside };
         let term = 1.0 - n.act + n.act * lt.l(tinv[c] * p * gr);
         let own = server[c] == n.idx;
-        acc[c] += if own { 0.0 } else { fast_log2(term) };
+        acc[c] = if own { acc[c] } else { (acc[c] * term).max(1e-30) };
     }
 }
 
@@ -743,9 +745,9 @@ impl<'s> Engine<'s> {
                 let sig = self.g_signal * b.best[c];
                 b.tinv[c] = if sig > 0.0 { t_lin / sig } else { 0.0 };
             }
-            b.cacc.fill(0.0);
-            b.cvar.fill(0.0);
             let exact = self.cov.method == crate::coverage::Method::Exact;
+            b.cacc.fill(if exact { 1.0 } else { 0.0 });
+            b.cvar.fill(0.0);
             let (e1, e2) = (self.cov.e1 as f32, self.cov.e2 as f32);
             for &k in &cand {
                 let n = &self.nodes[k];
@@ -784,7 +786,7 @@ impl<'s> Engine<'s> {
                 *out = if b.server[c] == u32::MAX || sig <= 0.0 {
                     NODATA
                 } else if exact {
-                    self.cov.from_log2_product(sig, b.cacc[c] as f64) as f32
+                    self.cov.from_log2_product(sig, (b.cacc[c] as f64).log2()) as f32
                 } else {
                     self.cov.from_moments(sig, b.cacc[c] as f64, b.cvar[c] as f64) as f32
                 };

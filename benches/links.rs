@@ -1,0 +1,75 @@
+//! `links` throughput: 1000 planned links among 5000 nodes (every node counted as an
+//! interferer of every link), with and without a Rician coverage model. `cargo bench --bench links`.
+
+use lobemap::antenna::Pattern;
+use lobemap::fading::Fading;
+use lobemap::geodesy::LocalFrame;
+use lobemap::grid::{BBox, Grid};
+use lobemap::nodes::Node;
+use lobemap::pathloss::{Law, PathLoss};
+use lobemap::scenario::{FadingSpec, InstallSettings, LinkSettings, Radio, Receiver, Scenario, Thresholds};
+use rand::{RngExt, SeedableRng};
+use std::time::Instant;
+
+fn main() {
+    let frame = LocalFrame::new(52.0, 5.0);
+    let mut rng = rand_pcg::Pcg64::seed_from_u64(3);
+    let half = 3000.0;
+    let pattern = Pattern::Parabolic { beamwidth_deg: 3.0, gain_dbi: 34.0, floor_dbi: -5.0 };
+    let mut nodes: Vec<Node> = (0..5000)
+        .map(|k| {
+            let (lon, lat) = frame.to_geo(rng.random_range(-half..half), rng.random_range(-half..half));
+            Node {
+                id: format!("n{k}"),
+                lon,
+                lat,
+                azimuth_deg: rng.random_range(0.0..360.0),
+                pattern,
+                power_dbm: 10.0,
+                height_m: 8.0,
+                activity: 0.5,
+                peer: None,
+                name: None,
+            }
+        })
+        .collect();
+    for (k, n) in nodes.iter_mut().take(1000).enumerate() {
+        n.peer = Some(format!("n{}", k + 1000));
+    }
+    let (w, s) = frame.to_geo(-half, -half);
+    let (e, n) = frame.to_geo(half, half);
+    let mut sc = Scenario {
+        name: "bench".into(),
+        path: "bench.toml".into(),
+        nodes_path: "bench.geojson".into(),
+        nodes,
+        radio: Radio { frequency_ghz: 60.0, bandwidth_mhz: 2160.0, noise_figure_db: 8.0 },
+        pathloss: PathLoss::new(Law::CloseIn { exponent: 2.1 }, 60.0, 15.0, 1.0, "bench").unwrap(),
+        receiver: Receiver { height_m: 5.0, pattern: Pattern::Omni { gain_dbi: 0.0 }, aimed: false },
+        grid: Grid::new(BBox { west: w, south: s, east: e, north: n }, 50.0).unwrap(),
+        frame,
+        thresholds: Thresholds { sinr_db: 6.0, hotspot_i_over_n_db: 0.0, coverage_target: 0.9 },
+        draw: None,
+        fading: FadingSpec::default(),
+        links: LinkSettings { capacity_gap_db: 3.0, max_spectral_efficiency: 8.0 },
+        install: InstallSettings { declination_date: (2026, 1) },
+    };
+    for (label, f) in [
+        ("no fading", FadingSpec::default()),
+        (
+            "Rician 9 dB signal, Rayleigh interferers",
+            FadingSpec { signal: Fading::rician_db(9.0).unwrap(), interferer: Fading::Rayleigh, shadowing_db: 0.0 },
+        ),
+    ] {
+        sc.fading = f;
+        let _ = lobemap::links::links(&sc, None);
+        let t0 = Instant::now();
+        let rows = lobemap::links::links(&sc, None);
+        println!(
+            "links, {label}: {} links among {} nodes in {:.3} s",
+            rows.len(),
+            sc.nodes.len(),
+            t0.elapsed().as_secs_f64()
+        );
+    }
+}
