@@ -114,12 +114,12 @@ struct AggArgs {
     /// Interferer density before thinning, per km².
     #[arg(long)]
     density_per_km2: Option<f64>,
-    /// Independent retention probability (0, 1].
-    #[arg(long, default_value_t = 1.0)]
-    keep: f64,
-    /// Matérn II hard-core distance, m (0: none).
-    #[arg(long, default_value_t = 0.0)]
-    hard_core_m: f64,
+    /// Independent retention probability (0, 1] [default: scenario [draw], else 1].
+    #[arg(long)]
+    keep: Option<f64>,
+    /// Matérn II hard-core distance, m [default: scenario [draw], else 0 (none)].
+    #[arg(long)]
+    hard_core_m: Option<f64>,
     /// Outer radius of the interferer region, m.
     #[arg(long, default_value_t = 1000.0)]
     radius_m: f64,
@@ -165,9 +165,10 @@ struct AggArgs {
     /// Minimum distance (clamp), m [default: scenario, else 1].
     #[arg(long)]
     min_distance_m: Option<f64>,
-    /// Fading of each interfering link: none, rayleigh, nakagami, rician.
-    #[arg(long, default_value = "rayleigh")]
-    fading: String,
+    /// Fading of each interfering link: none, rayleigh, nakagami, rician [default: the
+    /// scenario's interferer fading, else rayleigh].
+    #[arg(long)]
+    fading: Option<String>,
     /// Rician K-factor, dB.
     #[arg(long, default_value_t = 6.0, allow_hyphen_values = true)]
     k_db: f64,
@@ -265,8 +266,9 @@ fn run(cli: Cli) -> anyhow::Result<ExitCode> {
             let sc = Scenario::load(&path)?;
             let out = map.out.clone().unwrap_or_else(|| PathBuf::from("outputs/demo"));
             map_cmd(&sc, map, cli.quiet, Some("outputs/demo"))?;
-            // One sweep of the random-field characterisation with the demo's radio values:
-            // how the beamwidth of a dense field of access nodes shapes the aggregate.
+            // One sweep of the random-field characterisation with the demo's radio values and its
+            // lamp-post sector (15/−5 dBi, 16 dBm): how the beamwidth of a dense field of access
+            // nodes shapes the aggregate at a receiver with the site's aimed antenna.
             let agg_out = out.join("aggregate");
             let args = [
                 "lobemap",
@@ -279,6 +281,12 @@ fn run(cli: Cli) -> anyhow::Result<ExitCode> {
                 "15",
                 "--radius-m",
                 "1500",
+                "--gain-dbi",
+                "15",
+                "--sidelobe-dbi",
+                "-5",
+                "--power-dbm",
+                "16",
                 "--fading",
                 "rician",
                 "--k-db",
@@ -493,23 +501,37 @@ fn field_spec(a: &AggArgs) -> anyhow::Result<lobemap::aggregate::FieldSpec> {
     };
     let gain = a.gain_dbi.or(sc_g).unwrap_or(0.0);
     let rx_gain = a.rx_gain_dbi.or(rx_g).unwrap_or(0.0);
-    let density = match (a.density_per_km2, &a.sweep) {
+    let draw = sc.as_ref().and_then(|s| s.draw.clone());
+    let density = match (a.density_per_km2.or(draw.as_ref().map(|d| d.density_per_km2)), &a.sweep) {
         (Some(d), _) => d,
         (None, Some(sw)) if sw.starts_with("density_per_km2=") => 1.0,
-        _ => return Err(bad_flag("--density-per-km2", "missing; give the interferer density per km²".into())),
+        _ => {
+            return Err(bad_flag(
+                "--density-per-km2",
+                "missing; give the interferer density per km² (or a scenario with a [draw] table)".into(),
+            ));
+        }
+    };
+    // The scenario's interferer fading, unless --fading says otherwise.
+    let (fading, k_db, m) = match (a.fading.as_deref(), sc.as_ref().map(|s| s.fading.interferer)) {
+        (Some(f), _) => (f.to_string(), a.k_db, a.m),
+        (None, Some(lobemap::fading::Fading::None)) => ("none".into(), a.k_db, a.m),
+        (None, Some(lobemap::fading::Fading::Rayleigh)) | (None, None) => ("rayleigh".into(), a.k_db, a.m),
+        (None, Some(lobemap::fading::Fading::Nakagami { m })) => ("nakagami".into(), a.k_db, m),
+        (None, Some(lobemap::fading::Fading::Rician { k })) => ("rician".into(), 10.0 * k.log10(), a.m),
     };
     Ok(lobemap::aggregate::FieldSpec {
         density_per_km2: density,
-        keep: a.keep,
-        hard_core_m: a.hard_core_m,
+        keep: a.keep.or(draw.as_ref().map(|d| d.keep)).unwrap_or(1.0),
+        hard_core_m: a.hard_core_m.or(draw.as_ref().map(|d| d.hard_core_m)).unwrap_or(0.0),
         guard_m: a.guard_m,
         radius_m: a.radius_m,
         power_dbm: a.power_dbm.or(sc_p).unwrap_or(20.0),
         tx: (a.beamwidth_deg.or(sc_bw).unwrap_or(360.0), gain, a.sidelobe_dbi.or(sc_s).unwrap_or(gain)),
         rx: (a.rx_beamwidth_deg.or(rx_bw).unwrap_or(360.0), rx_gain, a.rx_sidelobe_dbi.or(rx_s).unwrap_or(rx_gain)),
-        fading: a.fading.clone(),
-        m: a.m,
-        k_db: a.k_db,
+        fading,
+        m,
+        k_db,
         model: a.model.clone().unwrap_or(model.into()),
         exponent: a.exponent.unwrap_or(exponent),
         loss_at_1m_db: a.loss_at_1m_db.unwrap_or(l1),
@@ -616,11 +638,13 @@ fn aggregate_cmd(a: AggArgs, quiet: bool) -> anyhow::Result<ExitCode> {
         st.write("cdf.svg", lobemap::cdfplot::svg(&curves, title).map_err(io)?.as_bytes())?;
         st.write("aggregate.json", serde_json::to_string_pretty(&json)?.as_bytes())?;
         let files = st.commit()?;
-        eprintln!(
-            "wrote {} files to {}",
-            files.len(),
-            a.out.as_ref().map(|p| p.display().to_string()).unwrap_or_default()
-        );
+        if !quiet {
+            eprintln!(
+                "wrote {} files to {}",
+                files.len(),
+                a.out.as_ref().map(|p| p.display().to_string()).unwrap_or_default()
+            );
+        }
     }
     Ok(ExitCode::SUCCESS)
 }

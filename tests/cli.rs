@@ -253,6 +253,12 @@ fn peer_that_names_no_node() {
 }
 
 #[test]
+fn peers_at_the_same_spot() {
+    let n = GOOD_NODES.replace("[8.010,50.000]", "[8.000,50.000]");
+    expect_bad(GOOD_TOML, &n, &["feature 0 (id A)", "peer", "same spot"]);
+}
+
+#[test]
 fn grid_too_large_for_memory() {
     let t = GOOD_TOML.replace("cell_m = 10", "cell_m = 0.1").replace("margin_m = 200", "margin_m = 2000");
     expect_bad(&t, GOOD_NODES, &["[grid]", "cell_m", "MiB", "larger cell_m"]);
