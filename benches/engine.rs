@@ -45,22 +45,14 @@ fn layout(nodes: usize, cells_side: usize, exponent: f64, aimed: bool) -> Scenar
     } else {
         Pattern::Omni { gain_dbi: 0.0 }
     };
-    Scenario {
-        name: "bench".into(),
-        path: "bench.toml".into(),
-        nodes_path: "bench.geojson".into(),
+    Scenario::from_parts(
         nodes,
-        radio: Radio { frequency_ghz: 28.0, bandwidth_mhz: 400.0, noise_figure_db: 7.0 },
-        pathloss: PathLoss::new(law, 28.0, 0.0, 1.0, "bench").unwrap(),
-        receiver: Receiver { height_m: 1.5, pattern: rx, aimed },
+        Radio { frequency_ghz: 28.0, bandwidth_mhz: 400.0, noise_figure_db: 7.0 },
+        PathLoss::new(law, 28.0, 0.0, 1.0, "bench").unwrap(),
+        Receiver { height_m: 1.5, pattern: rx, aimed },
         grid,
-        frame,
-        thresholds: Thresholds { sinr_db: 5.0, hotspot_i_over_n_db: 0.0, coverage_target: 0.9 },
-        draw: None,
-        fading: Default::default(),
-        links: lobemap::scenario::LinkSettings { capacity_gap_db: 3.0, max_spectral_efficiency: 8.0 },
-        install: lobemap::scenario::InstallSettings { declination_date: (2026, 1) },
-    }
+        Thresholds { sinr_db: 5.0, hotspot_i_over_n_db: 0.0, coverage_target: 0.9 },
+    )
 }
 
 fn measure(label: &str, sc: &Scenario, layers: LayerSet, reps: usize) {

@@ -7,7 +7,7 @@ use lobemap::geodesy::LocalFrame;
 use lobemap::grid::{BBox, Grid};
 use lobemap::nodes::Node;
 use lobemap::pathloss::{Law, PathLoss};
-use lobemap::scenario::{FadingSpec, InstallSettings, LinkSettings, Radio, Receiver, Scenario, Thresholds};
+use lobemap::scenario::{FadingSpec, Radio, Receiver, Scenario, Thresholds};
 use rand::{RngExt, SeedableRng};
 use std::time::Instant;
 
@@ -38,22 +38,14 @@ fn main() {
     }
     let (w, s) = frame.to_geo(-half, -half);
     let (e, n) = frame.to_geo(half, half);
-    let mut sc = Scenario {
-        name: "bench".into(),
-        path: "bench.toml".into(),
-        nodes_path: "bench.geojson".into(),
+    let mut sc = Scenario::from_parts(
         nodes,
-        radio: Radio { frequency_ghz: 60.0, bandwidth_mhz: 2160.0, noise_figure_db: 8.0 },
-        pathloss: PathLoss::new(Law::CloseIn { exponent: 2.1 }, 60.0, 15.0, 1.0, "bench").unwrap(),
-        receiver: Receiver { height_m: 5.0, pattern: Pattern::Omni { gain_dbi: 0.0 }, aimed: false },
-        grid: Grid::new(BBox { west: w, south: s, east: e, north: n }, 50.0).unwrap(),
-        frame,
-        thresholds: Thresholds { sinr_db: 6.0, hotspot_i_over_n_db: 0.0, coverage_target: 0.9 },
-        draw: None,
-        fading: FadingSpec::default(),
-        links: LinkSettings { capacity_gap_db: 3.0, max_spectral_efficiency: 8.0 },
-        install: InstallSettings { declination_date: (2026, 1) },
-    };
+        Radio { frequency_ghz: 60.0, bandwidth_mhz: 2160.0, noise_figure_db: 8.0 },
+        PathLoss::new(Law::CloseIn { exponent: 2.1 }, 60.0, 15.0, 1.0, "bench").unwrap(),
+        Receiver { height_m: 5.0, pattern: Pattern::Omni { gain_dbi: 0.0 }, aimed: false },
+        Grid::new(BBox { west: w, south: s, east: e, north: n }, 50.0).unwrap(),
+        Thresholds { sinr_db: 6.0, hotspot_i_over_n_db: 0.0, coverage_target: 0.9 },
+    );
     for (label, f) in [
         ("no fading", FadingSpec::default()),
         (

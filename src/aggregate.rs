@@ -392,16 +392,18 @@ fn bisect(mut lo: f64, mut hi: f64, ok: impl Fn(f64) -> bool, geometric: bool) -
     lo
 }
 
+/// P(I > x) by the moment-matched gamma alone.
+fn gamma_sf(f: &Field, x_mw: f64) -> f64 {
+    let rad = f.radial();
+    GammaFit::from_cumulants(f.cumulant(1, &rad), f.cumulant(2, &rad)).sf(x_mw)
+}
+
 /// The highest parent density (per km²) with P(I > budget) ≤ outage.
 pub fn max_density(field: &Field, budget_dbm: f64, outage: f64) -> PlanAnswer {
     let x = dbm_to_mw(budget_dbm);
     let with = |d: f64| Field { density_per_m2: d / 1e6, ..*field };
     let exact_ok = |d: f64| Exact::new(&with(d)).sf(x) <= outage;
-    let gamma_ok = |d: f64| {
-        let f = with(d);
-        let rad = f.radial();
-        GammaFit::from_cumulants(f.cumulant(1, &rad), f.cumulant(2, &rad)).sf(x) <= outage
-    };
+    let gamma_ok = |d: f64| gamma_sf(&with(d), x) <= outage;
     let search = |ok: &dyn Fn(f64) -> bool| -> Option<f64> {
         let mut hi = (field.density_per_m2 * 1e6).max(1e-3);
         let mut lo = hi;
@@ -445,11 +447,7 @@ pub fn min_guard(field: &Field, budget_dbm: f64, outage: f64) -> PlanAnswer {
     let x = dbm_to_mw(budget_dbm);
     let with = |g: f64| Field { guard_m: g, ..*field };
     let exact_ok = |g: f64| Exact::new(&with(g)).sf(x) <= outage;
-    let gamma_ok = |g: f64| {
-        let f = with(g);
-        let rad = f.radial();
-        GammaFit::from_cumulants(f.cumulant(1, &rad), f.cumulant(2, &rad)).sf(x) <= outage
-    };
+    let gamma_ok = |g: f64| gamma_sf(&with(g), x) <= outage;
     let r = field.radius_m;
     let search = |ok: &dyn Fn(f64) -> bool| -> Option<f64> {
         if ok(0.0) {

@@ -296,7 +296,7 @@ fn run(cli: Cli) -> anyhow::Result<ExitCode> {
                 "--seed",
                 "7",
                 "--threshold-dbm",
-                "-35",
+                "-55",
                 "--sweep",
                 "beamwidth_deg=10,30,90",
                 "--out",

@@ -630,6 +630,35 @@ impl Scenario {
         })
     }
 
+    /// A scenario built in code (tests, benchmarks, library users): the frame is placed at the
+    /// grid centre; no `[draw]`, no fading, default link and installer settings.
+    pub fn from_parts(
+        nodes: Vec<Node>,
+        radio: Radio,
+        pathloss: PathLoss,
+        receiver: Receiver,
+        grid: Grid,
+        thresholds: Thresholds,
+    ) -> Scenario {
+        let (lon, lat) = grid.bbox().centre();
+        Scenario {
+            name: "in-code".into(),
+            path: PathBuf::from("(in code)"),
+            nodes_path: PathBuf::from("(in code)"),
+            nodes,
+            radio,
+            pathloss,
+            receiver,
+            grid,
+            frame: LocalFrame::new(lat, lon),
+            thresholds,
+            draw: None,
+            fading: FadingSpec::default(),
+            links: LinkSettings { capacity_gap_db: 3.0, max_spectral_efficiency: 8.0 },
+            install: InstallSettings { declination_date: (2026, 1) },
+        }
+    }
+
     /// Receiver noise power, dBm.
     pub fn noise_dbm(&self) -> f64 {
         crate::noise::noise_dbm(self.radio.bandwidth_mhz, self.radio.noise_figure_db)

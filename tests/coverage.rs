@@ -7,7 +7,7 @@ use lobemap::geodesy::LocalFrame;
 use lobemap::grid::{BBox, Grid};
 use lobemap::nodes::Node;
 use lobemap::pathloss::{Law, PathLoss};
-use lobemap::scenario::{FadingSpec, InstallSettings, LinkSettings, Radio, Receiver, Scenario, Thresholds};
+use lobemap::scenario::{FadingSpec, Radio, Receiver, Scenario, Thresholds};
 use rand::{RngExt, SeedableRng};
 use rand_distr::{Distribution, Poisson};
 
@@ -19,24 +19,16 @@ fn scenario(
     bandwidth_mhz: f64,
     fading: FadingSpec,
 ) -> Scenario {
-    let grid = Grid::new(bbox, cell_m).unwrap();
-    let (lon, lat) = grid.bbox().centre();
-    Scenario {
-        name: "t".into(),
-        path: "t.toml".into(),
-        nodes_path: "t.geojson".into(),
+    let mut sc = Scenario::from_parts(
         nodes,
-        radio: Radio { frequency_ghz: 3.5, bandwidth_mhz, noise_figure_db: 0.0 },
-        pathloss: PathLoss::new(Law::PowerLaw { exponent: 4.0, loss_at_1m_db: 0.0 }, 3.5, 0.0, 1.0, "t").unwrap(),
-        receiver: Receiver { height_m: 10.0, pattern: Pattern::Omni { gain_dbi: 0.0 }, aimed: false },
-        grid,
-        frame: LocalFrame::new(lat, lon),
-        thresholds: Thresholds { sinr_db, hotspot_i_over_n_db: 0.0, coverage_target: 0.9 },
-        draw: None,
-        fading,
-        links: LinkSettings { capacity_gap_db: 3.0, max_spectral_efficiency: 8.0 },
-        install: InstallSettings { declination_date: (2026, 1) },
-    }
+        Radio { frequency_ghz: 3.5, bandwidth_mhz, noise_figure_db: 0.0 },
+        PathLoss::new(Law::PowerLaw { exponent: 4.0, loss_at_1m_db: 0.0 }, 3.5, 0.0, 1.0, "t").unwrap(),
+        Receiver { height_m: 10.0, pattern: Pattern::Omni { gain_dbi: 0.0 }, aimed: false },
+        Grid::new(bbox, cell_m).unwrap(),
+        Thresholds { sinr_db, hotspot_i_over_n_db: 0.0, coverage_target: 0.9 },
+    );
+    sc.fading = fading;
+    sc
 }
 
 /// Andrews, Baccelli and Ganti (IEEE Trans. Commun. 2011), Theorem 2 with α = 4 and no

@@ -11,7 +11,6 @@ use lobemap::probe::probe;
 use lobemap::scenario::{Radio, Receiver, Scenario, Thresholds};
 use rand::{RngExt, SeedableRng};
 use rand_distr::{Distribution, Poisson};
-use std::path::PathBuf;
 
 fn node(id: &str, lon: f64, lat: f64, az: f64, pattern: Pattern, power_dbm: f64, height_m: f64) -> Node {
     Node {
@@ -29,24 +28,14 @@ fn node(id: &str, lon: f64, lat: f64, az: f64, pattern: Pattern, power_dbm: f64,
 }
 
 fn scenario(nodes: Vec<Node>, pathloss: PathLoss, bbox: BBox, cell_m: f64, rx_height: f64) -> Scenario {
-    let grid = Grid::new(bbox, cell_m).unwrap();
-    let (lon, lat) = grid.bbox().centre();
-    Scenario {
-        name: "t".into(),
-        path: PathBuf::from("t.toml"),
-        nodes_path: PathBuf::from("t.geojson"),
+    Scenario::from_parts(
         nodes,
-        radio: Radio { frequency_ghz: pathloss.frequency_ghz(), bandwidth_mhz: 100.0, noise_figure_db: 7.0 },
+        Radio { frequency_ghz: pathloss.frequency_ghz(), bandwidth_mhz: 100.0, noise_figure_db: 7.0 },
         pathloss,
-        receiver: Receiver { height_m: rx_height, pattern: Pattern::Omni { gain_dbi: 0.0 }, aimed: false },
-        grid,
-        frame: LocalFrame::new(lat, lon),
-        thresholds: Thresholds { sinr_db: 5.0, hotspot_i_over_n_db: 0.0, coverage_target: 0.9 },
-        draw: None,
-        fading: Default::default(),
-        links: lobemap::scenario::LinkSettings { capacity_gap_db: 3.0, max_spectral_efficiency: 8.0 },
-        install: lobemap::scenario::InstallSettings { declination_date: (2026, 1) },
-    }
+        Receiver { height_m: rx_height, pattern: Pattern::Omni { gain_dbi: 0.0 }, aimed: false },
+        Grid::new(bbox, cell_m).unwrap(),
+        Thresholds { sinr_db: 5.0, hotspot_i_over_n_db: 0.0, coverage_target: 0.9 },
+    )
 }
 
 /// Hand-worked probe. P at (50°N, 8°E); node A 1000 m due east (geodesic destination, Karney
