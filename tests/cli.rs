@@ -136,9 +136,33 @@ fn same_bytes_for_any_thread_count() {
     assert!(
         run(&["map", p.to_str().unwrap(), "--out", b.to_str().unwrap(), "--quiet", "--threads", "2"]).status.success()
     );
-    for f in
-        ["total.tif", "interference.tif", "sinr.tif", "server.tif", "sinr.png", "hotspots.geojson", "layout.geojson"]
-    {
+    for (out, t) in [(&a, "1"), (&b, "2")] {
+        let o = run(&[
+            "links",
+            p.to_str().unwrap(),
+            "--out",
+            out.to_str().unwrap(),
+            "--quiet",
+            "--threads",
+            t,
+            "--monte-carlo",
+            "3000",
+        ]);
+        assert!(o.status.success(), "{}", stderr(&o));
+    }
+    for f in [
+        "total.tif",
+        "interference.tif",
+        "sinr.tif",
+        "server.tif",
+        "coverage.tif",
+        "sinr.png",
+        "hotspots.geojson",
+        "layout.geojson",
+        "links.csv",
+        "install.csv",
+        "report.html",
+    ] {
         assert_eq!(std::fs::read(a.join(f)).unwrap(), std::fs::read(b.join(f)).unwrap(), "{f} differs");
     }
 }
