@@ -506,20 +506,6 @@ impl<'s> Engine<'s> {
         self.cov.method
     }
 
-    /// Node indices within `radius_m` (horizontal) of a local point, nearest first (R-tree).
-    pub fn nodes_within(&self, x: f64, y: f64, radius_m: f64) -> Vec<usize> {
-        let mut v: Vec<(f64, usize)> = self
-            .tree
-            .locate_within_distance([x, y], radius_m * radius_m)
-            .map(|g| {
-                let [a, b] = *g.geom();
-                ((a - x).powi(2) + (b - y).powi(2), g.data)
-            })
-            .collect();
-        v.sort_by(|a, b| a.0.total_cmp(&b.0).then(a.1.cmp(&b.1)));
-        v.into_iter().map(|(_, i)| i).collect()
-    }
-
     /// Runs the engine over the whole grid.
     pub fn run(&self, opts: &Options) -> Layers {
         let pl = &self.sc.pathloss;
