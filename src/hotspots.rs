@@ -20,6 +20,18 @@ pub struct Region {
     pub area_m2: f64,
 }
 
+impl Region {
+    /// The exterior ring as (lon, lat) pairs, for drawing outlines.
+    pub fn exterior_lon_lat(&self) -> Vec<(f64, f64)> {
+        self.polygon.exterior().0.iter().map(|c| (c.x, c.y)).collect()
+    }
+}
+
+/// Exterior rings of several regions.
+pub fn outlines(regions: &[Region]) -> Vec<Vec<(f64, f64)>> {
+    regions.iter().map(Region::exterior_lon_lat).collect()
+}
+
 /// Regions where `data >= level` (or, with `below`, where `data < level`). Cells with
 /// [`NODATA`] count as outside.
 pub fn regions(grid: &Grid, data: &[f32], level: f32, below: bool) -> Vec<Region> {

@@ -51,9 +51,10 @@ pub struct MapSpec<'a> {
     pub links: &'a [(usize, usize)],
     /// Polygon rings (lon, lat) outlined over the map, e.g. hot spots.
     pub outlines: &'a [Vec<(f64, f64)>],
-    /// Fixed colour-scale limits (e.g. 0..1 for probabilities); None: from the data.
-    pub range: Option<(f32, f32)>,
 }
+
+/// Unit label of probability layers, always drawn on a fixed 0..1 scale.
+pub const PROBABILITY: &str = "probability";
 
 /// A rendered map: PNG bytes and the world-file text that georeferences them.
 pub struct Rendered {
@@ -111,7 +112,7 @@ pub fn render(spec: &MapSpec) -> Result<Rendered, String> {
     let mh = ((g.rows() as f64 * scale).round() as u32).max(1);
     let (w, h) = (mw + PANEL_W, mh.max(460));
     let cmap = tideline();
-    let (lo, hi) = spec.range.unwrap_or_else(|| colour_range(spec.data));
+    let (lo, hi) = if spec.unit == PROBABILITY { (0.0, 1.0) } else { colour_range(spec.data) };
     let mut buf = vec![255u8; (w * h * 3) as usize];
     for y in 0..mh {
         let r = ((y as f64 + 0.5) / mh as f64 * g.rows() as f64) as usize;

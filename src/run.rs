@@ -107,8 +107,7 @@ pub fn run_map(sc: &Scenario, opts: &MapOptions) -> Result<MapResult, Error> {
         st.write_with(name, |w| write_geotiff(w, grid, data).map_err(std::io::Error::other))
     };
     let png = |st: &mut Staging, name: &str, title: &str, unit: &str, data: &[f32], outlines: &[Vec<(f64, f64)>]| {
-        let range = (unit == "probability").then_some((0.0, 1.0));
-        let r = render(&MapSpec { grid, data, title, unit, markers: &markers, links: &links, outlines, range })
+        let r = render(&MapSpec { grid, data, title, unit, markers: &markers, links: &links, outlines })
             .map_err(|e| Error::Output { path: st.dir().join(name), source: std::io::Error::other(e) })?;
         st.write(&format!("{name}.png"), &r.png)?;
         st.write(&format!("{name}.pgw"), r.world.as_bytes())
@@ -124,8 +123,7 @@ pub fn run_map(sc: &Scenario, opts: &MapOptions) -> Result<MapResult, Error> {
         tif(&mut st, "interference.tif", i)?;
         let level = (noise_dbm + sc.thresholds.hotspot_i_over_n_db) as f32;
         let regs = regions(grid, i, level, false);
-        let outlines: Vec<Vec<(f64, f64)>> =
-            regs.iter().map(|r| r.polygon.exterior().0.iter().map(|c| (c.x, c.y)).collect()).collect();
+        let outlines = crate::hotspots::outlines(&regs);
         png(&mut st, "interference", "Interference", "dBm", i, &outlines)?;
         files.extend(["interference.tif", "interference.png", "interference.pgw"]);
         let features: Vec<geojson::Feature> = regs
@@ -164,10 +162,9 @@ pub fn run_map(sc: &Scenario, opts: &MapOptions) -> Result<MapResult, Error> {
         tif(&mut st, "coverage.tif", cv)?;
         let target = sc.thresholds.coverage_target as f32;
         let regs = regions(grid, cv, target, true);
-        let outlines: Vec<Vec<(f64, f64)>> =
-            regs.iter().map(|r| r.polygon.exterior().0.iter().map(|c| (c.x, c.y)).collect()).collect();
+        let outlines = crate::hotspots::outlines(&regs);
         let title = format!("Coverage T={} dB", sc.thresholds.sinr_db);
-        png(&mut st, "coverage", &title, "probability", cv, &outlines)?;
+        png(&mut st, "coverage", &title, crate::render::PROBABILITY, cv, &outlines)?;
         files.extend(["coverage.tif", "coverage.png", "coverage.pgw"]);
         outage = Some(regs.len());
         for r in &regs {
@@ -358,16 +355,12 @@ pub fn run_links(sc: &Scenario, opts: &LinksOptions) -> Result<LinksResult, Erro
         let (markers, links) = markers_and_links(sc);
         let grid = &sc.grid;
         let noise = sc.noise_dbm();
-        let outline = |regs: Vec<crate::hotspots::Region>| -> Vec<Vec<(f64, f64)>> {
-            regs.iter().map(|r| r.polygon.exterior().0.iter().map(|c| (c.x, c.y)).collect()).collect()
-        };
         let mut add = |title: String,
                        unit: &str,
                        data: &[f32],
                        outlines: Vec<Vec<(f64, f64)>>,
                        caption: String|
          -> Result<(), Error> {
-            let range = (unit == "probability").then_some((0.0, 1.0));
             let r = render(&MapSpec {
                 grid,
                 data,
@@ -376,7 +369,6 @@ pub fn run_links(sc: &Scenario, opts: &LinksOptions) -> Result<LinksResult, Erro
                 markers: &markers,
                 links: &links,
                 outlines: &outlines,
-                range,
             })
             .map_err(|e| Error::Output { path: opts.out.join("report.html"), source: std::io::Error::other(e) })?;
             maps.push(crate::report::MapImage { title, png: r.png, caption });
@@ -386,9 +378,9 @@ pub fn run_links(sc: &Scenario, opts: &LinksOptions) -> Result<LinksResult, Erro
             let target = sc.thresholds.coverage_target;
             add(
                 format!("Coverage T={} dB", sc.thresholds.sinr_db),
-                "probability",
+                crate::render::PROBABILITY,
                 c,
-                outline(regions(grid, c, target as f32, true)),
+                crate::hotspots::outlines(&regions(grid, c, target as f32, true)),
                 format!(
                     "Probability that a receiver at each spot, served by its best node, reaches the SINR threshold with fading; crimson outlines: below the {target} target."
                 ),
@@ -400,7 +392,7 @@ pub fn run_links(sc: &Scenario, opts: &LinksOptions) -> Result<LinksResult, Erro
                 "Interference".into(),
                 "dBm",
                 i,
-                outline(regions(grid, i, level as f32, false)),
+                crate::hotspots::outlines(&regions(grid, i, level as f32, false)),
                 format!(
                     "Aggregate interference at a receiver served by its best node; crimson outlines: hot spots at or above {level:.1} dBm (noise + {} dB).",
                     sc.thresholds.hotspot_i_over_n_db
