@@ -291,10 +291,12 @@ fn ensemble(sc: &Scenario, spec: &crate::draw::DrawSpec, eopts: &Options, n: usi
                 a.iter_mut().zip(b.iter()).for_each(|(x, y)| *x += *y);
             }
         }
-        if let (Some(a), Some(b)) = (&mut acc.sinr, &l.sinr) {
-            a.iter_mut().zip(b).for_each(|(x, y)| {
-                *x = if *x == crate::NODATA || *y == crate::NODATA { crate::NODATA } else { *x + *y }
-            });
+        for (a, b) in [(&mut acc.sinr, &l.sinr), (&mut acc.coverage, &l.coverage)] {
+            if let (Some(a), Some(b)) = (a, b) {
+                a.iter_mut().zip(b).for_each(|(x, y)| {
+                    *x = if *x == crate::NODATA || *y == crate::NODATA { crate::NODATA } else { *x + *y }
+                });
+            }
         }
         acc.pair_evaluations += l.pair_evaluations;
         acc.neglected_db = match (acc.neglected_db, l.neglected_db) {

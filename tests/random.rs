@@ -120,6 +120,13 @@ fn map_averages_realizations() {
         serde_json::from_str(&std::fs::read_to_string(out.join("summary.json")).unwrap()).unwrap();
     assert_eq!(s["realizations"], 4);
     assert!(!out.join("server.tif").exists());
+    // The ensemble coverage is a mean of probabilities: inside [0, 1], and near 1 somewhere
+    // (next to a node every layout covers).
+    let mut dec = tiff::decoder::Decoder::new(std::fs::File::open(out.join("coverage.tif")).unwrap()).unwrap();
+    let tiff::decoder::DecodingResult::F32(cov) = dec.read_image().unwrap() else { panic!("float32 expected") };
+    let defined: Vec<f32> = cov.into_iter().filter(|v| *v != lobemap::NODATA).collect();
+    assert!(defined.iter().all(|v| (0.0..=1.0).contains(v)));
+    assert!(defined.iter().cloned().fold(0.0, f32::max) > 0.9);
     assert!(out.join("interference.tif").exists());
 }
 
