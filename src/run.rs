@@ -12,6 +12,7 @@ use crate::render::{MapSpec, Marker, render};
 use crate::scenario::Scenario;
 use crate::stats::Histogram;
 use crate::summary::{Spread, Summary};
+use crate::units::{dbm_to_mw, mw_to_dbm};
 use std::path::PathBuf;
 use std::time::Instant;
 
@@ -133,9 +134,8 @@ pub fn run_map(sc: &Scenario, opts: &MapOptions) -> Result<MapResult, Error> {
                 let pr = probe(sc, lat, lon);
                 let server_idx = sc.nodes.iter().position(|n| n.id == pr.server);
                 let mut contrib: Vec<_> = pr.contributions.iter().filter(|c| Some(c.index) != server_idx).collect();
-                contrib.sort_by(|a, b| {
-                    (b.power_dbm + 10.0 * b.activity.log10()).total_cmp(&(a.power_dbm + 10.0 * a.activity.log10()))
-                });
+                let weighted = |c: &&crate::probe::Contribution| c.power_dbm + crate::units::lin_to_db(c.activity);
+                contrib.sort_by(|a, b| weighted(b).total_cmp(&weighted(a)));
                 let dominant: Vec<String> = contrib.iter().take(3).map(|c| c.id.clone()).collect();
                 let mut p = serde_json::Map::new();
                 p.insert("kind".into(), "interference".into());
@@ -276,7 +276,7 @@ fn ensemble(sc: &Scenario, spec: &crate::draw::DrawSpec, eopts: &Options, n: usi
         return (acc, first);
     }
     let to_mw = |v: &mut Vec<f32>| {
-        v.iter_mut().for_each(|x| *x = if *x == crate::NODATA { 0.0 } else { 10f32.powf(*x / 10.0) })
+        v.iter_mut().for_each(|x| *x = if *x == crate::NODATA { 0.0 } else { dbm_to_mw(*x as f64) as f32 })
     };
     for l in [&mut acc.total, &mut acc.interference].into_iter().flatten() {
         to_mw(l);
@@ -306,7 +306,7 @@ fn ensemble(sc: &Scenario, spec: &crate::draw::DrawSpec, eopts: &Options, n: usi
     }
     let nf = n as f32;
     for l in [&mut acc.total, &mut acc.interference].into_iter().flatten() {
-        l.iter_mut().for_each(|x| *x = if *x > 0.0 { 10.0 * (*x / nf).log10() } else { crate::NODATA });
+        l.iter_mut().for_each(|x| *x = if *x > 0.0 { mw_to_dbm((*x / nf) as f64) as f32 } else { crate::NODATA });
     }
     for s in [&mut acc.sinr, &mut acc.coverage].into_iter().flatten() {
         s.iter_mut().filter(|x| **x != crate::NODATA).for_each(|x| *x /= nf);
