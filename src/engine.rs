@@ -1,12 +1,13 @@
-//! The per-cell engine: aggregate received power, best server, interference and SINR on
-//! every grid cell.
+//! The per-cell engine: aggregate received power, best server, interference, SINR and
+//! coverage probability on every grid cell.
 //!
 //! Layout for the vectoriser: rows are processed in parallel (rayon); within a row the loop
 //! runs node-outer, cell-inner over structure-of-arrays buffers, so every cell is an
 //! independent lane. The main-lobe test uses dot products (no trigonometry in the pair
-//! loop); the distance law is specialised for exponents 2, 3 and 4. On x86-64 the row kernel
-//! is also compiled for AVX2 and chosen at run time. The order of summation is fixed (node
-//! index order), so results are bit-identical for any thread count.
+//! loop); the distance law is specialised for exponents 2, 3 and 4, and any other exponent or
+//! absorption uses vectorisable log2/exp2 approximations. The row kernel is compiled for
+//! several instruction sets and chosen at run time ([`crate::simd`]). The order of summation
+//! is fixed (node index order), so results are bit-identical for any thread count.
 //!
 //! # Definitions (per cell, receiver at `[receiver] height_m`)
 //! - p_i: mean power received from node i with a 0 dBi receiver, mW.
@@ -18,6 +19,7 @@
 use crate::NODATA;
 use crate::antenna::Pattern;
 use crate::scenario::Scenario;
+use crate::simd::multiversion;
 use crate::units::{db_to_lin, dbm_to_mw, lin_to_db};
 use rayon::prelude::*;
 use rstar::{AABB, RTree, primitives::GeomWithData};
@@ -564,7 +566,7 @@ impl<'s> Engine<'s> {
             .map_init(
                 || RowBufs::new(cols),
                 |bufs, (r, out)| {
-                    let out = self.row(d, r, l, opts.cutoff_m, bufs, out);
+                    let out = row(self, d, RowJob { r, l, cutoff: opts.cutoff_m, out }, bufs);
                     bar.inc(1);
                     out
                 },
@@ -578,225 +580,177 @@ impl<'s> Engine<'s> {
         });
         Layers { total, interference, sinr, server, coverage, pair_evaluations: pairs, neglected_db: neglected }
     }
+}
 
-    /// One row; returns (pair evaluations, bound on dropped power in mW).
-    fn row<D: Decay>(
-        &self,
-        d: D,
-        r: usize,
-        l: LayerSet,
-        cutoff: Option<f64>,
-        b: &mut RowBufs,
-        out: [Option<&mut [f32]>; 5],
-    ) -> (u64, f64) {
-        #[cfg(target_arch = "x86_64")]
-        {
-            if std::arch::is_x86_feature_detected!("avx512f") {
-                // SAFETY: the CPU supports the features the function was compiled for.
-                return unsafe { self.row_avx512(d, r, l, cutoff, b, out) };
+/// One row: the grid row, the layers wanted, the cutoff and the row's output slices.
+struct RowJob<'a> {
+    r: usize,
+    l: LayerSet,
+    cutoff: Option<f64>,
+    out: [Option<&'a mut [f32]>; 5],
+}
+
+multiversion!(fn row<D: Decay>(e: &Engine<'_>, d: D, job: RowJob<'_>, b: &mut RowBufs) -> (u64, f64) => row_body);
+
+/// One row; returns (pair evaluations, bound on dropped power in mW).
+#[inline(always)]
+fn row_body<D: Decay>(e: &Engine<'_>, d: D, job: RowJob<'_>, b: &mut RowBufs) -> (u64, f64) {
+    let RowJob { r, l, cutoff, out } = job;
+    let g = &e.sc.grid;
+    let cols = g.cols();
+    let (sl, cl) = g.lat_of_row(r).to_radians().sin_cos();
+    let (mut xmin, mut xmax, mut ymin, mut ymax) = (f64::MAX, f64::MIN, f64::MAX, f64::MIN);
+    for c in 0..cols {
+        let (x, y) = e.sc.frame.from_trig(sl, cl, e.sin_dlon[c], e.cos_dlon[c]);
+        b.xs[c] = x as f32;
+        b.ys[c] = y as f32;
+        xmin = xmin.min(x);
+        xmax = xmax.max(x);
+        ymin = ymin.min(y);
+        ymax = ymax.max(y);
+    }
+    // Candidate nodes: all, or (with a cutoff) those near the row, in index order.
+    let mut dropped_mw = 0.0;
+    let cand: Vec<usize> = match cutoff {
+        None => (0..e.nodes.len()).collect(),
+        Some(rc) => {
+            let env = AABB::from_corners([xmin - rc, ymin - rc], [xmax + rc, ymax + rc]);
+            let mut keep = vec![false; e.nodes.len()];
+            for gd in e.tree.locate_in_envelope(env) {
+                keep[gd.data] = true;
             }
-            if std::arch::is_x86_feature_detected!("avx2") && std::arch::is_x86_feature_detected!("fma") {
-                // SAFETY: the CPU supports the features the function was compiled for.
-                return unsafe { self.row_avx2(d, r, l, cutoff, b, out) };
+            let pl = &e.sc.pathloss;
+            let gmax_rx = e.g_omni.max(e.g_signal) as f64;
+            for (_, n) in e.nodes.iter().enumerate().filter(|(k, _)| !keep[*k]) {
+                let (nx, ny) = (n.x as f64, n.y as f64);
+                let dx = (xmin - nx).max(0.0).max(nx - xmax);
+                let dy = (ymin - ny).max(0.0).max(ny - ymax);
+                let dist = (dx * dx + dy * dy + n.dz2 as f64).sqrt();
+                dropped_mw += n.act as f64 * n.p_max * gmax_rx * pl.gain_lin(dist) / db_to_lin(-pl.loss_at_1m_db());
             }
+            (0..e.nodes.len()).filter(|k| keep[*k]).collect()
         }
-        self.row_body(d, r, l, cutoff, b, out)
+    };
+    let mut pairs = 0u64;
+    let full = l.needs_server();
+    if full {
+        b.best.fill(0.0);
+        b.bestw.fill(0.0);
+        b.other.fill(0.0);
+        b.server.fill(u32::MAX);
+    } else {
+        b.other.fill(0.0);
     }
-
-    #[cfg(target_arch = "x86_64")]
-    #[target_feature(enable = "avx512f,avx2,fma")]
-    fn row_avx512<D: Decay>(
-        &self,
-        d: D,
-        r: usize,
-        l: LayerSet,
-        cutoff: Option<f64>,
-        b: &mut RowBufs,
-        out: [Option<&mut [f32]>; 5],
-    ) -> (u64, f64) {
-        self.row_body(d, r, l, cutoff, b, out)
+    for &k in &cand {
+        let n = &e.nodes[k];
+        match (n.lut, full) {
+            (None, true) => pass_full(d, Flat, n, b),
+            (Some(t), true) => pass_full(d, Table(&e.luts[t]), n, b),
+            (None, false) => pass_sum(d, Flat, n, &b.xs, &b.ys, &mut b.other),
+            (Some(t), false) => pass_sum(d, Table(&e.luts[t]), n, &b.xs, &b.ys, &mut b.other),
+        }
+        pairs += cols as u64;
     }
-
-    #[cfg(target_arch = "x86_64")]
-    #[target_feature(enable = "avx2,fma")]
-    fn row_avx2<D: Decay>(
-        &self,
-        d: D,
-        r: usize,
-        l: LayerSet,
-        cutoff: Option<f64>,
-        b: &mut RowBufs,
-        out: [Option<&mut [f32]>; 5],
-    ) -> (u64, f64) {
-        self.row_body(d, r, l, cutoff, b, out)
-    }
-
-    #[inline(always)]
-    fn row_body<D: Decay>(
-        &self,
-        d: D,
-        r: usize,
-        l: LayerSet,
-        cutoff: Option<f64>,
-        b: &mut RowBufs,
-        out: [Option<&mut [f32]>; 5],
-    ) -> (u64, f64) {
-        let g = &self.sc.grid;
-        let cols = g.cols();
-        let (sl, cl) = g.lat_of_row(r).to_radians().sin_cos();
-        let (mut xmin, mut xmax, mut ymin, mut ymax) = (f64::MAX, f64::MIN, f64::MAX, f64::MIN);
+    let aimed_needed = e.rx_aim.is_some() && (l.interference || l.sinr);
+    if e.rx_aim.is_some() && (aimed_needed || l.coverage) {
         for c in 0..cols {
-            let (x, y) = self.sc.frame.from_trig(sl, cl, self.sin_dlon[c], self.cos_dlon[c]);
-            b.xs[c] = x as f32;
-            b.ys[c] = y as f32;
-            xmin = xmin.min(x);
-            xmax = xmax.max(x);
-            ymin = ymin.min(y);
-            ymax = ymax.max(y);
+            let s = b.server[c];
+            let (ux, uy) = if s == u32::MAX {
+                (0.0, 1.0)
+            } else {
+                let n = &e.nodes[s as usize];
+                let (vx, vy) = (n.x - b.xs[c], n.y - b.ys[c]);
+                let m = (vx * vx + vy * vy).sqrt();
+                if m > 0.0 { (vx / m, vy / m) } else { (0.0, 1.0) }
+            };
+            b.ux[c] = ux;
+            b.uy[c] = uy;
         }
-        // Candidate nodes: all, or (with a cutoff) those near the row, in index order.
-        let mut dropped_mw = 0.0;
-        let cand: Vec<usize> = match cutoff {
-            None => (0..self.nodes.len()).collect(),
-            Some(rc) => {
-                let env = AABB::from_corners([xmin - rc, ymin - rc], [xmax + rc, ymax + rc]);
-                let mut keep = vec![false; self.nodes.len()];
-                for gd in self.tree.locate_in_envelope(env) {
-                    keep[gd.data] = true;
-                }
-                let pl = &self.sc.pathloss;
-                let gmax_rx = self.g_omni.max(self.g_signal) as f64;
-                for (_, n) in self.nodes.iter().enumerate().filter(|(k, _)| !keep[*k]) {
-                    let (nx, ny) = (n.x as f64, n.y as f64);
-                    let dx = (xmin - nx).max(0.0).max(nx - xmax);
-                    let dy = (ymin - ny).max(0.0).max(ny - ymax);
-                    let dist = (dx * dx + dy * dy + n.dz2 as f64).sqrt();
-                    dropped_mw += n.act as f64 * n.p_max * gmax_rx * pl.gain_lin(dist) / db_to_lin(-pl.loss_at_1m_db());
-                }
-                (0..self.nodes.len()).filter(|k| keep[*k]).collect()
-            }
-        };
-        let mut pairs = 0u64;
-        let full = l.needs_server();
-        if full {
-            b.best.fill(0.0);
-            b.bestw.fill(0.0);
-            b.other.fill(0.0);
-            b.server.fill(u32::MAX);
-        } else {
-            b.other.fill(0.0);
-        }
+    }
+    if let (Some(rx), true) = (e.rx_aim, aimed_needed) {
+        b.iacc.fill(0.0);
         for &k in &cand {
-            let n = &self.nodes[k];
-            match (n.lut, full) {
-                (None, true) => pass_full(d, Flat, n, b),
-                (Some(t), true) => pass_full(d, Table(&self.luts[t]), n, b),
-                (None, false) => pass_sum(d, Flat, n, &b.xs, &b.ys, &mut b.other),
-                (Some(t), false) => pass_sum(d, Table(&self.luts[t]), n, &b.xs, &b.ys, &mut b.other),
+            let n = &e.nodes[k];
+            match n.lut {
+                None => pass_aimed(d, Flat, n, rx, b),
+                Some(t) => pass_aimed(d, Table(&e.luts[t]), n, rx, b),
             }
             pairs += cols as u64;
         }
-        let aimed_needed = self.rx_aim.is_some() && (l.interference || l.sinr);
-        if self.rx_aim.is_some() && (aimed_needed || l.coverage) {
-            for c in 0..cols {
-                let s = b.server[c];
-                let (ux, uy) = if s == u32::MAX {
-                    (0.0, 1.0)
-                } else {
-                    let n = &self.nodes[s as usize];
-                    let (vx, vy) = (n.x - b.xs[c], n.y - b.ys[c]);
-                    let m = (vx * vx + vy * vy).sqrt();
-                    if m > 0.0 { (vx / m, vy / m) } else { (0.0, 1.0) }
-                };
-                b.ux[c] = ux;
-                b.uy[c] = uy;
-            }
-        }
-        if let (Some(rx), true) = (self.rx_aim, aimed_needed) {
-            b.iacc.fill(0.0);
-            for &k in &cand {
-                let n = &self.nodes[k];
-                match n.lut {
-                    None => pass_aimed(d, Flat, n, rx, b),
-                    Some(t) => pass_aimed(d, Table(&self.luts[t]), n, rx, b),
-                }
-                pairs += cols as u64;
-            }
-        }
-        if l.coverage {
-            // An omni receiver is the aimed kernel with an always-true beam test.
-            let rx = self.rx_aim.unwrap_or((-1.0, self.g_omni, self.g_omni));
-            let t_lin = self.cov.t_lin as f32;
-            for c in 0..cols {
-                let sig = self.g_signal * b.best[c];
-                b.tinv[c] = if sig > 0.0 { t_lin / sig } else { 0.0 };
-            }
-            let exact = self.cov.method == crate::coverage::Method::Exact;
-            b.cacc.fill(if exact { 1.0 } else { 0.0 });
-            b.cvar.fill(0.0);
-            let (e1, e2) = (self.cov.e1 as f32, self.cov.e2 as f32);
-            for &k in &cand {
-                let n = &self.nodes[k];
-                macro_rules! lt_pass {
-                    ($lt:expr) => {
-                        match n.lut {
-                            None => pass_cov_exact(d, Flat, $lt, n, rx, b),
-                            Some(t) => pass_cov_exact(d, Table(&self.luts[t]), $lt, n, rx, b),
-                        }
-                    };
-                }
-                if exact {
-                    match self.cov.spec.interferer {
-                        crate::fading::Fading::None => lt_pass!(LtNone),
-                        crate::fading::Fading::Rayleigh => lt_pass!(LtRayleigh),
-                        crate::fading::Fading::Nakagami { m } => lt_pass!(LtNakagami(m as f32)),
-                        crate::fading::Fading::Rician { k } => lt_pass!(LtRician(k as f32)),
-                    }
-                } else {
-                    let coef = n.act * e2 - n.act * n.act * e1 * e1;
-                    match n.lut {
-                        None => pass_cov_moment(d, Flat, n, rx, coef, b),
-                        Some(t) => pass_cov_moment(d, Table(&self.luts[t]), n, rx, coef, b),
-                    }
-                }
-                pairs += cols as u64;
-            }
-        }
-        let db = |v: f32| if v > 0.0 { 10.0 * v.log10() } else { NODATA };
-        let noise = self.noise_mw as f32;
-        let [mut t, mut i, mut s, mut v, cv] = out;
-        if let Some(cv) = cv {
-            let exact = self.cov.method == crate::coverage::Method::Exact;
-            for (c, out) in cv.iter_mut().enumerate() {
-                let sig = (self.g_signal * b.best[c]) as f64;
-                *out = if b.server[c] == u32::MAX || sig <= 0.0 {
-                    NODATA
-                } else if exact {
-                    self.cov.from_log2_product(sig, (b.cacc[c] as f64).log2()) as f32
-                } else {
-                    self.cov.from_moments(sig, b.cacc[c] as f64, b.cvar[c] as f64) as f32
-                };
-            }
-        }
-        for c in 0..cols {
-            let all = if full { b.other[c] + b.bestw[c] } else { b.other[c] };
-            let interf = if aimed_needed { b.iacc[c] } else { self.g_omni * b.other[c] };
-            if let Some(t) = t.as_deref_mut() {
-                t[c] = db(self.g_omni * all);
-            }
-            if let Some(i) = i.as_deref_mut() {
-                i[c] = db(interf);
-            }
-            let best = b.best[c];
-            if let Some(s) = s.as_deref_mut() {
-                s[c] = if best > 0.0 { db(self.g_signal * best / (interf + noise)) } else { NODATA };
-            }
-            if let Some(v) = v.as_deref_mut() {
-                v[c] = if b.server[c] == u32::MAX { NODATA } else { b.server[c] as f32 };
-            }
-        }
-        (pairs, dropped_mw)
     }
+    if l.coverage {
+        // An omni receiver is the aimed kernel with an always-true beam test.
+        let rx = e.rx_aim.unwrap_or((-1.0, e.g_omni, e.g_omni));
+        let t_lin = e.cov.t_lin as f32;
+        for c in 0..cols {
+            let sig = e.g_signal * b.best[c];
+            b.tinv[c] = if sig > 0.0 { t_lin / sig } else { 0.0 };
+        }
+        let exact = e.cov.method == crate::coverage::Method::Exact;
+        b.cacc.fill(if exact { 1.0 } else { 0.0 });
+        b.cvar.fill(0.0);
+        let (e1, e2) = (e.cov.e1 as f32, e.cov.e2 as f32);
+        for &k in &cand {
+            let n = &e.nodes[k];
+            macro_rules! lt_pass {
+                ($lt:expr) => {
+                    match n.lut {
+                        None => pass_cov_exact(d, Flat, $lt, n, rx, b),
+                        Some(t) => pass_cov_exact(d, Table(&e.luts[t]), $lt, n, rx, b),
+                    }
+                };
+            }
+            if exact {
+                match e.cov.spec.interferer {
+                    crate::fading::Fading::None => lt_pass!(LtNone),
+                    crate::fading::Fading::Rayleigh => lt_pass!(LtRayleigh),
+                    crate::fading::Fading::Nakagami { m } => lt_pass!(LtNakagami(m as f32)),
+                    crate::fading::Fading::Rician { k } => lt_pass!(LtRician(k as f32)),
+                }
+            } else {
+                let coef = n.act * e2 - n.act * n.act * e1 * e1;
+                match n.lut {
+                    None => pass_cov_moment(d, Flat, n, rx, coef, b),
+                    Some(t) => pass_cov_moment(d, Table(&e.luts[t]), n, rx, coef, b),
+                }
+            }
+            pairs += cols as u64;
+        }
+    }
+    let db = |v: f32| if v > 0.0 { 10.0 * v.log10() } else { NODATA };
+    let noise = e.noise_mw as f32;
+    let [mut t, mut i, mut s, mut v, cv] = out;
+    if let Some(cv) = cv {
+        let exact = e.cov.method == crate::coverage::Method::Exact;
+        for (c, out) in cv.iter_mut().enumerate() {
+            let sig = (e.g_signal * b.best[c]) as f64;
+            *out = if b.server[c] == u32::MAX || sig <= 0.0 {
+                NODATA
+            } else if exact {
+                e.cov.from_log2_product(sig, (b.cacc[c] as f64).log2()) as f32
+            } else {
+                e.cov.from_moments(sig, b.cacc[c] as f64, b.cvar[c] as f64) as f32
+            };
+        }
+    }
+    for c in 0..cols {
+        let all = if full { b.other[c] + b.bestw[c] } else { b.other[c] };
+        let interf = if aimed_needed { b.iacc[c] } else { e.g_omni * b.other[c] };
+        if let Some(t) = t.as_deref_mut() {
+            t[c] = db(e.g_omni * all);
+        }
+        if let Some(i) = i.as_deref_mut() {
+            i[c] = db(interf);
+        }
+        let best = b.best[c];
+        if let Some(s) = s.as_deref_mut() {
+            s[c] = if best > 0.0 { db(e.g_signal * best / (interf + noise)) } else { NODATA };
+        }
+        if let Some(v) = v.as_deref_mut() {
+            v[c] = if b.server[c] == u32::MAX { NODATA } else { b.server[c] as f32 };
+        }
+    }
+    (pairs, dropped_mw)
 }
 
 #[cfg(test)]

@@ -35,6 +35,7 @@ pub mod render;
 pub mod report;
 pub mod run;
 pub mod scenario;
+pub mod simd;
 pub mod stats;
 pub mod summary;
 pub mod units;

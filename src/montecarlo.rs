@@ -5,6 +5,7 @@
 use crate::engine::{fast_exp2, fast_log2};
 use crate::fading::Fading;
 use crate::field::Field;
+use crate::simd::multiversion;
 use rand::{Rng, RngExt, SeedableRng};
 use rand_distr::{Distribution, Gamma, Poisson, StandardNormal};
 use rand_pcg::Pcg64Mcg;
@@ -109,22 +110,7 @@ fn neg_ln_body(h: &mut [f32]) {
     }
 }
 
-#[cfg(target_arch = "x86_64")]
-#[target_feature(enable = "avx2,fma")]
-fn neg_ln_avx2(h: &mut [f32]) {
-    neg_ln_body(h)
-}
-
-fn neg_ln_in_place(h: &mut [f32]) {
-    #[cfg(target_arch = "x86_64")]
-    {
-        if std::arch::is_x86_feature_detected!("avx2") && std::arch::is_x86_feature_detected!("fma") {
-            // SAFETY: the CPU supports the features the function was compiled for.
-            return unsafe { neg_ln_avx2(h) };
-        }
-    }
-    neg_ln_body(h)
-}
+multiversion!(fn neg_ln_in_place(h: &mut [f32]) -> () => neg_ln_body);
 
 /// Scratch buffers of one realisation.
 #[derive(Default)]
@@ -182,32 +168,7 @@ fn sum_body(c: &Consts, b: &Buf) -> f64 {
     c.power * (lanes.iter().sum::<f64>() + tail)
 }
 
-#[cfg(target_arch = "x86_64")]
-#[target_feature(enable = "avx512f,avx2,fma")]
-fn sum_avx512(c: &Consts, b: &Buf) -> f64 {
-    sum_body(c, b)
-}
-
-#[cfg(target_arch = "x86_64")]
-#[target_feature(enable = "avx2,fma")]
-fn sum_avx2(c: &Consts, b: &Buf) -> f64 {
-    sum_body(c, b)
-}
-
-fn sum_powers(c: &Consts, b: &Buf) -> f64 {
-    #[cfg(target_arch = "x86_64")]
-    {
-        if std::arch::is_x86_feature_detected!("avx512f") {
-            // SAFETY: the CPU supports the features the function was compiled for.
-            return unsafe { sum_avx512(c, b) };
-        }
-        if std::arch::is_x86_feature_detected!("avx2") && std::arch::is_x86_feature_detected!("fma") {
-            // SAFETY: as above.
-            return unsafe { sum_avx2(c, b) };
-        }
-    }
-    sum_body(c, b)
-}
+multiversion!(fn sum_powers(c: &Consts, b: &Buf) -> f64 => sum_body);
 
 fn nakagami(f: &Field) -> Option<Gamma<f64>> {
     match f.fading {
