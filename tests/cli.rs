@@ -1,15 +1,9 @@
 //! End-to-end tests of the `lobemap` binary: outputs, determinism and bad input.
 
+mod common;
+
+use common::{bin, run, stderr};
 use std::path::{Path, PathBuf};
-use std::process::{Command, Output};
-
-fn bin() -> Command {
-    Command::new(env!("CARGO_BIN_EXE_lobemap"))
-}
-
-fn run(args: &[&str]) -> Output {
-    bin().args(args).output().unwrap()
-}
 
 const GOOD_TOML: &str = r#"name = "tiny"
 nodes = "nodes.geojson"
@@ -44,10 +38,6 @@ fn site(toml: &str, nodes: &str) -> (tempfile::TempDir, PathBuf) {
     std::fs::write(d.path().join("nodes.geojson"), nodes).unwrap();
     let p = d.path().join("scenario.toml");
     (d, p)
-}
-
-fn stderr(o: &Output) -> String {
-    String::from_utf8_lossy(&o.stderr).into_owned()
 }
 
 #[test]

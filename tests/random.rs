@@ -1,15 +1,9 @@
 //! End-to-end tests of random layouts (`draw`, `[draw]`, `map --realizations`) and of
 //! `aggregate` on the command line.
 
-use std::process::{Command, Output};
+mod common;
 
-fn run(args: &[&str]) -> Output {
-    Command::new(env!("CARGO_BIN_EXE_lobemap")).args(args).output().unwrap()
-}
-
-fn stderr(o: &Output) -> String {
-    String::from_utf8_lossy(&o.stderr).into_owned()
-}
+use common::{run, stderr};
 
 const TOML: &str = r#"name = "estate"
 nodes = "nodes.geojson"

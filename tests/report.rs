@@ -1,17 +1,16 @@
 //! The links job, the installer sheet and the HTML report, end to end on the demo site.
 
-use std::path::Path;
-use std::process::{Command, Output};
+mod common;
 
-fn run(args: &[&str]) -> Output {
-    Command::new(env!("CARGO_BIN_EXE_lobemap")).current_dir(env!("CARGO_MANIFEST_DIR")).args(args).output().unwrap()
-}
+use common::{run, stderr};
+use std::path::Path;
+use std::process::Command;
 
 fn links_out() -> (tempfile::TempDir, std::path::PathBuf) {
     let d = tempfile::tempdir().unwrap();
     let out = d.path().join("links");
     let o = run(&["links", "sites/harbourlight/scenario.toml", "--out", out.to_str().unwrap(), "--quiet"]);
-    assert!(o.status.success(), "{}", String::from_utf8_lossy(&o.stderr));
+    assert!(o.status.success(), "{}", stderr(&o));
     (d, out)
 }
 
@@ -97,7 +96,7 @@ fn bad_fading_and_date_are_input_errors() {
     std::fs::write(&p, bad).unwrap();
     let o = run(&["links", p.to_str().unwrap(), "--out", d.path().join("o").to_str().unwrap()]);
     assert_eq!(o.status.code(), Some(2));
-    let e = String::from_utf8_lossy(&o.stderr);
+    let e = stderr(&o);
     assert!(e.contains("[fading]") && e.contains("k_db") && e.contains("[-30, 40]"), "{e}");
     assert!(e.contains("declination_date") && e.contains("2029-12-31"), "{e}");
     assert!(!d.path().join("o").exists());
@@ -110,7 +109,7 @@ fn bad_fading_and_date_are_input_errors() {
     std::fs::write(&p, &text).unwrap();
     let o = run(&["check", p.to_str().unwrap()]);
     assert_eq!(o.status.code(), Some(2));
-    assert!(String::from_utf8_lossy(&o.stderr).contains("names itself"));
+    assert!(stderr(&o).contains("names itself"));
 }
 
 /// The report is self-contained (no external references) and, opened in headless Chromium,
@@ -163,7 +162,7 @@ fn report_renders_in_headless_chromium() {
         .arg(format!("file://{}", out.join("report.html").display()))
         .output()
         .unwrap();
-    let log = String::from_utf8_lossy(&o.stderr);
+    let log = stderr(&o);
     let console: Vec<&str> = log.lines().filter(|l| l.contains(":CONSOLE")).collect();
     assert!(console.is_empty(), "console messages: {console:?}");
     let img = image::open(&shot).unwrap_or_else(|e| panic!("no screenshot ({e}); chromium said: {log}")).to_rgb8();

@@ -1,0 +1,21 @@
+//! Helpers shared by the end-to-end test targets.
+#![allow(dead_code)]
+
+use std::process::{Command, Output};
+
+/// The `lobemap` binary, run from the repository folder (so `sites/…` paths resolve).
+pub fn bin() -> Command {
+    let mut c = Command::new(env!("CARGO_BIN_EXE_lobemap"));
+    c.current_dir(env!("CARGO_MANIFEST_DIR"));
+    c
+}
+
+/// Runs `lobemap` with `args` and waits for it.
+pub fn run(args: &[&str]) -> Output {
+    bin().args(args).output().unwrap()
+}
+
+/// The standard error of a run, as text.
+pub fn stderr(o: &Output) -> String {
+    String::from_utf8_lossy(&o.stderr).into_owned()
+}
