@@ -2,8 +2,8 @@
 
 mod common;
 
-use common::{bin, run, stderr};
-use std::path::{Path, PathBuf};
+use common::{run, stderr};
+use std::path::PathBuf;
 
 const GOOD_TOML: &str = r#"name = "tiny"
 nodes = "nodes.geojson"
@@ -293,11 +293,8 @@ fn unwritable_output_folder() {
 fn demo_runs_from_the_repository() {
     let d = tempfile::tempdir().unwrap();
     let out = d.path().join("demo");
-    let o = bin()
-        .current_dir(Path::new(env!("CARGO_MANIFEST_DIR")))
-        .args(["demo", "--out", out.to_str().unwrap(), "--quiet"])
-        .output()
-        .unwrap();
+    // `run` starts the binary in the repository folder, where the demo site lives.
+    let o = run(&["demo", "--out", out.to_str().unwrap(), "--quiet"]);
     assert!(o.status.success(), "{}", stderr(&o));
     let s: serde_json::Value =
         serde_json::from_str(&std::fs::read_to_string(out.join("summary.json")).unwrap()).unwrap();
