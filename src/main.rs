@@ -602,12 +602,11 @@ fn aggregate_cmd(a: AggArgs, quiet: bool) -> anyhow::Result<ExitCode> {
             plans.push(min_guard(f, budget, a.outage));
         }
     }
-    let json = serde_json::json!({
-        "sets": reports.iter().map(|(l, r)| serde_json::json!({"label": l, "report": r})).collect::<Vec<_>>(),
-        "planning": plans,
-    });
-    let single =
-        if reports.len() == 1 && plans.is_empty() { serde_json::to_value(&reports[0].1)? } else { json.clone() };
+    let single = if reports.len() == 1 && plans.is_empty() {
+        serde_json::to_value(&reports[0].1)?
+    } else {
+        lobemap::run::aggregate_json(&reports, &plans)
+    };
     if a.json {
         println!("{}", serde_json::to_string_pretty(&single)?);
     } else if !quiet {
@@ -627,17 +626,8 @@ fn aggregate_cmd(a: AggArgs, quiet: bool) -> anyhow::Result<ExitCode> {
             );
         }
     }
-    if let Some(mut st) = out_stage {
-        let refs: Vec<(String, &lobemap::aggregate::Report)> = reports.iter().map(|(l, r)| (l.clone(), r)).collect();
-        st.write("cdf.csv", lobemap::aggregate::cdf_csv(&refs).as_bytes())?;
-        let curves: Vec<lobemap::cdfplot::CurveSet> =
-            reports.iter().map(|(l, r)| lobemap::cdfplot::CurveSet { label: l.clone(), rows: &r.cdf }).collect();
-        let title = "Aggregate interference: exact, gamma fit, Monte Carlo";
-        let io = |e: String| Error::Output { path: PathBuf::from("cdf.png"), source: std::io::Error::other(e) };
-        st.write("cdf.png", &lobemap::cdfplot::png(&curves, title).map_err(io)?)?;
-        st.write("cdf.svg", lobemap::cdfplot::svg(&curves, title).map_err(io)?.as_bytes())?;
-        st.write("aggregate.json", serde_json::to_string_pretty(&json)?.as_bytes())?;
-        let files = st.commit()?;
+    if let Some(st) = out_stage {
+        let files = lobemap::run::write_aggregate(st, &reports, &plans)?;
         if !quiet {
             eprintln!(
                 "wrote {} files to {}",

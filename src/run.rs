@@ -418,3 +418,41 @@ pub fn run_links(sc: &Scenario, opts: &LinksOptions) -> Result<LinksResult, Erro
     let files = st.commit()?;
     Ok(LinksResult { rows, sheet, files })
 }
+
+/// The JSON document of an `aggregate` run: every curve set with its label, and the planning
+/// answers.
+pub fn aggregate_json(
+    reports: &[(String, crate::aggregate::Report)],
+    plans: &[crate::aggregate::PlanAnswer],
+) -> serde_json::Value {
+    serde_json::json!({
+        "sets": reports.iter().map(|(l, r)| serde_json::json!({"label": l, "report": r})).collect::<Vec<_>>(),
+        "planning": plans,
+    })
+}
+
+/// Writes `cdf.csv`, `cdf.png`, `cdf.svg` and `aggregate.json` of an `aggregate` run through
+/// `st` (opened before the computation, so an unwritable folder fails early) and commits.
+pub fn write_aggregate(
+    mut st: Staging,
+    reports: &[(String, crate::aggregate::Report)],
+    plans: &[crate::aggregate::PlanAnswer],
+) -> Result<Vec<PathBuf>, Error> {
+    let refs: Vec<(String, &crate::aggregate::Report)> = reports.iter().map(|(l, r)| (l.clone(), r)).collect();
+    st.write("cdf.csv", crate::aggregate::cdf_csv(&refs).as_bytes())?;
+    let curves: Vec<crate::cdfplot::CurveSet> =
+        reports.iter().map(|(l, r)| crate::cdfplot::CurveSet { label: l.clone(), rows: &r.cdf }).collect();
+    let title = "Aggregate interference: exact, gamma fit, Monte Carlo";
+    let io = |name: &str| {
+        let path = st.dir().join(name);
+        move |e: String| Error::Output { path, source: std::io::Error::other(e) }
+    };
+    let png = crate::cdfplot::png(&curves, title).map_err(io("cdf.png"))?;
+    let svg = crate::cdfplot::svg(&curves, title).map_err(io("cdf.svg"))?;
+    st.write("cdf.png", &png)?;
+    st.write("cdf.svg", svg.as_bytes())?;
+    let json = serde_json::to_string_pretty(&aggregate_json(reports, plans))
+        .map_err(|e| Error::Output { path: st.dir().join("aggregate.json"), source: e.into() })?;
+    st.write("aggregate.json", json.as_bytes())?;
+    st.commit()
+}
