@@ -381,8 +381,9 @@ impl Lt for LtRician {
 fn pass_cov_exact<D: Decay, G: TxGain, L: Lt>(d: D, g: G, lt: L, n: &NodeK, rx: (f32, f32, f32), b: &mut RowBufs) {
     let (rcc, rmain, rside) = rx;
     let len = b.xs.len();
-    let (xs, ys, ux, uy, server, tinv, acc) =
-        (&b.xs[..len], &b.ys[..len], &b.ux[..len], &b.uy[..len], &b.server[..len], &b.tinv[..len], &mut b.cacc[..len]);
+    let (xs, ys, ux, uy, server, tinv) =
+        (&b.xs[..len], &b.ys[..len], &b.ux[..len], &b.uy[..len], &b.server[..len], &b.tinv[..len]);
+    let (acc, iacc) = (&mut b.cacc[..len], &mut b.iacc[..len]);
     for c in 0..len {
         let wx = xs[c] - n.x;
         let wy = ys[c] - n.y;
@@ -393,6 +394,8 @@ fn pass_cov_exact<D: Decay, G: TxGain, L: Lt>(d: D, g: G, lt: L, n: &NodeK, rx: 
         let term = 1.0 - n.act + n.act * lt.l(tinv[c] * p * gr);
         let own = server[c] == n.idx;
         acc[c] = if own { acc[c] } else { (acc[c] * term).max(1e-30) };
+        // The interference sum of `pass_aimed`, same expression: one pass serves both layers.
+        iacc[c] += if own { 0.0 } else { n.act * p * gr };
     }
 }
 
@@ -402,17 +405,20 @@ fn pass_cov_moment<D: Decay, G: TxGain>(d: D, g: G, n: &NodeK, rx: (f32, f32, f3
     let (rcc, rmain, rside) = rx;
     let len = b.xs.len();
     let (xs, ys, ux, uy, server) = (&b.xs[..len], &b.ys[..len], &b.ux[..len], &b.uy[..len], &b.server[..len]);
-    let (acc, var) = (&mut b.cacc[..len], &mut b.cvar[..len]);
+    let (acc, var, iacc) = (&mut b.cacc[..len], &mut b.cvar[..len], &mut b.iacc[..len]);
     for c in 0..len {
         let wx = xs[c] - n.x;
         let wy = ys[c] - n.y;
         let w2 = wx * wx + wy * wy;
         let p = g.eval(n, wx, wy, w2) * d.inv(w2 + n.dz2);
         let t = -(ux[c] * wx + uy[c] * wy);
-        let q = p * if t * t.abs() >= rcc * w2 { rmain } else { rside };
+        let gr = if t * t.abs() >= rcc * w2 { rmain } else { rside };
+        let q = p * gr;
         let own = server[c] == n.idx;
         acc[c] += if own { 0.0 } else { n.act * q };
         var[c] += if own { 0.0 } else { coef * q * q };
+        // The interference sum of `pass_aimed`, same expression: one pass serves both layers.
+        iacc[c] += if own { 0.0 } else { n.act * p * gr };
     }
 }
 
@@ -667,7 +673,8 @@ fn row_body<D: Decay>(e: &Engine<'_>, d: D, job: RowJob<'_>, b: &mut RowBufs) ->
             b.uy[c] = uy;
         }
     }
-    if let (Some(rx), true) = (e.rx_aim, aimed_needed) {
+    // With coverage requested, its pass also sums the aimed interference (see the kernels).
+    if let (Some(rx), true) = (e.rx_aim, aimed_needed && !l.coverage) {
         b.iacc.fill(0.0);
         for &k in &cand {
             let n = &e.nodes[k];
@@ -689,6 +696,7 @@ fn row_body<D: Decay>(e: &Engine<'_>, d: D, job: RowJob<'_>, b: &mut RowBufs) ->
         let exact = e.cov.method == crate::coverage::Method::Exact;
         b.cacc.fill(if exact { 1.0 } else { 0.0 });
         b.cvar.fill(0.0);
+        b.iacc.fill(0.0);
         let (e1, e2) = (e.cov.e1 as f32, e.cov.e2 as f32);
         for &k in &cand {
             let n = &e.nodes[k];
