@@ -1,13 +1,13 @@
 //! `links` throughput: 1000 planned links among 5000 nodes (every node counted as an
 //! interferer of every link), with and without a Rician coverage model. `cargo bench --bench links`.
 
-use lobemap::antenna::Pattern;
-use lobemap::fading::Fading;
-use lobemap::geodesy::LocalFrame;
-use lobemap::grid::{BBox, Grid};
-use lobemap::nodes::Node;
-use lobemap::pathloss::{Law, PathLoss};
-use lobemap::scenario::{FadingSpec, Radio, Receiver, Scenario, Thresholds};
+use lobemap::config::nodes::Node;
+use lobemap::config::scenario::{FadingSpec, Radio, Receiver, Scenario, Thresholds};
+use lobemap::geometry::frame::LocalFrame;
+use lobemap::geometry::grid::{BBox, Grid};
+use lobemap::model::antenna::Pattern;
+use lobemap::model::fading::Fading;
+use lobemap::model::pathloss::{Law, PathLoss};
 use rand::{RngExt, SeedableRng};
 use std::time::Instant;
 
@@ -54,9 +54,9 @@ fn main() {
         ),
     ] {
         sc.fading = f;
-        let _ = lobemap::links::links(&sc, None);
+        let _ = lobemap::jobs::links::links(&sc, None);
         let t0 = Instant::now();
-        let rows = lobemap::links::links(&sc, None);
+        let rows = lobemap::jobs::links::links(&sc, None);
         println!(
             "links, {label}: {} links among {} nodes in {:.3} s",
             rows.len(),

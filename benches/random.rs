@@ -2,12 +2,12 @@
 //! Carlo (cumulants, gamma, exact CDF table and quantiles), and drawing a million points
 //! with a hard core. `cargo bench --bench random`.
 
-use lobemap::aggregate::{Request, characterise};
-use lobemap::draw::{Window, poisson, thin_matern_ii};
-use lobemap::fading::Fading;
-use lobemap::field::{Field, SectorGain};
-use lobemap::montecarlo::simulate;
-use lobemap::pathloss::{Law, PathLoss};
+use lobemap::model::fading::Fading;
+use lobemap::model::pathloss::{Law, PathLoss};
+use lobemap::random::characterise::{Request, characterise};
+use lobemap::random::field::{Field, SectorGain};
+use lobemap::random::montecarlo::simulate;
+use lobemap::random::points::{Window, poisson, thin_matern_ii};
 use rand::SeedableRng;
 use std::time::Instant;
 

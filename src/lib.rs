@@ -7,38 +7,15 @@
 //! [`antenna::Pattern`] and [`noise`].
 #![deny(missing_docs)]
 
-pub mod aggregate;
-pub mod antenna;
-pub mod cdfplot;
-pub mod colormap;
-pub mod coverage;
-pub mod draw;
+pub mod config;
 pub mod engine;
 pub mod error;
-pub mod fading;
-pub mod field;
-pub mod geodesy;
-pub mod grid;
-pub mod hotspots;
-pub mod install;
-pub mod laplace;
-pub mod links;
-pub mod montecarlo;
-pub mod nodes;
-pub mod noise;
-pub mod output;
-pub mod pathloss;
-pub mod probe;
-pub mod quadrature;
-pub mod raster;
-pub mod render;
-pub mod report;
-pub mod run;
-pub mod scenario;
-pub mod simd;
-pub mod stats;
-pub mod summary;
-pub mod units;
+pub mod geometry;
+pub mod io;
+pub mod jobs;
+pub mod math;
+pub mod model;
+pub mod random;
 
 pub use error::{Error, Problem};
 

@@ -1,10 +1,10 @@
 //! Command-line front end: parses, validates and calls the library.
 
 use clap::{Parser, Subcommand};
+use lobemap::config::scenario::Scenario;
 use lobemap::engine::LayerSet;
 use lobemap::error::{Error, Problem};
-use lobemap::run::{MapOptions, run_map};
-use lobemap::scenario::Scenario;
+use lobemap::jobs::map::{MapOptions, run_map};
 use std::path::{Path, PathBuf};
 use std::process::ExitCode;
 
@@ -325,15 +325,15 @@ fn run(cli: Cli) -> anyhow::Result<ExitCode> {
                 )))
             })?;
             let t0 = std::time::Instant::now();
-            let nodes = lobemap::draw::layout(&sc, spec, seed.unwrap_or(spec.seed));
+            let nodes = lobemap::random::points::layout(&sc, spec, seed.unwrap_or(spec.seed));
             let drawn = nodes.iter().filter(|n| n.id.starts_with("draw-")).count();
             let dir = out.parent().filter(|p| !p.as_os_str().is_empty()).unwrap_or(Path::new("."));
             let name = out
                 .file_name()
                 .and_then(|n| n.to_str())
                 .ok_or_else(|| bad_flag("--out", "needs a file name".into()))?;
-            let mut st = lobemap::output::Staging::new(dir, &[&sc.path, &sc.nodes_path])?;
-            st.write(name, lobemap::nodes::layout_geojson(&nodes).to_string().as_bytes())?;
+            let mut st = lobemap::io::staging::Staging::new(dir, &[&sc.path, &sc.nodes_path])?;
+            st.write(name, lobemap::config::nodes::layout_geojson(&nodes).to_string().as_bytes())?;
             st.commit()?;
             if !cli.quiet {
                 eprintln!(
@@ -347,7 +347,7 @@ fn run(cli: Cli) -> anyhow::Result<ExitCode> {
         }
         Cmd::Check { scenario, max_memory_mib } => match Scenario::load(&scenario) {
             Ok(sc) => {
-                lobemap::run::check_memory(&sc, 4, max_memory_mib)?;
+                lobemap::jobs::map::check_memory(&sc, 4, max_memory_mib)?;
                 println!(
                     "{}: ok: {} nodes, grid {} x {} cells of {} m, noise {:.2} dBm",
                     scenario.display(),
@@ -365,7 +365,7 @@ fn run(cli: Cli) -> anyhow::Result<ExitCode> {
             let (lat, lon) = parse_lat_lon(&at)?;
             check_trials(monte_carlo)?;
             let sc = Scenario::load(&scenario)?;
-            let p = lobemap::probe::probe_with(&sc, lat, lon, monte_carlo.map(|n| (n, seed)));
+            let p = lobemap::jobs::probe::probe_with(&sc, lat, lon, monte_carlo.map(|n| (n, seed)));
             if json {
                 println!("{}", serde_json::to_string_pretty(&p)?);
             } else {
@@ -466,9 +466,9 @@ fn demo_scenario() -> anyhow::Result<PathBuf> {
     Err(bad_flag("demo", format!("cannot find {}; run from the repository folder", rel.display())))
 }
 
-fn field_spec(a: &AggArgs) -> anyhow::Result<lobemap::aggregate::FieldSpec> {
-    use lobemap::antenna::Pattern;
-    use lobemap::pathloss::Law;
+fn field_spec(a: &AggArgs) -> anyhow::Result<lobemap::random::characterise::FieldSpec> {
+    use lobemap::model::antenna::Pattern;
+    use lobemap::model::pathloss::Law;
     let sc = match &a.scenario {
         Some(p) => Some(Scenario::load(p)?),
         None => None,
@@ -515,12 +515,12 @@ fn field_spec(a: &AggArgs) -> anyhow::Result<lobemap::aggregate::FieldSpec> {
     // The scenario's interferer fading, unless --fading says otherwise.
     let (fading, k_db, m) = match (a.fading.as_deref(), sc.as_ref().map(|s| s.fading.interferer)) {
         (Some(f), _) => (f.to_string(), a.k_db, a.m),
-        (None, Some(lobemap::fading::Fading::None)) => ("none".into(), a.k_db, a.m),
-        (None, Some(lobemap::fading::Fading::Rayleigh)) | (None, None) => ("rayleigh".into(), a.k_db, a.m),
-        (None, Some(lobemap::fading::Fading::Nakagami { m })) => ("nakagami".into(), a.k_db, m),
-        (None, Some(lobemap::fading::Fading::Rician { k })) => ("rician".into(), 10.0 * k.log10(), a.m),
+        (None, Some(lobemap::model::fading::Fading::None)) => ("none".into(), a.k_db, a.m),
+        (None, Some(lobemap::model::fading::Fading::Rayleigh)) | (None, None) => ("rayleigh".into(), a.k_db, a.m),
+        (None, Some(lobemap::model::fading::Fading::Nakagami { m })) => ("nakagami".into(), a.k_db, m),
+        (None, Some(lobemap::model::fading::Fading::Rician { k })) => ("rician".into(), 10.0 * k.log10(), a.m),
     };
-    Ok(lobemap::aggregate::FieldSpec {
+    Ok(lobemap::random::characterise::FieldSpec {
         density_per_km2: density,
         keep: a.keep.or(draw.as_ref().map(|d| d.keep)).unwrap_or(1.0),
         hard_core_m: a.hard_core_m.or(draw.as_ref().map(|d| d.hard_core_m)).unwrap_or(0.0),
@@ -542,7 +542,7 @@ fn field_spec(a: &AggArgs) -> anyhow::Result<lobemap::aggregate::FieldSpec> {
 }
 
 fn aggregate_cmd(a: AggArgs, quiet: bool) -> anyhow::Result<ExitCode> {
-    use lobemap::aggregate::{Request, characterise, max_density, min_guard};
+    use lobemap::random::characterise::{Request, characterise, max_density, min_guard};
     let spec = field_spec(&a)?;
     if a.realizations > 100_000_000 {
         return Err(bad_flag(
@@ -556,7 +556,7 @@ fn aggregate_cmd(a: AggArgs, quiet: bool) -> anyhow::Result<ExitCode> {
     if a.thresholds_dbm.iter().any(|t| !t.is_finite()) {
         return Err(bad_flag("--threshold-dbm", "every value must be a finite number in dBm".into()));
     }
-    let sets: Vec<(String, lobemap::aggregate::FieldSpec)> = match &a.sweep {
+    let sets: Vec<(String, lobemap::random::characterise::FieldSpec)> = match &a.sweep {
         None => vec![(String::new(), spec.clone())],
         Some(sw) => {
             let (key, vals) =
@@ -578,7 +578,7 @@ fn aggregate_cmd(a: AggArgs, quiet: bool) -> anyhow::Result<ExitCode> {
         fields.push((label.clone(), s.build()?));
     }
     let out_stage = match &a.out {
-        Some(dir) => Some(lobemap::output::Staging::new(dir, &[])?),
+        Some(dir) => Some(lobemap::io::staging::Staging::new(dir, &[])?),
         None => None,
     };
     let req = Request {
@@ -587,7 +587,7 @@ fn aggregate_cmd(a: AggArgs, quiet: bool) -> anyhow::Result<ExitCode> {
         seed: a.seed,
         table_points: 160,
     };
-    let reports: Vec<(String, lobemap::aggregate::Report)> =
+    let reports: Vec<(String, lobemap::random::characterise::Report)> =
         fields.iter().map(|(l, f)| (l.clone(), characterise(f, &req))).collect();
     let mut plans = Vec::new();
     if a.max_density || a.min_guard {
@@ -605,13 +605,13 @@ fn aggregate_cmd(a: AggArgs, quiet: bool) -> anyhow::Result<ExitCode> {
     let single = if reports.len() == 1 && plans.is_empty() {
         serde_json::to_value(&reports[0].1)?
     } else {
-        lobemap::run::aggregate_json(&reports, &plans)
+        lobemap::jobs::map::aggregate_json(&reports, &plans)
     };
     if a.json {
         println!("{}", serde_json::to_string_pretty(&single)?);
     } else if !quiet {
         for (l, r) in &reports {
-            print!("{}", lobemap::aggregate::table(l, r));
+            print!("{}", lobemap::random::characterise::table(l, r));
         }
         for p in &plans {
             let f = |x: Option<f64>| x.map(|v| format!("{v:.4}")).unwrap_or("none in range".into());
@@ -627,7 +627,7 @@ fn aggregate_cmd(a: AggArgs, quiet: bool) -> anyhow::Result<ExitCode> {
         }
     }
     if let Some(st) = out_stage {
-        let files = lobemap::run::write_aggregate(st, &reports, &plans)?;
+        let files = lobemap::jobs::map::write_aggregate(st, &reports, &plans)?;
         if !quiet {
             eprintln!(
                 "wrote {} files to {}",
@@ -651,14 +651,14 @@ fn links_cmd(
     quiet: bool,
 ) -> anyhow::Result<ExitCode> {
     let out = out.unwrap_or_else(|| PathBuf::from(format!("outputs/{}", sc.name)));
-    let res = lobemap::run::run_links(
+    let res = lobemap::jobs::map::run_links(
         sc,
-        &lobemap::run::LinksOptions { out: out.clone(), monte_carlo, maps, max_memory_mib },
+        &lobemap::jobs::map::LinksOptions { out: out.clone(), monte_carlo, maps, max_memory_mib },
     )?;
     if json {
         println!("{}", serde_json::to_string_pretty(&res.rows)?);
     } else if !quiet {
-        print!("{}", lobemap::links::table(&res.rows, sc.thresholds.sinr_db, sc.thresholds.coverage_target));
+        print!("{}", lobemap::jobs::links::table(&res.rows, sc.thresholds.sinr_db, sc.thresholds.coverage_target));
     }
     if !quiet {
         eprintln!("wrote {} files to {}", res.files.len(), out.display());

@@ -1,11 +1,11 @@
 //! Checks of the random-field characterisation against published results and reference
 //! libraries.
 
-use lobemap::aggregate::{GammaFit, Request, characterise, max_density, min_guard};
-use lobemap::fading::Fading;
-use lobemap::field::{Field, SectorGain};
-use lobemap::montecarlo::simulate;
-use lobemap::pathloss::{Law, PathLoss};
+use lobemap::model::fading::Fading;
+use lobemap::model::pathloss::{Law, PathLoss};
+use lobemap::random::characterise::{GammaFit, Request, characterise, max_density, min_guard};
+use lobemap::random::field::{Field, SectorGain};
+use lobemap::random::montecarlo::simulate;
 use num_complex::Complex64;
 
 fn field(fading: Fading, bw: f64, main: f64, side: f64) -> Field {
@@ -152,7 +152,7 @@ fn planning_answers_meet_the_target() {
     let d = p.exact.unwrap();
     let at = |dens: f64| {
         let g = Field { density_per_m2: dens / 1e6, ..f };
-        lobemap::aggregate::Exact::new(&g).sf(lobemap::units::dbm_to_mw(-65.0))
+        lobemap::random::characterise::Exact::new(&g).sf(lobemap::model::units::dbm_to_mw(-65.0))
     };
     assert!((at(d) - 0.05).abs() < 2e-3 && at(d * 1.05) > 0.05, "{} {}", at(d), at(d * 1.05));
     assert!(p.gamma.is_some());
@@ -161,7 +161,8 @@ fn planning_answers_meet_the_target() {
     let g = min_guard(&dense, -65.0, 0.05);
     let gm = g.exact.unwrap();
     let at_g = |guard: f64| {
-        lobemap::aggregate::Exact::new(&Field { guard_m: guard, ..dense }).sf(lobemap::units::dbm_to_mw(-65.0))
+        lobemap::random::characterise::Exact::new(&Field { guard_m: guard, ..dense })
+            .sf(lobemap::model::units::dbm_to_mw(-65.0))
     };
     assert!(gm > 10.0, "{gm}");
     assert!(at_g(gm) <= 0.05 + 1e-6 && at_g(gm * 0.95) > 0.05, "{} {}", at_g(gm), at_g(gm * 0.95));

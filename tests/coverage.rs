@@ -1,13 +1,13 @@
 //! Coverage probability checks against published results and Monte Carlo.
 
-use lobemap::antenna::Pattern;
+use lobemap::config::nodes::Node;
+use lobemap::config::scenario::{FadingSpec, Radio, Receiver, Scenario, Thresholds};
 use lobemap::engine::{Engine, LayerSet, Options};
-use lobemap::fading::Fading;
-use lobemap::geodesy::LocalFrame;
-use lobemap::grid::{BBox, Grid};
-use lobemap::nodes::Node;
-use lobemap::pathloss::{Law, PathLoss};
-use lobemap::scenario::{FadingSpec, Radio, Receiver, Scenario, Thresholds};
+use lobemap::geometry::frame::LocalFrame;
+use lobemap::geometry::grid::{BBox, Grid};
+use lobemap::model::antenna::Pattern;
+use lobemap::model::fading::Fading;
+use lobemap::model::pathloss::{Law, PathLoss};
 use rand::{RngExt, SeedableRng};
 use rand_distr::{Distribution, Poisson};
 
@@ -101,7 +101,7 @@ fn exact_coverage_layer_matches_monte_carlo_on_demo() {
             continue;
         }
         let (r, c) = (k / g.cols(), k % g.cols());
-        let p = lobemap::probe::probe_with(&sc, g.lat_of_row(r), g.lon_of_col(c), Some((40_000, k as u64)));
+        let p = lobemap::jobs::probe::probe_with(&sc, g.lat_of_row(r), g.lon_of_col(c), Some((40_000, k as u64)));
         let mc = p.monte_carlo.unwrap();
         let se = (mc.estimate * (1.0 - mc.estimate) / 40_000.0).sqrt();
         assert!((p.coverage - *v as f64).abs() < 0.003, "engine {v} vs probe {}", p.coverage);

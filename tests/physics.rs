@@ -1,14 +1,14 @@
 //! Checks of the map engine against published formulas and hand calculations.
 
 use geo::{Destination, Geodesic, Point};
-use lobemap::antenna::Pattern;
+use lobemap::config::nodes::Node;
+use lobemap::config::scenario::{Radio, Receiver, Scenario, Thresholds};
 use lobemap::engine::{Engine, LayerSet, Options};
-use lobemap::geodesy::LocalFrame;
-use lobemap::grid::{BBox, Grid};
-use lobemap::nodes::Node;
-use lobemap::pathloss::{Law, PathLoss};
-use lobemap::probe::probe;
-use lobemap::scenario::{Radio, Receiver, Scenario, Thresholds};
+use lobemap::geometry::frame::LocalFrame;
+use lobemap::geometry::grid::{BBox, Grid};
+use lobemap::jobs::probe::probe;
+use lobemap::model::antenna::Pattern;
+use lobemap::model::pathloss::{Law, PathLoss};
 use rand::{RngExt, SeedableRng};
 use rand_distr::{Distribution, Poisson};
 

@@ -75,12 +75,12 @@ fn draw_respects_areas_hard_core_and_orientation() {
     let o = run(&["draw", &p, "--out", out.to_str().unwrap(), "--quiet"]);
     assert!(o.status.success(), "{}", stderr(&o));
     let pts = drawn(&out);
-    let frame = lobemap::geodesy::LocalFrame::new(48.0, 12.0);
+    let frame = lobemap::geometry::frame::LocalFrame::new(48.0, 12.0);
     let local: Vec<(f64, f64)> = pts.iter().map(|p| frame.to_local(p.0, p.1)).collect();
     for (k, p) in pts.iter().enumerate() {
         assert!(p.0 > 11.992 && p.0 < 12.008 && p.1 > 47.9964 && p.1 < 48.0036, "outside the yard");
         assert!(!(p.0 > 11.998 && p.0 < 12.002 && p.1 > 47.9986 && p.1 < 48.0014), "inside the depot");
-        let brg = lobemap::geodesy::bearing_deg(-local[k].0, -local[k].1);
+        let brg = lobemap::geometry::frame::bearing_deg(-local[k].0, -local[k].1);
         assert!(((p.2 - brg + 540.0) % 360.0 - 180.0).abs() < 0.01, "not pointed at the hub");
     }
     for i in 0..local.len() {
@@ -96,7 +96,7 @@ fn draw_respects_areas_hard_core_and_orientation() {
         frame.to_local(12.002, 48.0014),
     );
     let area_km2 = ((e.0 - w.0) * (e.1 - w.1) - (n.0 - s.0) * (n.1 - s.1)) / 1e6;
-    let expect = lobemap::draw::matern_ii_density(300e-6, 25.0) * 1e6 * area_km2;
+    let expect = lobemap::random::points::matern_ii_density(300e-6, 25.0) * 1e6 * area_km2;
     assert!((pts.len() as f64 - expect).abs() < 4.0 * expect.sqrt(), "{} vs {expect}", pts.len());
     // Same seed, same bytes.
     let out2 = d.path().join("again.geojson");

@@ -22,10 +22,10 @@
 //! - F. Baccelli, B. Błaszczyszyn and P. Mühlethaler, "An Aloha protocol for multihop mobile
 //!   wireless networks", IEEE Trans. Inf. Theory 52(2), 2006.
 
-use crate::draw::matern_ii_density;
-use crate::fading::Fading;
-use crate::pathloss::PathLoss;
-use crate::units::db_to_lin;
+use crate::model::fading::Fading;
+use crate::model::pathloss::PathLoss;
+use crate::model::units::db_to_lin;
+use crate::random::points::matern_ii_density;
 use num_complex::Complex64;
 use std::f64::consts::PI;
 
@@ -76,7 +76,7 @@ pub struct Field {
     pub pathloss: PathLoss,
 }
 
-pub use crate::quadrature::gauss_legendre;
+pub use crate::math::quadrature::gauss_legendre;
 
 /// Radial quadrature of ∫_{guard}^{radius} f(r) 2πr dr as (r, weight) pairs, with the
 /// constant-gain disc inside the minimum distance handled separately by the caller.
@@ -210,7 +210,7 @@ impl Field {
     }
 
     /// P(I ≤ x) by Euler inversion of L_I(s)/s.
-    pub fn cdf(&self, x_mw: f64, euler: &crate::laplace::Euler, rad: &Radial) -> f64 {
+    pub fn cdf(&self, x_mw: f64, euler: &crate::math::laplace::Euler, rad: &Radial) -> f64 {
         if x_mw <= 0.0 {
             return 0.0;
         }
@@ -221,7 +221,7 @@ impl Field {
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::pathloss::Law;
+    use crate::model::pathloss::Law;
 
     fn field(alpha: f64, guard: f64, radius: f64) -> Field {
         Field {

@@ -1,18 +1,18 @@
 //! The `map` job: engine, layers, hot spots and every output file, staged and committed
 //! together.
 
+use crate::config::nodes::layout_geojson;
+use crate::config::scenario::Scenario;
 use crate::engine::{Engine, LayerSet, Layers, Options};
 use crate::error::{Error, Problem};
-use crate::hotspots::regions;
-use crate::nodes::layout_geojson;
-use crate::output::Staging;
-use crate::probe::probe;
-use crate::raster::write_geotiff;
-use crate::render::{MapSpec, Marker, render};
-use crate::scenario::Scenario;
-use crate::stats::Histogram;
-use crate::summary::{Spread, Summary};
-use crate::units::{dbm_to_mw, mw_to_dbm};
+use crate::io::geotiff::write_geotiff;
+use crate::io::heatmap::{MapSpec, Marker, render};
+use crate::io::hotspots::regions;
+use crate::io::staging::Staging;
+use crate::io::summary::{Spread, Summary};
+use crate::jobs::probe::probe;
+use crate::math::stats::Histogram;
+use crate::model::units::{dbm_to_mw, mw_to_dbm};
 use std::path::PathBuf;
 use std::time::Instant;
 
@@ -124,7 +124,7 @@ pub fn run_map(sc: &Scenario, opts: &MapOptions) -> Result<MapResult, Error> {
         tif(&mut st, "interference.tif", i)?;
         let level = (noise_dbm + sc.thresholds.hotspot_i_over_n_db) as f32;
         let regs = regions(grid, i, level, false);
-        let outlines = crate::hotspots::outlines(&regs);
+        let outlines = crate::io::hotspots::outlines(&regs);
         png(&mut st, "interference", "Interference", "dBm", i, &outlines)?;
         files.extend(["interference.tif", "interference.png", "interference.pgw"]);
         let features: Vec<geojson::Feature> = regs
@@ -134,7 +134,8 @@ pub fn run_map(sc: &Scenario, opts: &MapOptions) -> Result<MapResult, Error> {
                 let pr = probe(sc, lat, lon);
                 let server_idx = sc.nodes.iter().position(|n| n.id == pr.server);
                 let mut contrib: Vec<_> = pr.contributions.iter().filter(|c| Some(c.index) != server_idx).collect();
-                let weighted = |c: &&crate::probe::Contribution| c.power_dbm + crate::units::lin_to_db(c.activity);
+                let weighted =
+                    |c: &&crate::jobs::probe::Contribution| c.power_dbm + crate::model::units::lin_to_db(c.activity);
                 contrib.sort_by(|a, b| weighted(b).total_cmp(&weighted(a)));
                 let dominant: Vec<String> = contrib.iter().take(3).map(|c| c.id.clone()).collect();
                 let mut p = serde_json::Map::new();
@@ -162,9 +163,9 @@ pub fn run_map(sc: &Scenario, opts: &MapOptions) -> Result<MapResult, Error> {
         tif(&mut st, "coverage.tif", cv)?;
         let target = sc.thresholds.coverage_target as f32;
         let regs = regions(grid, cv, target, true);
-        let outlines = crate::hotspots::outlines(&regs);
+        let outlines = crate::io::hotspots::outlines(&regs);
         let title = format!("Coverage T={} dB", sc.thresholds.sinr_db);
-        png(&mut st, "coverage", &title, crate::render::PROBABILITY, cv, &outlines)?;
+        png(&mut st, "coverage", &title, crate::io::heatmap::PROBABILITY, cv, &outlines)?;
         files.extend(["coverage.tif", "coverage.png", "coverage.pgw"]);
         outage = Some(regs.len());
         for r in &regs {
@@ -252,7 +253,10 @@ pub fn run_map(sc: &Scenario, opts: &MapOptions) -> Result<MapResult, Error> {
             .and_then(|h| h.fraction_at_least(sc.thresholds.coverage_target * 100.0))
             .map(|f| (f * 1e6).round() / 1e6),
         coverage_method: layers.coverage.as_ref().map(|_| {
-            crate::coverage::CoverageModel::new(sc.fading, sc.thresholds.sinr_db, noise_dbm).method.name().to_string()
+            crate::model::coverage::CoverageModel::new(sc.fading, sc.thresholds.sinr_db, noise_dbm)
+                .method
+                .name()
+                .to_string()
         }),
         outage_zones: outage,
         realizations: sc.draw.as_ref().map(|_| opts.realizations.max(1)),
@@ -269,8 +273,8 @@ pub fn run_map(sc: &Scenario, opts: &MapOptions) -> Result<MapResult, Error> {
 /// `interference` as ensemble means in mW, `sinr` as the mean of its dB values, `coverage` as
 /// the mean probability; `server` is
 /// left out when n > 1. Returns the layers and the scenario with the first drawn layout.
-fn ensemble(sc: &Scenario, spec: &crate::draw::DrawSpec, eopts: &Options, n: usize) -> (Layers, Scenario) {
-    let first = Scenario { nodes: crate::draw::layout(sc, spec, spec.seed), ..sc.clone() };
+fn ensemble(sc: &Scenario, spec: &crate::random::points::DrawSpec, eopts: &Options, n: usize) -> (Layers, Scenario) {
+    let first = Scenario { nodes: crate::random::points::layout(sc, spec, spec.seed), ..sc.clone() };
     let mut acc = Engine::new(&first).run(eopts);
     if n == 1 {
         return (acc, first);
@@ -283,7 +287,7 @@ fn ensemble(sc: &Scenario, spec: &crate::draw::DrawSpec, eopts: &Options, n: usi
     }
     acc.server = None;
     for i in 1..n {
-        let sci = Scenario { nodes: crate::draw::layout(sc, spec, spec.seed + i as u64), ..sc.clone() };
+        let sci = Scenario { nodes: crate::random::points::layout(sc, spec, spec.seed + i as u64), ..sc.clone() };
         let mut l = Engine::new(&sci).run(eopts);
         for (a, b) in [(&mut acc.total, &mut l.total), (&mut acc.interference, &mut l.interference)] {
             if let (Some(a), Some(b)) = (a, b) {
@@ -334,9 +338,9 @@ pub struct LinksOptions {
 /// What the links job produced.
 pub struct LinksResult {
     /// One row per planned link.
-    pub rows: Vec<crate::links::LinkRow>,
+    pub rows: Vec<crate::jobs::links::LinkRow>,
     /// The installer sheet.
-    pub sheet: crate::install::InstallSheet,
+    pub sheet: crate::jobs::install::InstallSheet,
     /// Paths written.
     pub files: Vec<PathBuf>,
 }
@@ -345,8 +349,8 @@ pub struct LinksResult {
 /// `report.html` into `opts.out`.
 pub fn run_links(sc: &Scenario, opts: &LinksOptions) -> Result<LinksResult, Error> {
     let mut st = Staging::new(&opts.out, &[&sc.path, &sc.nodes_path])?;
-    let rows = crate::links::links(sc, opts.monte_carlo);
-    let sheet = crate::install::sheet(sc).map_err(|m| {
+    let rows = crate::jobs::links::links(sc, opts.monte_carlo);
+    let sheet = crate::jobs::install::sheet(sc).map_err(|m| {
         Error::input(Problem::new(sc.path.display().to_string(), Some("[install]".into()), "declination_date", m))
     })?;
     let mut maps = Vec::new();
@@ -373,16 +377,16 @@ pub fn run_links(sc: &Scenario, opts: &LinksOptions) -> Result<LinksResult, Erro
                 outlines: &outlines,
             })
             .map_err(|e| Error::Output { path: opts.out.join("report.html"), source: std::io::Error::other(e) })?;
-            maps.push(crate::report::MapImage { title, png: r.png, caption });
+            maps.push(crate::io::report::MapImage { title, png: r.png, caption });
             Ok(())
         };
         if let Some(c) = &l.coverage {
             let target = sc.thresholds.coverage_target;
             add(
                 format!("Coverage T={} dB", sc.thresholds.sinr_db),
-                crate::render::PROBABILITY,
+                crate::io::heatmap::PROBABILITY,
                 c,
-                crate::hotspots::outlines(&regions(grid, c, target as f32, true)),
+                crate::io::hotspots::outlines(&regions(grid, c, target as f32, true)),
                 format!(
                     "Probability that a receiver at each spot, served by its best node, reaches the SINR threshold with fading; crimson outlines: below the {target} target."
                 ),
@@ -394,7 +398,7 @@ pub fn run_links(sc: &Scenario, opts: &LinksOptions) -> Result<LinksResult, Erro
                 "Interference".into(),
                 "dBm",
                 i,
-                crate::hotspots::outlines(&regions(grid, i, level as f32, false)),
+                crate::io::hotspots::outlines(&regions(grid, i, level as f32, false)),
                 format!(
                     "Aggregate interference at a receiver served by its best node; crimson outlines: hot spots at or above {level:.1} dBm (noise + {} dB).",
                     sc.thresholds.hotspot_i_over_n_db
@@ -411,10 +415,10 @@ pub fn run_links(sc: &Scenario, opts: &LinksOptions) -> Result<LinksResult, Erro
             )?;
         }
     }
-    st.write("links.csv", crate::links::csv(&rows).as_bytes())?;
-    st.write("links.geojson", crate::links::geojson(sc, &rows).to_string().as_bytes())?;
-    st.write("install.csv", crate::install::csv(&sheet).as_bytes())?;
-    st.write("report.html", crate::report::html(sc, &rows, &sheet, &maps).as_bytes())?;
+    st.write("links.csv", crate::jobs::links::csv(&rows).as_bytes())?;
+    st.write("links.geojson", crate::jobs::links::geojson(sc, &rows).to_string().as_bytes())?;
+    st.write("install.csv", crate::jobs::install::csv(&sheet).as_bytes())?;
+    st.write("report.html", crate::io::report::html(sc, &rows, &sheet, &maps).as_bytes())?;
     let files = st.commit()?;
     Ok(LinksResult { rows, sheet, files })
 }
@@ -422,8 +426,8 @@ pub fn run_links(sc: &Scenario, opts: &LinksOptions) -> Result<LinksResult, Erro
 /// The JSON document of an `aggregate` run: every curve set with its label, and the planning
 /// answers.
 pub fn aggregate_json(
-    reports: &[(String, crate::aggregate::Report)],
-    plans: &[crate::aggregate::PlanAnswer],
+    reports: &[(String, crate::random::characterise::Report)],
+    plans: &[crate::random::characterise::PlanAnswer],
 ) -> serde_json::Value {
     serde_json::json!({
         "sets": reports.iter().map(|(l, r)| serde_json::json!({"label": l, "report": r})).collect::<Vec<_>>(),
@@ -435,20 +439,21 @@ pub fn aggregate_json(
 /// `st` (opened before the computation, so an unwritable folder fails early) and commits.
 pub fn write_aggregate(
     mut st: Staging,
-    reports: &[(String, crate::aggregate::Report)],
-    plans: &[crate::aggregate::PlanAnswer],
+    reports: &[(String, crate::random::characterise::Report)],
+    plans: &[crate::random::characterise::PlanAnswer],
 ) -> Result<Vec<PathBuf>, Error> {
-    let refs: Vec<(String, &crate::aggregate::Report)> = reports.iter().map(|(l, r)| (l.clone(), r)).collect();
-    st.write("cdf.csv", crate::aggregate::cdf_csv(&refs).as_bytes())?;
-    let curves: Vec<crate::cdfplot::CurveSet> =
-        reports.iter().map(|(l, r)| crate::cdfplot::CurveSet { label: l.clone(), rows: &r.cdf }).collect();
+    let refs: Vec<(String, &crate::random::characterise::Report)> =
+        reports.iter().map(|(l, r)| (l.clone(), r)).collect();
+    st.write("cdf.csv", crate::random::characterise::cdf_csv(&refs).as_bytes())?;
+    let curves: Vec<crate::io::cdfplot::CurveSet> =
+        reports.iter().map(|(l, r)| crate::io::cdfplot::CurveSet { label: l.clone(), rows: &r.cdf }).collect();
     let title = "Aggregate interference: exact, gamma fit, Monte Carlo";
     let io = |name: &str| {
         let path = st.dir().join(name);
         move |e: String| Error::Output { path, source: std::io::Error::other(e) }
     };
-    let png = crate::cdfplot::png(&curves, title).map_err(io("cdf.png"))?;
-    let svg = crate::cdfplot::svg(&curves, title).map_err(io("cdf.svg"))?;
+    let png = crate::io::cdfplot::png(&curves, title).map_err(io("cdf.png"))?;
+    let svg = crate::io::cdfplot::svg(&curves, title).map_err(io("cdf.svg"))?;
     st.write("cdf.png", &png)?;
     st.write("cdf.svg", svg.as_bytes())?;
     let json = serde_json::to_string_pretty(&aggregate_json(reports, plans))

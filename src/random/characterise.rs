@@ -2,10 +2,10 @@
 //! moment-matched gamma, the exact distribution by Laplace inversion, Monte Carlo with
 //! Kolmogorov–Smirnov distances, and planning answers (highest density, smallest guard).
 
-use crate::field::{Field, Radial};
-use crate::laplace::{DEFAULT_M, Euler};
-use crate::montecarlo::simulate;
-use crate::units::{dbm_to_mw, mw_to_dbm};
+use crate::math::laplace::{DEFAULT_M, Euler};
+use crate::model::units::{dbm_to_mw, mw_to_dbm};
+use crate::random::field::{Field, Radial};
+use crate::random::montecarlo::simulate;
 use rayon::prelude::*;
 use serde::Serialize;
 use statrs::distribution::{ContinuousCDF, Gamma};
@@ -515,8 +515,8 @@ pub struct FieldSpec {
 impl FieldSpec {
     /// Checks every value and builds the field; problems name the command-line flag.
     pub fn build(&self) -> Result<Field, crate::Error> {
+        use crate::config::scenario::Range;
         use crate::error::{Problem, Problems};
-        use crate::scenario::Range;
         let mut p = Problems::default();
         let mut chk = |flag: &str, v: f64, r: Range| {
             if !r.contains(v) {
@@ -549,12 +549,12 @@ impl FieldSpec {
             ));
         }
         let fading = match self.fading.as_str() {
-            "none" => Some(crate::fading::Fading::None),
-            "rayleigh" => Some(crate::fading::Fading::Rayleigh),
-            "nakagami" => crate::fading::Fading::nakagami(self.m)
+            "none" => Some(crate::model::fading::Fading::None),
+            "rayleigh" => Some(crate::model::fading::Fading::Rayleigh),
+            "nakagami" => crate::model::fading::Fading::nakagami(self.m)
                 .map_err(|m| p.push(Problem::new("(command line)", None, "--m", m)))
                 .ok(),
-            "rician" => crate::fading::Fading::rician_db(self.k_db)
+            "rician" => crate::model::fading::Fading::rician_db(self.k_db)
                 .map_err(|m| p.push(Problem::new("(command line)", None, "--k-db", m)))
                 .ok(),
             other => {
@@ -568,11 +568,12 @@ impl FieldSpec {
             }
         };
         let law = match self.model.as_str() {
-            "free-space" => Some(crate::pathloss::Law::FreeSpace),
-            "close-in" => Some(crate::pathloss::Law::CloseIn { exponent: self.exponent }),
-            "power-law" => {
-                Some(crate::pathloss::Law::PowerLaw { exponent: self.exponent, loss_at_1m_db: self.loss_at_1m_db })
-            }
+            "free-space" => Some(crate::model::pathloss::Law::FreeSpace),
+            "close-in" => Some(crate::model::pathloss::Law::CloseIn { exponent: self.exponent }),
+            "power-law" => Some(crate::model::pathloss::Law::PowerLaw {
+                exponent: self.exponent,
+                loss_at_1m_db: self.loss_at_1m_db,
+            }),
             other => {
                 p.push(Problem::new(
                     "(command line)",
@@ -584,7 +585,7 @@ impl FieldSpec {
             }
         };
         let pl = law.and_then(|law| {
-            crate::pathloss::PathLoss::new(
+            crate::model::pathloss::PathLoss::new(
                 law,
                 self.frequency_ghz,
                 self.absorption_db_per_km,
@@ -617,8 +618,8 @@ impl FieldSpec {
             guard_m: self.guard_m,
             radius_m: self.radius_m,
             power_mw: dbm_to_mw(self.power_dbm),
-            tx: crate::field::SectorGain::from_db(self.tx.0, self.tx.1, self.tx.2),
-            rx: crate::field::SectorGain::from_db(self.rx.0, self.rx.1, self.rx.2),
+            tx: crate::random::field::SectorGain::from_db(self.tx.0, self.tx.1, self.tx.2),
+            rx: crate::random::field::SectorGain::from_db(self.rx.0, self.rx.1, self.rx.2),
             fading,
             pathloss,
         })

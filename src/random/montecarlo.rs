@@ -2,10 +2,10 @@
 //! and the same result for any thread count (realisations come in fixed chunks, each chunk
 //! with its own generator seeded from the run seed and the chunk index).
 
+use crate::engine::simd::multiversion;
 use crate::engine::{fast_exp2, fast_log2};
-use crate::fading::Fading;
-use crate::field::Field;
-use crate::simd::multiversion;
+use crate::model::fading::Fading;
+use crate::random::field::Field;
 use rand::{Rng, RngExt, SeedableRng};
 use rand_distr::{Distribution, Gamma, Poisson, StandardNormal};
 use rand_pcg::Pcg64Mcg;

@@ -2,7 +2,7 @@
 //! RFC 7946 polygons (closed rings, exterior counter-clockwise, holes clockwise).
 
 use crate::NODATA;
-use crate::grid::Grid;
+use crate::geometry::grid::Grid;
 use geo::orient::{Direction, Orient};
 use geo::{Contains, Coord, GeodesicArea, LineString, Polygon};
 
@@ -85,7 +85,7 @@ pub fn regions(grid: &Grid, data: &[f32], level: f32, below: bool) -> Vec<Region
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::grid::BBox;
+    use crate::geometry::grid::BBox;
     use geo::{Centroid, Winding};
 
     #[test]

@@ -2,8 +2,8 @@
 //! Monte Carlo on a dBm axis, as the CDF (linear) beside the exceedance 1 − F (log scale, so
 //! the tail where the gamma fit parts from the exact law is visible). PNG and SVG.
 
-use crate::aggregate::CdfRow;
-use crate::render::{FONT, register_font};
+use crate::io::heatmap::{FONT, register_font};
+use crate::random::characterise::CdfRow;
 use plotters::coord::Shift;
 use plotters::prelude::*;
 

@@ -3,12 +3,12 @@
 //! raw tables are read first, then checked and turned into a [`Scenario`] whose values are all
 //! in range. Every problem found is reported at once.
 
-use crate::antenna::Pattern;
+use crate::config::nodes::{Node, parse_nodes};
 use crate::error::{Error, Problem, Problems};
-use crate::geodesy::LocalFrame;
-use crate::grid::{BBox, Grid};
-use crate::nodes::{Node, parse_nodes};
-use crate::pathloss::{Law, PathLoss};
+use crate::geometry::frame::LocalFrame;
+use crate::geometry::grid::{BBox, Grid};
+use crate::model::antenna::Pattern;
+use crate::model::pathloss::{Law, PathLoss};
 use serde::Deserialize;
 use std::fmt;
 use std::path::{Path, PathBuf};
@@ -281,16 +281,20 @@ pub struct Thresholds {
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub struct FadingSpec {
     /// Fading of the wanted signal.
-    pub signal: crate::fading::Fading,
+    pub signal: crate::model::fading::Fading,
     /// Fading of each interferer.
-    pub interferer: crate::fading::Fading,
+    pub interferer: crate::model::fading::Fading,
     /// Log-normal shadowing standard deviation, dB (0: none).
     pub shadowing_db: f64,
 }
 
 impl Default for FadingSpec {
     fn default() -> Self {
-        FadingSpec { signal: crate::fading::Fading::None, interferer: crate::fading::Fading::None, shadowing_db: 0.0 }
+        FadingSpec {
+            signal: crate::model::fading::Fading::None,
+            interferer: crate::model::fading::Fading::None,
+            shadowing_db: 0.0,
+        }
     }
 }
 
@@ -334,7 +338,7 @@ pub struct Scenario {
     /// Decision thresholds.
     pub thresholds: Thresholds,
     /// Random layout drawn around (or instead of) the fixed nodes.
-    pub draw: Option<crate::draw::DrawSpec>,
+    pub draw: Option<crate::random::points::DrawSpec>,
     /// Fading and shadowing.
     pub fading: FadingSpec,
     /// Link-table settings.
@@ -462,7 +466,7 @@ impl Scenario {
             ));
         }
         let mut fading_law = |field: &str, model: Option<&str>, m: Option<f64>, k: Option<f64>| {
-            use crate::fading::Fading;
+            use crate::model::fading::Fading;
             let r = match model.unwrap_or("none") {
                 "none" => Ok(Fading::None),
                 "rayleigh" => Ok(Fading::Rayleigh),
@@ -580,7 +584,7 @@ impl Scenario {
             (None, _, None) => None,
         };
         let draw = raw.draw.as_ref().and_then(|d| {
-            crate::draw::DrawSpec::parse(
+            crate::random::points::DrawSpec::parse(
                 d.density_per_km2,
                 d.areas.as_deref(),
                 d.keep,
@@ -621,8 +625,8 @@ impl Scenario {
             thresholds: thr,
             draw,
             fading: FadingSpec {
-                signal: sig.unwrap_or(crate::fading::Fading::None),
-                interferer: intf.unwrap_or(crate::fading::Fading::None),
+                signal: sig.unwrap_or(crate::model::fading::Fading::None),
+                interferer: intf.unwrap_or(crate::model::fading::Fading::None),
                 shadowing_db,
             },
             links: LinkSettings { capacity_gap_db, max_spectral_efficiency: max_se },
@@ -661,6 +665,6 @@ impl Scenario {
 
     /// Receiver noise power, dBm.
     pub fn noise_dbm(&self) -> f64 {
-        crate::noise::noise_dbm(self.radio.bandwidth_mhz, self.radio.noise_figure_db)
+        crate::model::noise::noise_dbm(self.radio.bandwidth_mhz, self.radio.noise_figure_db)
     }
 }

@@ -2,9 +2,9 @@
 //! path loss and received power, then total, best server, interference, noise and SINR.
 //! It follows the engine's definitions (see [`crate::engine`]) and serves as its reference.
 
-use crate::geodesy::bearing_deg;
-use crate::scenario::Scenario;
-use crate::units::{dbm_to_mw, mw_to_dbm};
+use crate::config::scenario::Scenario;
+use crate::geometry::frame::bearing_deg;
+use crate::model::units::{dbm_to_mw, mw_to_dbm};
 use serde::Serialize;
 
 /// One node's contribution at the probed point.
@@ -124,7 +124,7 @@ pub fn probe_with(sc: &Scenario, lat: f64, lon: f64, mc: Option<(usize, u64)>) -
     let signal_mw = dbm_to_mw(contributions[server].power_dbm);
     let noise_dbm = sc.noise_dbm();
     let sinr_db = mw_to_dbm(signal_mw / (interference_mw + dbm_to_mw(noise_dbm)));
-    let cov = crate::coverage::CoverageModel::new(sc.fading, sc.thresholds.sinr_db, noise_dbm);
+    let cov = crate::model::coverage::CoverageModel::new(sc.fading, sc.thresholds.sinr_db, noise_dbm);
     let interferers: Vec<(f64, f64)> =
         contributions.iter().filter(|c| c.index != server).map(|c| (c.activity, dbm_to_mw(c.power_dbm))).collect();
     let coverage = cov.probability(signal_mw, &interferers);

@@ -3,8 +3,8 @@
 //! Text uses the DejaVu Sans font embedded through the `dejavu` crate (no system fonts).
 
 use crate::NODATA;
-use crate::colormap::tideline;
-use crate::grid::Grid;
+use crate::geometry::grid::Grid;
+use crate::io::colormap::tideline;
 use plotters::prelude::*;
 use plotters::style::FontStyle;
 use std::sync::Once;

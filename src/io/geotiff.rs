@@ -8,7 +8,7 @@
 //! - GeoTIFF Format Specification 1.0 (Ritter and Ruth, 2000), OGC GeoTIFF 1.1 (2019).
 
 use crate::NODATA;
-use crate::grid::Grid;
+use crate::geometry::grid::Grid;
 use std::io::{Seek, Write};
 use tiff::encoder::{TiffEncoder, colortype::Gray32Float};
 use tiff::tags::Tag;

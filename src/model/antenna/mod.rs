@@ -9,7 +9,7 @@
 //!   millimeter-wave cellular networks", IEEE Trans. Wireless Commun. 14(2), 2015 (from memory).
 //! - Parabolic cut: 3GPP TR 38.901, Table 7.3-1, A_H(φ) = −min(12 (φ/φ_3dB)², A_max).
 
-use crate::units::db_to_lin;
+use crate::model::units::db_to_lin;
 
 /// A validated horizontal antenna pattern.
 #[derive(Debug, Clone, Copy, PartialEq)]

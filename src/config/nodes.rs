@@ -6,9 +6,9 @@
 //! the node at the other end of its planned link). `name`, `note` and keys beginning with
 //! `x_` are carried along untouched; any other key is rejected as a probable typo.
 
-use crate::antenna::Pattern;
+use crate::config::scenario::{AntennaDefaults, Range};
 use crate::error::{Problem, Problems};
-use crate::scenario::{AntennaDefaults, Range};
+use crate::model::antenna::Pattern;
 use serde_json::Value;
 
 /// One resolved node: every default applied, every value checked.

@@ -130,10 +130,10 @@ mod tests {
     }
 }
 
-use crate::antenna::Pattern;
+use crate::config::nodes::Node;
+use crate::config::scenario::{AntennaDefaults, Range, Scenario};
 use crate::error::Problem;
-use crate::nodes::Node;
-use crate::scenario::{AntennaDefaults, Range, Scenario};
+use crate::model::antenna::Pattern;
 use geo::{BoundingRect, Contains, MultiPolygon, Point, Polygon};
 use rand::SeedableRng;
 
@@ -367,7 +367,7 @@ pub fn layout(sc: &Scenario, spec: &DrawSpec, seed: u64) -> Vec<Node> {
             Azimuth::Uniform => rng.random_range(0.0..360.0),
             Azimuth::Toward(tlon, tlat) => {
                 let (tx, ty) = sc.frame.to_local(tlon, tlat);
-                crate::geodesy::bearing_deg(tx - p[0], ty - p[1])
+                crate::geometry::frame::bearing_deg(tx - p[0], ty - p[1])
             }
             Azimuth::Nearest => fixed_tree.nearest_neighbor(*p).map(|g| sc.nodes[g.data].azimuth_deg).unwrap_or(0.0),
         };

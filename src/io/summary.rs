@@ -1,6 +1,6 @@
 //! `summary.json`: the figures a reviewer reads first.
 
-use crate::stats::Histogram;
+use crate::math::stats::Histogram;
 use serde::Serialize;
 
 /// Percentiles of a dB layer.

@@ -9,12 +9,12 @@
 //!   gap Γ (dB) between this bound and a practical modem is common practice (e.g. Cioffi's
 //!   SNR-gap approximation).
 
-use crate::coverage::CoverageModel;
-use crate::geodesy::bearing_deg;
-use crate::nodes::Node;
-use crate::probe::McCheck;
-use crate::scenario::Scenario;
-use crate::units::{db_to_lin, dbm_to_mw, mw_to_dbm};
+use crate::config::nodes::Node;
+use crate::config::scenario::Scenario;
+use crate::geometry::frame::bearing_deg;
+use crate::jobs::probe::McCheck;
+use crate::model::coverage::CoverageModel;
+use crate::model::units::{db_to_lin, dbm_to_mw, mw_to_dbm};
 use rayon::prelude::*;
 use serde::Serialize;
 

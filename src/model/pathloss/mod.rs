@@ -151,7 +151,7 @@ impl PathLoss {
 
     /// Linear path gain 1 / L(d).
     pub fn gain_lin(&self, distance_m: f64) -> f64 {
-        crate::units::db_to_lin(-self.loss_db(distance_m))
+        crate::model::units::db_to_lin(-self.loss_db(distance_m))
     }
 }
 

@@ -26,10 +26,10 @@
 //!   transform of the interference).
 //! - M. Haenggi, Stochastic Geometry for Wireless Networks, 2012, ch. 5.
 
-use crate::fading::{Fading, lognormal_moment};
+use crate::model::fading::{Fading, lognormal_moment};
 
-use crate::scenario::FadingSpec;
-use crate::units::{db_to_lin, dbm_to_mw};
+use crate::config::scenario::FadingSpec;
+use crate::model::units::{db_to_lin, dbm_to_mw};
 use rand::{RngExt, SeedableRng};
 use rand_distr::{Distribution, Exp1, Gamma, StandardNormal};
 use rayon::prelude::*;
@@ -118,10 +118,13 @@ impl CoverageModel {
             Method::MomentGamma
         };
         let signal_shape = spec.signal.gamma_shape().min(MAX_SIGNAL_SHAPE);
-        let gl = crate::quadrature::gauss_legendre(4);
+        let gl = crate::math::quadrature::gauss_legendre(4);
         let s_ln = spec.shadowing_db * std::f64::consts::LN_10 / 10.0;
         let shadow_rule = if spec.shadowing_db > 0.0 {
-            crate::quadrature::normal_expectation_rule(6).into_iter().map(|(z, w)| ((s_ln * z).exp(), w)).collect()
+            crate::math::quadrature::normal_expectation_rule(6)
+                .into_iter()
+                .map(|(z, w)| ((s_ln * z).exp(), w))
+                .collect()
         } else {
             vec![(1.0, 1.0)]
         };
@@ -419,7 +422,7 @@ mod laplace_form_checks {
                 shadowing_db: 0.0,
             };
             let mut mref = CoverageModel::new(spec, 6.0, -80.0);
-            mref.gl = crate::quadrature::gauss_legendre(8);
+            mref.gl = crate::math::quadrature::gauss_legendre(8);
             for s_dbm in [-80.0, -76.0, -72.0, -68.0, -60.0] {
                 for i_rel in [-20.0, -10.0, -6.0, -3.0, 0.0, 3.0] {
                     for k in [0.05, 0.5, 2.0, 20.0] {
@@ -442,7 +445,7 @@ mod laplace_form_checks {
     fn laplace_form_is_exact_at_integer_shape() {
         let spec = FadingSpec { signal: Fading::Nakagami { m: 3.0 }, interferer: Fading::Rayleigh, shadowing_db: 0.0 };
         let mut m = CoverageModel::new(spec, 3.0, -80.0);
-        m.gl = crate::quadrature::gauss_legendre(8);
+        m.gl = crate::math::quadrature::gauss_legendre(8);
         for (s_dbm, mu_dbm, k) in [(-70.0, -82.0, 0.3), (-74.0, -79.0, 3.0), (-66.0, -75.0, 0.08)] {
             let (mu, var) = (dbm_to_mw(mu_dbm), dbm_to_mw(mu_dbm).powi(2) / k);
             let a = m.from_moments(dbm_to_mw(s_dbm), mu, var);

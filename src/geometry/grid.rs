@@ -3,7 +3,7 @@
 //! Row 0 is the northern edge (the GeoTIFF convention); cell (r, c) covers
 //! [west + c·Δlon, west + (c+1)·Δlon] × [north − (r+1)·Δlat, north − r·Δlat].
 
-use crate::geodesy::{meridional_radius, prime_vertical_radius};
+use crate::geometry::frame::{meridional_radius, prime_vertical_radius};
 
 /// A longitude/latitude box in degrees.
 #[derive(Debug, Clone, Copy, PartialEq)]

@@ -6,7 +6,7 @@
 //! independent lane. The main-lobe test uses dot products (no trigonometry in the pair
 //! loop); the distance law is specialised for exponents 2, 3 and 4, and any other exponent or
 //! absorption uses vectorisable log2/exp2 approximations. The row kernel is compiled for
-//! several instruction sets and chosen at run time ([`crate::simd`]). The order of summation
+//! several instruction sets and chosen at run time ([`crate::engine::simd`]). The order of summation
 //! is fixed (node index order), so results are bit-identical for any thread count.
 //!
 //! # Definitions (per cell, receiver at `[receiver] height_m`)
@@ -17,12 +17,14 @@
 //! - `sinr` = S / (I + N), dB; `server` = s (index in layout order).
 
 use crate::NODATA;
-use crate::antenna::Pattern;
-use crate::scenario::Scenario;
-use crate::simd::multiversion;
-use crate::units::{db_to_lin, dbm_to_mw, lin_to_db};
+use crate::config::scenario::Scenario;
+use crate::engine::simd::multiversion;
+use crate::model::antenna::Pattern;
+use crate::model::units::{db_to_lin, dbm_to_mw, lin_to_db};
 use rayon::prelude::*;
 use rstar::{AABB, RTree, primitives::GeomWithData};
+
+pub mod simd;
 
 /// Which layers to compute and write.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
@@ -437,7 +439,7 @@ pub struct Engine<'s> {
     g_omni: f32,
     rx_aim: Option<(f32, f32, f32)>,
     g_signal: f32,
-    cov: crate::coverage::CoverageModel,
+    cov: crate::model::coverage::CoverageModel,
 }
 
 impl<'s> Engine<'s> {
@@ -508,12 +510,12 @@ impl<'s> Engine<'s> {
             g_omni: db_to_lin(sc.receiver.omni_gain_dbi()) as f32,
             rx_aim,
             g_signal: db_to_lin(rxp.max_gain_dbi()) as f32,
-            cov: crate::coverage::CoverageModel::new(sc.fading, sc.thresholds.sinr_db, sc.noise_dbm()),
+            cov: crate::model::coverage::CoverageModel::new(sc.fading, sc.thresholds.sinr_db, sc.noise_dbm()),
         }
     }
 
     /// How the coverage layer is computed.
-    pub fn coverage_method(&self) -> crate::coverage::Method {
+    pub fn coverage_method(&self) -> crate::model::coverage::Method {
         self.cov.method
     }
 
@@ -696,7 +698,7 @@ fn row_body<D: Decay>(e: &Engine<'_>, d: D, job: RowJob<'_>, b: &mut RowBufs) ->
             let sig = e.g_signal * b.best[c];
             b.tinv[c] = if sig > 0.0 { t_lin / sig } else { 0.0 };
         }
-        let exact = e.cov.method == crate::coverage::Method::Exact;
+        let exact = e.cov.method == crate::model::coverage::Method::Exact;
         b.cacc.fill(if exact { 1.0 } else { 0.0 });
         b.cvar.fill(0.0);
         b.iacc.fill(0.0);
@@ -713,10 +715,10 @@ fn row_body<D: Decay>(e: &Engine<'_>, d: D, job: RowJob<'_>, b: &mut RowBufs) ->
             }
             if exact {
                 match e.cov.spec.interferer {
-                    crate::fading::Fading::None => lt_pass!(LtNone),
-                    crate::fading::Fading::Rayleigh => lt_pass!(LtRayleigh),
-                    crate::fading::Fading::Nakagami { m } => lt_pass!(LtNakagami(m as f32)),
-                    crate::fading::Fading::Rician { k } => lt_pass!(LtRician(k as f32)),
+                    crate::model::fading::Fading::None => lt_pass!(LtNone),
+                    crate::model::fading::Fading::Rayleigh => lt_pass!(LtRayleigh),
+                    crate::model::fading::Fading::Nakagami { m } => lt_pass!(LtNakagami(m as f32)),
+                    crate::model::fading::Fading::Rician { k } => lt_pass!(LtRician(k as f32)),
                 }
             } else {
                 let coef = n.act * e2 - n.act * n.act * e1 * e1;
@@ -732,7 +734,7 @@ fn row_body<D: Decay>(e: &Engine<'_>, d: D, job: RowJob<'_>, b: &mut RowBufs) ->
     let noise = e.noise_mw as f32;
     let [mut t, mut i, mut s, mut v, cv] = out;
     if let Some(cv) = cv {
-        let exact = e.cov.method == crate::coverage::Method::Exact;
+        let exact = e.cov.method == crate::model::coverage::Method::Exact;
         for (c, out) in cv.iter_mut().enumerate() {
             let sig = (e.g_signal * b.best[c]) as f64;
             *out = if b.server[c] == u32::MAX || sig <= 0.0 {

@@ -1,0 +1,18 @@
+//! Writers: staged output, rasters, heatmaps, polygons, tables, the report.
+
+/// CDF plots.
+pub mod cdfplot;
+/// The colour map.
+pub mod colormap;
+/// Float32 GeoTIFF.
+pub mod geotiff;
+/// PNG heatmaps.
+pub mod heatmap;
+/// Hot-spot polygons.
+pub mod hotspots;
+/// The HTML report.
+pub mod report;
+/// All-or-nothing output staging.
+pub mod staging;
+/// summary.json.
+pub mod summary;

@@ -1,0 +1,10 @@
+//! Jobs: what each command computes.
+
+/// The installer sheet.
+pub mod install;
+/// Planned links.
+pub mod links;
+/// The map job.
+pub mod map;
+/// The breakdown at one point.
+pub mod probe;

@@ -1,0 +1,10 @@
+//! Random fields: point processes, the aggregate-interference field, Monte Carlo, characterisation.
+
+/// Cumulants, gamma fit, exact law and planning.
+pub mod characterise;
+/// The random-field model.
+pub mod field;
+/// Monte Carlo of the field.
+pub mod montecarlo;
+/// Poisson points and thinning.
+pub mod points;
