@@ -4,13 +4,13 @@
 //! sector antennas (30°, 20/−5 dBi) with random boresights, uniform over a 4 km square,
 //! close-in model with exponent 2 (free-space law), no cutoff: every node at every cell.
 
-use lobemap::config::nodes::Node;
-use lobemap::config::scenario::{Radio, Receiver, Scenario, Thresholds};
 use lobemap::engine::{Engine, LayerSet, Options};
 use lobemap::geometry::frame::LocalFrame;
 use lobemap::geometry::grid::{BBox, Grid};
 use lobemap::model::antenna::Pattern;
+use lobemap::model::node::Node;
 use lobemap::model::pathloss::{Law, PathLoss};
+use lobemap::model::scenario::{Radio, Receiver, Scenario, Thresholds};
 use rand::{RngExt, SeedableRng};
 use std::time::Instant;
 
@@ -88,14 +88,14 @@ fn main() {
     let sc_aim = layout(1000, 1000, 2.0, true);
     measure("sinr, aimed rx (two passes)", &sc_aim, sinr, reps);
     let mut sc_ray = layout(1000, 1000, 2.0, true);
-    sc_ray.fading = lobemap::config::scenario::FadingSpec {
+    sc_ray.fading = lobemap::model::fading::FadingSpec {
         signal: lobemap::model::fading::Fading::Rayleigh,
         interferer: lobemap::model::fading::Fading::Rayleigh,
         shadowing_db: 0.0,
     };
     measure("coverage exact (Rayleigh), aimed rx", &sc_ray, coverage, reps);
     let mut sc_ric = layout(1000, 1000, 2.0, true);
-    sc_ric.fading = lobemap::config::scenario::FadingSpec {
+    sc_ric.fading = lobemap::model::fading::FadingSpec {
         signal: lobemap::model::fading::Fading::Rician { k: 4.0 },
         interferer: lobemap::model::fading::Fading::Rayleigh,
         shadowing_db: 0.0,

@@ -1,13 +1,14 @@
 //! `links` throughput: 1000 planned links among 5000 nodes (every node counted as an
 //! interferer of every link), with and without a Rician coverage model. `cargo bench --bench links`.
 
-use lobemap::config::nodes::Node;
-use lobemap::config::scenario::{FadingSpec, Radio, Receiver, Scenario, Thresholds};
 use lobemap::geometry::frame::LocalFrame;
 use lobemap::geometry::grid::{BBox, Grid};
 use lobemap::model::antenna::Pattern;
 use lobemap::model::fading::Fading;
+use lobemap::model::fading::FadingSpec;
+use lobemap::model::node::Node;
 use lobemap::model::pathloss::{Law, PathLoss};
+use lobemap::model::scenario::{Radio, Receiver, Scenario, Thresholds};
 use rand::{RngExt, SeedableRng};
 use std::time::Instant;
 

@@ -1,10 +1,10 @@
 //! Command-line front end: parses, validates and calls the library.
 
 use clap::{Parser, Subcommand};
-use lobemap::config::scenario::Scenario;
 use lobemap::engine::LayerSet;
 use lobemap::error::{Error, Problem};
 use lobemap::jobs::map::{MapOptions, run_map};
+use lobemap::model::scenario::Scenario;
 use std::path::{Path, PathBuf};
 use std::process::ExitCode;
 
@@ -325,7 +325,7 @@ fn run(cli: Cli) -> anyhow::Result<ExitCode> {
                 )))
             })?;
             let t0 = std::time::Instant::now();
-            let nodes = lobemap::random::points::layout(&sc, spec, seed.unwrap_or(spec.seed));
+            let nodes = lobemap::random::layout::layout(&sc, spec, seed.unwrap_or(spec.seed));
             let drawn = nodes.iter().filter(|n| n.id.starts_with("draw-")).count();
             let dir = out.parent().filter(|p| !p.as_os_str().is_empty()).unwrap_or(Path::new("."));
             let name = out
@@ -333,7 +333,7 @@ fn run(cli: Cli) -> anyhow::Result<ExitCode> {
                 .and_then(|n| n.to_str())
                 .ok_or_else(|| bad_flag("--out", "needs a file name".into()))?;
             let mut st = lobemap::io::staging::Staging::new(dir, &[&sc.path, &sc.nodes_path])?;
-            st.write(name, lobemap::config::nodes::layout_geojson(&nodes).to_string().as_bytes())?;
+            st.write(name, lobemap::io::layout::layout_geojson(&nodes).to_string().as_bytes())?;
             st.commit()?;
             if !cli.quiet {
                 eprintln!(

@@ -1,13 +1,14 @@
 //! Coverage probability checks against published results and Monte Carlo.
 
-use lobemap::config::nodes::Node;
-use lobemap::config::scenario::{FadingSpec, Radio, Receiver, Scenario, Thresholds};
 use lobemap::engine::{Engine, LayerSet, Options};
 use lobemap::geometry::frame::LocalFrame;
 use lobemap::geometry::grid::{BBox, Grid};
 use lobemap::model::antenna::Pattern;
 use lobemap::model::fading::Fading;
+use lobemap::model::fading::FadingSpec;
+use lobemap::model::node::Node;
 use lobemap::model::pathloss::{Law, PathLoss};
+use lobemap::model::scenario::{Radio, Receiver, Scenario, Thresholds};
 use rand::{RngExt, SeedableRng};
 use rand_distr::{Distribution, Poisson};
 

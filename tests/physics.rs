@@ -1,14 +1,14 @@
 //! Checks of the map engine against published formulas and hand calculations.
 
 use geo::{Destination, Geodesic, Point};
-use lobemap::config::nodes::Node;
-use lobemap::config::scenario::{Radio, Receiver, Scenario, Thresholds};
 use lobemap::engine::{Engine, LayerSet, Options};
 use lobemap::geometry::frame::LocalFrame;
 use lobemap::geometry::grid::{BBox, Grid};
 use lobemap::jobs::probe::probe;
 use lobemap::model::antenna::Pattern;
+use lobemap::model::node::Node;
 use lobemap::model::pathloss::{Law, PathLoss};
+use lobemap::model::scenario::{Radio, Receiver, Scenario, Thresholds};
 use rand::{RngExt, SeedableRng};
 use rand_distr::{Distribution, Poisson};
 

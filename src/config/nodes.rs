@@ -6,42 +6,11 @@
 //! the node at the other end of its planned link). `name`, `note` and keys beginning with
 //! `x_` are carried along untouched; any other key is rejected as a probable typo.
 
-use crate::config::scenario::{AntennaDefaults, Range};
+use crate::config::antenna::AntennaDefaults;
+use crate::config::range::Range;
 use crate::error::{Problem, Problems};
-use crate::model::antenna::Pattern;
+use crate::model::node::Node;
 use serde_json::Value;
-
-/// One resolved node: every default applied, every value checked.
-#[derive(Debug, Clone, PartialEq)]
-pub struct Node {
-    /// Unique identifier.
-    pub id: String,
-    /// Longitude, degrees (WGS84).
-    pub lon: f64,
-    /// Latitude, degrees (WGS84).
-    pub lat: f64,
-    /// Boresight azimuth, degrees clockwise from true north, in [0, 360).
-    pub azimuth_deg: f64,
-    /// Horizontal antenna pattern.
-    pub pattern: Pattern,
-    /// Conducted transmit power into the antenna, dBm.
-    pub power_dbm: f64,
-    /// Antenna height above the local ground reference, m.
-    pub height_m: f64,
-    /// Fraction of time transmitting, [0, 1].
-    pub activity: f64,
-    /// Id of the node at the other end of its planned link.
-    pub peer: Option<String>,
-    /// Optional human-readable name carried from the input.
-    pub name: Option<String>,
-}
-
-impl Node {
-    /// Effective isotropic radiated power on boresight, dBm.
-    pub fn eirp_dbm(&self) -> f64 {
-        self.power_dbm + self.pattern.max_gain_dbi()
-    }
-}
 
 /// Property keys a node feature may carry.
 pub const NODE_KEYS: &[&str] = &[
@@ -269,49 +238,4 @@ fn parse_feature(
     }
     let (pattern, power_dbm, height_m, activity) = resolved?;
     Some(Node { id: id?, lon, lat, azimuth_deg, pattern, power_dbm, height_m, activity, peer, name })
-}
-
-/// Writes nodes as a GeoJSON FeatureCollection with every default resolved, plus `index`
-/// (the value used in the `server` layer) and `eirp_dbm`.
-pub fn layout_geojson(nodes: &[Node]) -> geojson::FeatureCollection {
-    let features = nodes
-        .iter()
-        .enumerate()
-        .map(|(i, n)| {
-            let mut p = serde_json::Map::new();
-            p.insert("index".into(), i.into());
-            p.insert("id".into(), n.id.clone().into());
-            if let Some(name) = &n.name {
-                p.insert("name".into(), name.clone().into());
-            }
-            p.insert("azimuth_deg".into(), n.azimuth_deg.into());
-            p.insert("pattern".into(), n.pattern.kind().into());
-            p.insert("beamwidth_deg".into(), n.pattern.beamwidth_deg().into());
-            p.insert("gain_dbi".into(), n.pattern.max_gain_dbi().into());
-            match n.pattern {
-                Pattern::Sector { sidelobe_dbi, .. } => {
-                    p.insert("sidelobe_dbi".into(), sidelobe_dbi.into());
-                }
-                Pattern::Parabolic { floor_dbi, .. } => {
-                    p.insert("sidelobe_dbi".into(), floor_dbi.into());
-                }
-                Pattern::Omni { .. } => {}
-            }
-            p.insert("power_dbm".into(), n.power_dbm.into());
-            p.insert("eirp_dbm".into(), n.eirp_dbm().into());
-            p.insert("height_m".into(), n.height_m.into());
-            p.insert("activity".into(), n.activity.into());
-            if let Some(peer) = &n.peer {
-                p.insert("peer".into(), peer.clone().into());
-            }
-            geojson::Feature {
-                bbox: None,
-                geometry: Some(geojson::Geometry::new(geojson::GeometryValue::new_point([n.lon, n.lat]))),
-                id: None,
-                properties: Some(p),
-                foreign_members: None,
-            }
-        })
-        .collect();
-    geojson::FeatureCollection { bbox: None, features, foreign_members: None }
 }

@@ -17,9 +17,9 @@
 //! - `sinr` = S / (I + N), dB; `server` = s (index in layout order).
 
 use crate::NODATA;
-use crate::config::scenario::Scenario;
 use crate::engine::simd::multiversion;
 use crate::model::antenna::Pattern;
+use crate::model::scenario::Scenario;
 use crate::model::units::{db_to_lin, dbm_to_mw, lin_to_db};
 use rayon::prelude::*;
 use rstar::{AABB, RTree, primitives::GeomWithData};

@@ -10,6 +10,8 @@ pub mod geotiff;
 pub mod heatmap;
 /// Hot-spot polygons.
 pub mod hotspots;
+/// `layout.geojson`.
+pub mod layout;
 /// The HTML report.
 pub mod report;
 /// All-or-nothing output staging.

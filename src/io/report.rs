@@ -2,9 +2,9 @@
 //! URIs, the link table, the installer table and the cautions. No scripts, no external
 //! assets: it opens offline on a tablet.
 
-use crate::config::scenario::Scenario;
 use crate::jobs::install::InstallSheet;
 use crate::jobs::links::LinkRow;
+use crate::model::scenario::Scenario;
 use base64::Engine as _;
 
 /// One embedded map.

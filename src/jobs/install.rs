@@ -13,8 +13,8 @@
 //!   for the general population is the same 1 mW/cm² = 10 W/m² for 1.5–100 GHz
 //!   (47 CFR 1.1310, confirmed in the model notes).
 
-use crate::config::scenario::Scenario;
 use crate::jobs::links::angle_diff;
+use crate::model::scenario::Scenario;
 use serde::Serialize;
 use world_magnetic_model::GeomagneticField;
 use world_magnetic_model::time::Date;

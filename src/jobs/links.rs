@@ -9,11 +9,11 @@
 //!   gap Γ (dB) between this bound and a practical modem is common practice (e.g. Cioffi's
 //!   SNR-gap approximation).
 
-use crate::config::nodes::Node;
-use crate::config::scenario::Scenario;
 use crate::geometry::frame::bearing_deg;
 use crate::jobs::probe::McCheck;
 use crate::model::coverage::CoverageModel;
+use crate::model::node::Node;
+use crate::model::scenario::Scenario;
 use crate::model::units::{db_to_lin, dbm_to_mw, mw_to_dbm};
 use rayon::prelude::*;
 use serde::Serialize;

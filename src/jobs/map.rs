@@ -1,17 +1,17 @@
 //! The `map` job: engine, layers, hot spots and every output file, staged and committed
 //! together.
 
-use crate::config::nodes::layout_geojson;
-use crate::config::scenario::Scenario;
 use crate::engine::{Engine, LayerSet, Layers, Options};
 use crate::error::{Error, Problem};
 use crate::io::geotiff::write_geotiff;
 use crate::io::heatmap::{MapSpec, Marker, render};
 use crate::io::hotspots::regions;
+use crate::io::layout::layout_geojson;
 use crate::io::staging::Staging;
 use crate::io::summary::{Spread, Summary};
 use crate::jobs::probe::probe;
 use crate::math::stats::Histogram;
+use crate::model::scenario::Scenario;
 use crate::model::units::{dbm_to_mw, mw_to_dbm};
 use std::path::PathBuf;
 use std::time::Instant;
@@ -273,8 +273,8 @@ pub fn run_map(sc: &Scenario, opts: &MapOptions) -> Result<MapResult, Error> {
 /// `interference` as ensemble means in mW, `sinr` as the mean of its dB values, `coverage` as
 /// the mean probability; `server` is
 /// left out when n > 1. Returns the layers and the scenario with the first drawn layout.
-fn ensemble(sc: &Scenario, spec: &crate::random::points::DrawSpec, eopts: &Options, n: usize) -> (Layers, Scenario) {
-    let first = Scenario { nodes: crate::random::points::layout(sc, spec, spec.seed), ..sc.clone() };
+fn ensemble(sc: &Scenario, spec: &crate::model::draw::DrawSpec, eopts: &Options, n: usize) -> (Layers, Scenario) {
+    let first = Scenario { nodes: crate::random::layout::layout(sc, spec, spec.seed), ..sc.clone() };
     let mut acc = Engine::new(&first).run(eopts);
     if n == 1 {
         return (acc, first);
@@ -287,7 +287,7 @@ fn ensemble(sc: &Scenario, spec: &crate::random::points::DrawSpec, eopts: &Optio
     }
     acc.server = None;
     for i in 1..n {
-        let sci = Scenario { nodes: crate::random::points::layout(sc, spec, spec.seed + i as u64), ..sc.clone() };
+        let sci = Scenario { nodes: crate::random::layout::layout(sc, spec, spec.seed + i as u64), ..sc.clone() };
         let mut l = Engine::new(&sci).run(eopts);
         for (a, b) in [(&mut acc.total, &mut l.total), (&mut acc.interference, &mut l.interference)] {
             if let (Some(a), Some(b)) = (a, b) {

@@ -2,8 +2,8 @@
 //! path loss and received power, then total, best server, interference, noise and SINR.
 //! It follows the engine's definitions (see [`crate::engine`]) and serves as its reference.
 
-use crate::config::scenario::Scenario;
 use crate::geometry::frame::bearing_deg;
+use crate::model::scenario::Scenario;
 use crate::model::units::{dbm_to_mw, mw_to_dbm};
 use serde::Serialize;
 

@@ -28,7 +28,7 @@
 
 use crate::model::fading::{Fading, lognormal_moment};
 
-use crate::config::scenario::FadingSpec;
+use crate::model::fading::FadingSpec;
 use crate::model::units::{db_to_lin, dbm_to_mw};
 use rand::{RngExt, SeedableRng};
 use rand_distr::{Distribution, Exp1, Gamma, StandardNormal};

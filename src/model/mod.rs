@@ -4,11 +4,17 @@
 pub mod antenna;
 /// Coverage probability with fading.
 pub mod coverage;
+/// A validated `[draw]` table.
+pub mod draw;
 /// Fading laws and shadowing.
 pub mod fading;
+/// A node of the layout.
+pub mod node;
 /// Thermal noise.
 pub mod noise;
 /// Path-loss models.
 pub mod pathloss;
+/// A validated scenario.
+pub mod scenario;
 /// Decibel conversions.
 pub mod units;

@@ -515,7 +515,7 @@ pub struct FieldSpec {
 impl FieldSpec {
     /// Checks every value and builds the field; problems name the command-line flag.
     pub fn build(&self) -> Result<Field, crate::Error> {
-        use crate::config::scenario::Range;
+        use crate::config::range::Range;
         use crate::error::{Problem, Problems};
         let mut p = Problems::default();
         let mut chk = |flag: &str, v: f64, r: Range| {

@@ -4,6 +4,8 @@
 pub mod characterise;
 /// The random-field model.
 pub mod field;
+/// One random layout for a scenario.
+pub mod layout;
 /// Monte Carlo of the field.
 pub mod montecarlo;
 /// Poisson points and thinning.

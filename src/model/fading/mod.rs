@@ -98,6 +98,24 @@ pub fn lognormal_moment(sigma_db: f64, n: u32) -> f64 {
     ((n * n) as f64 * s * s / 2.0).exp()
 }
 
+/// `[fading]`: small-scale fading of the wanted signal and of interferers, and log-normal
+/// shadowing of every link.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct FadingSpec {
+    /// Fading of the wanted signal.
+    pub signal: Fading,
+    /// Fading of each interferer.
+    pub interferer: Fading,
+    /// Log-normal shadowing standard deviation, dB (0: none).
+    pub shadowing_db: f64,
+}
+
+impl Default for FadingSpec {
+    fn default() -> Self {
+        FadingSpec { signal: Fading::None, interferer: Fading::None, shadowing_db: 0.0 }
+    }
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;

@@ -1,0 +1,74 @@
+//! The `[antenna]` table and the per-node antenna keys: merged, then resolved into a pattern.
+
+use crate::model::antenna::Pattern;
+use serde::Deserialize;
+
+/// `[antenna]`: defaults for every node; each key may be overridden per node.
+#[derive(Debug, Clone, Default, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct AntennaDefaults {
+    /// `sector`, `parabolic` or `omni`.
+    pub pattern: Option<String>,
+    /// Main-lobe width (sector) or half-power beamwidth (parabolic), degrees.
+    pub beamwidth_deg: Option<f64>,
+    /// Main-lobe gain, dBi.
+    pub gain_dbi: Option<f64>,
+    /// Gain outside the main lobe (sector) or pattern floor (parabolic), dBi.
+    pub sidelobe_dbi: Option<f64>,
+    /// Conducted transmit power, dBm.
+    pub power_dbm: Option<f64>,
+    /// Antenna height, m (default 5).
+    pub height_m: Option<f64>,
+    /// Fraction of time transmitting (default 1).
+    pub activity: Option<f64>,
+}
+
+/// Default antenna height when neither the node nor `[antenna]` gives one, m.
+pub const DEFAULT_HEIGHT_M: f64 = 5.0;
+
+impl AntennaDefaults {
+    /// Turns merged values into (pattern, power_dbm, height_m, activity), reporting missing
+    /// or inconsistent keys through `bad(field, message)`.
+    pub fn resolve(&self, bad: &mut dyn FnMut(&str, String)) -> Option<(Pattern, f64, f64, f64)> {
+        let need = |v: Option<f64>, field: &str, bad: &mut dyn FnMut(&str, String)| {
+            if v.is_none() {
+                bad(field, "missing; set it in the scenario's [antenna] table or in the node's properties".into());
+            }
+            v
+        };
+        let pattern = match self.pattern.as_deref() {
+            None => {
+                bad("pattern", "missing; one of `sector`, `parabolic`, `omni` in [antenna] or the node".into());
+                None
+            }
+            Some("omni") => need(self.gain_dbi, "gain_dbi", bad).map(|g| Pattern::Omni { gain_dbi: g }),
+            Some(k @ ("sector" | "parabolic")) => {
+                let bw = need(self.beamwidth_deg, "beamwidth_deg", bad);
+                let g = need(self.gain_dbi, "gain_dbi", bad);
+                let s = need(self.sidelobe_dbi, "sidelobe_dbi", bad);
+                match (bw, g, s) {
+                    (Some(bw), Some(g), Some(s)) => {
+                        if s > g {
+                            bad(
+                                "sidelobe_dbi",
+                                format!("value {s} is above the main-lobe gain {g} dBi; it must not exceed it"),
+                            );
+                            None
+                        } else if k == "sector" {
+                            Some(Pattern::Sector { beamwidth_deg: bw, gain_dbi: g, sidelobe_dbi: s })
+                        } else {
+                            Some(Pattern::Parabolic { beamwidth_deg: bw, gain_dbi: g, floor_dbi: s })
+                        }
+                    }
+                    _ => None,
+                }
+            }
+            Some(other) => {
+                bad("pattern", format!("value `{other}` is not one of `sector`, `parabolic`, `omni`"));
+                None
+            }
+        };
+        let power = need(self.power_dbm, "power_dbm", bad);
+        Some((pattern?, power?, self.height_m.unwrap_or(DEFAULT_HEIGHT_M), self.activity.unwrap_or(1.0)))
+    }
+}

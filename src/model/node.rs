@@ -1,0 +1,35 @@
+//! A node of the layout: position, boresight, antenna, power, height, activity, planned peer.
+
+use crate::model::antenna::Pattern;
+
+/// One resolved node: every default applied, every value checked.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Node {
+    /// Unique identifier.
+    pub id: String,
+    /// Longitude, degrees (WGS84).
+    pub lon: f64,
+    /// Latitude, degrees (WGS84).
+    pub lat: f64,
+    /// Boresight azimuth, degrees clockwise from true north, in [0, 360).
+    pub azimuth_deg: f64,
+    /// Horizontal antenna pattern.
+    pub pattern: Pattern,
+    /// Conducted transmit power into the antenna, dBm.
+    pub power_dbm: f64,
+    /// Antenna height above the local ground reference, m.
+    pub height_m: f64,
+    /// Fraction of time transmitting, [0, 1].
+    pub activity: f64,
+    /// Id of the node at the other end of its planned link.
+    pub peer: Option<String>,
+    /// Optional human-readable name carried from the input.
+    pub name: Option<String>,
+}
+
+impl Node {
+    /// Effective isotropic radiated power on boresight, dBm.
+    pub fn eirp_dbm(&self) -> f64 {
+        self.power_dbm + self.pattern.max_gain_dbi()
+    }
+}

@@ -1,0 +1,138 @@
+//! A validated scenario: every value in range, the nodes resolved, the grid and the local frame
+//! placed. Built by the configuration layer ([`crate::config`]) or in code with
+//! [`Scenario::from_parts`].
+
+use crate::geometry::frame::LocalFrame;
+use crate::geometry::grid::Grid;
+use crate::model::antenna::Pattern;
+use crate::model::draw::DrawSpec;
+use crate::model::fading::FadingSpec;
+use crate::model::node::Node;
+use crate::model::pathloss::PathLoss;
+use std::path::PathBuf;
+
+/// `[radio]`.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Radio {
+    /// Carrier frequency, GHz.
+    pub frequency_ghz: f64,
+    /// Receiver noise bandwidth, MHz.
+    pub bandwidth_mhz: f64,
+    /// Receiver noise figure, dB.
+    pub noise_figure_db: f64,
+}
+
+/// `[receiver]`: the antenna of a hypothetical receiver at each cell.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Receiver {
+    /// Height above ground, m (default 1.5).
+    pub height_m: f64,
+    /// The receiving antenna. For `aimed`, a sector pattern pointed at the cell's best server.
+    pub pattern: Pattern,
+    /// Whether the pattern is aimed at the best server (otherwise omni).
+    pub aimed: bool,
+}
+
+impl Receiver {
+    /// Gain used for the `total` layer (what any new receiver would pick up): the omni gain,
+    /// or 0 dBi when the receiver is aimed.
+    pub fn omni_gain_dbi(&self) -> f64 {
+        if self.aimed { 0.0 } else { self.pattern.max_gain_dbi() }
+    }
+}
+
+/// `[thresholds]`.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Thresholds {
+    /// SINR a receiver needs, dB (default 5).
+    pub sinr_db: f64,
+    /// Interference-over-noise level that marks a hot spot, dB (default 0).
+    pub hotspot_i_over_n_db: f64,
+    /// Coverage probability a cell or link must reach (default 0.9).
+    pub coverage_target: f64,
+}
+
+/// `[links]`: capacity estimate settings.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct LinkSettings {
+    /// Implementation gap Γ in C = B log2(1 + SINR/Γ), dB (default 3).
+    pub capacity_gap_db: f64,
+    /// Cap on the spectral efficiency, bit/s/Hz (default 8: 256-QAM at rate about 1).
+    pub max_spectral_efficiency: f64,
+}
+
+/// `[install]`: installer-sheet settings.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct InstallSettings {
+    /// Date at which magnetic declination is evaluated (year, ordinal day).
+    pub declination_date: (i32, u16),
+}
+
+/// A validated scenario with its nodes loaded.
+#[derive(Debug, Clone)]
+pub struct Scenario {
+    /// Scenario name (used for the default output folder).
+    pub name: String,
+    /// The scenario file.
+    pub path: PathBuf,
+    /// The node file.
+    pub nodes_path: PathBuf,
+    /// Nodes, in file order.
+    pub nodes: Vec<Node>,
+    /// Radio parameters.
+    pub radio: Radio,
+    /// Path-loss model.
+    pub pathloss: PathLoss,
+    /// Receiver model.
+    pub receiver: Receiver,
+    /// Map grid.
+    pub grid: Grid,
+    /// Local tangent plane at the grid centre.
+    pub frame: LocalFrame,
+    /// Decision thresholds.
+    pub thresholds: Thresholds,
+    /// Random layout drawn around (or instead of) the fixed nodes.
+    pub draw: Option<DrawSpec>,
+    /// Fading and shadowing.
+    pub fading: FadingSpec,
+    /// Link-table settings.
+    pub links: LinkSettings,
+    /// Installer-sheet settings.
+    pub install: InstallSettings,
+}
+
+impl Scenario {
+    /// A scenario built in code (tests, benchmarks, library users): the frame is placed at the
+    /// grid centre; no `[draw]`, no fading, default link and installer settings.
+    pub fn from_parts(
+        nodes: Vec<Node>,
+        radio: Radio,
+        pathloss: PathLoss,
+        receiver: Receiver,
+        grid: Grid,
+        thresholds: Thresholds,
+    ) -> Scenario {
+        let (lon, lat) = grid.bbox().centre();
+        Scenario {
+            name: "in-code".into(),
+            path: PathBuf::from("(in code)"),
+            nodes_path: PathBuf::from("(in code)"),
+            nodes,
+            radio,
+            pathloss,
+            receiver,
+            grid,
+            frame: LocalFrame::new(lat, lon),
+            thresholds,
+            draw: None,
+            fading: FadingSpec::default(),
+            links: LinkSettings { capacity_gap_db: 3.0, max_spectral_efficiency: 8.0 },
+            install: InstallSettings { declination_date: (2026, 1) },
+        }
+    }
+
+    /// Receiver noise power, dBm.
+    pub fn noise_dbm(&self) -> f64 {
+        crate::model::noise::noise_dbm(self.radio.bandwidth_mhz, self.radio.noise_figure_db)
+    }
+}
