@@ -26,6 +26,11 @@ impl Problem {
     ) -> Self {
         Problem { file: file.into(), feature, field: field.into(), message: message.into() }
     }
+
+    /// A problem with a command-line flag (`--name`) or argument.
+    pub fn flag(flag: impl Into<String>, message: impl Into<String>) -> Self {
+        Problem::new("(command line)", None, flag, message)
+    }
 }
 
 impl fmt::Display for Problem {

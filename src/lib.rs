@@ -16,6 +16,7 @@ pub mod jobs;
 pub mod math;
 pub mod model;
 pub mod random;
+pub mod run;
 
 pub use error::{Error, Problem};
 

@@ -3,9 +3,10 @@
 
 use lobemap::model::fading::Fading;
 use lobemap::model::pathloss::{Law, PathLoss};
-use lobemap::random::characterise::{GammaFit, Request, characterise, max_density, min_guard};
+use lobemap::random::characterise::{GammaFit, Request, characterise};
 use lobemap::random::field::{Field, SectorGain};
 use lobemap::random::montecarlo::simulate;
+use lobemap::random::planning::{max_density, min_guard};
 use num_complex::Complex64;
 
 fn field(fading: Fading, bw: f64, main: f64, side: f64) -> Field {

@@ -4,6 +4,8 @@
 pub mod antenna;
 /// The `[draw]` table.
 pub mod draw;
+/// The random field's raw parameters.
+pub mod field;
 /// The node file.
 pub mod nodes;
 /// Allowed numeric ranges.

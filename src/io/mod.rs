@@ -18,3 +18,5 @@ pub mod report;
 pub mod staging;
 /// summary.json.
 pub mod summary;
+/// Text tables and CSV.
+pub mod tables;

@@ -4,7 +4,6 @@
 pub mod install;
 /// Planned links.
 pub mod links;
-/// The map job.
-pub mod map;
+
 /// The breakdown at one point.
 pub mod probe;

@@ -8,5 +8,7 @@ pub mod field;
 pub mod layout;
 /// Monte Carlo of the field.
 pub mod montecarlo;
+/// Highest density and smallest guard for an outage target.
+pub mod planning;
 /// Poisson points and thinning.
 pub mod points;

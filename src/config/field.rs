@@ -1,0 +1,321 @@
+//! The random field's parameters as given on the command line or taken from a scenario,
+//! validated into a [`Field`].
+
+use crate::model::units::dbm_to_mw;
+use crate::random::field::Field;
+
+/// Raw field parameters as given on the command line or taken from a scenario; [`Self::build`]
+/// validates them.
+#[derive(Debug, Clone, PartialEq)]
+pub struct FieldSpec {
+    /// Parent density, per km².
+    pub density_per_km2: f64,
+    /// Independent retention probability.
+    pub keep: f64,
+    /// Matérn II hard core, m.
+    pub hard_core_m: f64,
+    /// Guard radius, m.
+    pub guard_m: f64,
+    /// Outer radius, m.
+    pub radius_m: f64,
+    /// Transmit power, dBm.
+    pub power_dbm: f64,
+    /// Interferer (beamwidth, gain, side lobe).
+    pub tx: (f64, f64, f64),
+    /// Receiver (beamwidth, gain, side lobe).
+    pub rx: (f64, f64, f64),
+    /// Fading law name: none, rayleigh, nakagami, rician.
+    pub fading: String,
+    /// Nakagami m.
+    pub m: f64,
+    /// Rician K, dB.
+    pub k_db: f64,
+    /// Path-loss model name.
+    pub model: String,
+    /// Exponent.
+    pub exponent: f64,
+    /// Loss at 1 m (power-law).
+    pub loss_at_1m_db: f64,
+    /// Frequency, GHz.
+    pub frequency_ghz: f64,
+    /// Absorption, dB/km.
+    pub absorption_db_per_km: f64,
+    /// Minimum distance, m.
+    pub min_distance_m: f64,
+}
+
+impl FieldSpec {
+    /// Checks every value and builds the field; problems name the command-line flag.
+    pub fn build(&self) -> Result<Field, crate::Error> {
+        use crate::config::range::Range;
+        use crate::error::{Problem, Problems};
+        let mut p = Problems::default();
+        let mut chk = |flag: &str, v: f64, r: Range| {
+            if !r.contains(v) {
+                p.push(Problem::new(
+                    "(command line)",
+                    None,
+                    flag,
+                    format!("value {v} is outside the allowed range {r}"),
+                ));
+            }
+        };
+        chk("--density-per-km2", self.density_per_km2, Range::left_open(0.0, 1e7, "per km²"));
+        chk("--keep", self.keep, Range::left_open(0.0, 1.0, ""));
+        chk("--hard-core-m", self.hard_core_m, Range::closed(0.0, 10_000.0, "m"));
+        chk("--radius-m", self.radius_m, Range::left_open(0.0, 1e6, "m"));
+        chk("--guard-m", self.guard_m, Range::closed(0.0, self.radius_m.max(0.0), "m (below --radius-m)"));
+        chk("--power-dbm", self.power_dbm, Range::POWER);
+        chk("--beamwidth-deg", self.tx.0, Range::BEAMWIDTH);
+        chk("--gain-dbi", self.tx.1, Range::GAIN);
+        chk("--sidelobe-dbi", self.tx.2, Range::closed(-60.0, self.tx.1, "dBi (not above --gain-dbi)"));
+        chk("--rx-beamwidth-deg", self.rx.0, Range::BEAMWIDTH);
+        chk("--rx-gain-dbi", self.rx.1, Range::GAIN);
+        chk("--rx-sidelobe-dbi", self.rx.2, Range::closed(-60.0, self.rx.1, "dBi (not above --rx-gain-dbi)"));
+        if self.guard_m >= self.radius_m {
+            p.push(Problem::new(
+                "(command line)",
+                None,
+                "--guard-m",
+                format!("value {} must be below --radius-m {}", self.guard_m, self.radius_m),
+            ));
+        }
+        let fading = match self.fading.as_str() {
+            "none" => Some(crate::model::fading::Fading::None),
+            "rayleigh" => Some(crate::model::fading::Fading::Rayleigh),
+            "nakagami" => crate::model::fading::Fading::nakagami(self.m)
+                .map_err(|m| p.push(Problem::new("(command line)", None, "--m", m)))
+                .ok(),
+            "rician" => crate::model::fading::Fading::rician_db(self.k_db)
+                .map_err(|m| p.push(Problem::new("(command line)", None, "--k-db", m)))
+                .ok(),
+            other => {
+                p.push(Problem::new(
+                    "(command line)",
+                    None,
+                    "--fading",
+                    format!("value `{other}` is not one of none, rayleigh, nakagami, rician"),
+                ));
+                None
+            }
+        };
+        let law = match self.model.as_str() {
+            "free-space" => Some(crate::model::pathloss::Law::FreeSpace),
+            "close-in" => Some(crate::model::pathloss::Law::CloseIn { exponent: self.exponent }),
+            "power-law" => Some(crate::model::pathloss::Law::PowerLaw {
+                exponent: self.exponent,
+                loss_at_1m_db: self.loss_at_1m_db,
+            }),
+            other => {
+                p.push(Problem::new(
+                    "(command line)",
+                    None,
+                    "--model",
+                    format!("value `{other}` is not one of free-space, close-in, power-law"),
+                ));
+                None
+            }
+        };
+        let pl = law.and_then(|law| {
+            crate::model::pathloss::PathLoss::new(
+                law,
+                self.frequency_ghz,
+                self.absorption_db_per_km,
+                self.min_distance_m,
+                "(command line)",
+            )
+            .map_err(|e| {
+                for mut q in e {
+                    q.field = format!("--{}", q.field.replace('_', "-"));
+                    q.feature = None;
+                    p.push(q);
+                }
+            })
+            .ok()
+        });
+        if law.is_some() && pl.is_some() && self.exponent <= 2.0 && self.model != "free-space" && self.radius_m > 1e5 {
+            p.push(Problem::new(
+                "(command line)",
+                None,
+                "--exponent",
+                "with exponent ≤ 2 the aggregate grows without bound with the radius; keep --radius-m at most 100 km",
+            ));
+        }
+        p.into_result()?;
+        let (Some(fading), Some(pathloss)) = (fading, pl) else { unreachable!("problems were recorded") };
+        Ok(Field {
+            density_per_m2: self.density_per_km2 / 1e6,
+            keep: self.keep,
+            hard_core_m: self.hard_core_m,
+            guard_m: self.guard_m,
+            radius_m: self.radius_m,
+            power_mw: dbm_to_mw(self.power_dbm),
+            tx: crate::random::field::SectorGain::from_db(self.tx.0, self.tx.1, self.tx.2),
+            rx: crate::random::field::SectorGain::from_db(self.rx.0, self.rx.1, self.rx.2),
+            fading,
+            pathloss,
+        })
+    }
+
+    /// Applies one sweep value: `beamwidth_deg` (interferers, and the receiver when it is
+    /// directional), `sidelobe_dbi` (likewise), `density_per_km2` or `k_db` (Rician).
+    pub fn with(&self, key: &str, v: f64) -> Result<FieldSpec, String> {
+        let mut s = self.clone();
+        match key {
+            "beamwidth_deg" => {
+                s.tx.0 = v;
+                if s.rx.0 < 360.0 {
+                    s.rx.0 = v;
+                }
+            }
+            "sidelobe_dbi" => {
+                s.tx.2 = v;
+                if s.rx.0 < 360.0 {
+                    s.rx.2 = v;
+                }
+            }
+            "density_per_km2" => s.density_per_km2 = v,
+            "k_db" => {
+                s.fading = "rician".into();
+                s.k_db = v;
+            }
+            other => {
+                return Err(format!(
+                    "unknown sweep key `{other}`; allowed: beamwidth_deg, sidelobe_dbi, density_per_km2, k_db"
+                ));
+            }
+        }
+        Ok(s)
+    }
+}
+
+/// What the user gave for a random field (flags), each value optional: unset values come
+/// from the scenario, if any, then from the defaults (radius and guard always come from
+/// here).
+#[derive(Debug, Clone, Default, PartialEq)]
+pub struct FieldOverrides {
+    /// Interferer density before thinning, per km².
+    pub density_per_km2: Option<f64>,
+    /// Independent retention probability.
+    pub keep: Option<f64>,
+    /// Matérn II hard-core distance, m.
+    pub hard_core_m: Option<f64>,
+    /// Outer radius, m.
+    pub radius_m: f64,
+    /// Guard radius, m.
+    pub guard_m: f64,
+    /// Interferer transmit power, dBm.
+    pub power_dbm: Option<f64>,
+    /// Interferer main-lobe width, degrees.
+    pub beamwidth_deg: Option<f64>,
+    /// Interferer main-lobe gain, dBi.
+    pub gain_dbi: Option<f64>,
+    /// Interferer side-lobe gain, dBi.
+    pub sidelobe_dbi: Option<f64>,
+    /// Receiver main-lobe width, degrees.
+    pub rx_beamwidth_deg: Option<f64>,
+    /// Receiver main-lobe gain, dBi.
+    pub rx_gain_dbi: Option<f64>,
+    /// Receiver side-lobe gain, dBi.
+    pub rx_sidelobe_dbi: Option<f64>,
+    /// Path-loss model name.
+    pub model: Option<String>,
+    /// Path-loss exponent.
+    pub exponent: Option<f64>,
+    /// Loss at 1 m (power-law), dB.
+    pub loss_at_1m_db: Option<f64>,
+    /// Carrier frequency, GHz.
+    pub frequency_ghz: Option<f64>,
+    /// Gaseous absorption, dB/km.
+    pub absorption_db_per_km: Option<f64>,
+    /// Minimum distance, m.
+    pub min_distance_m: Option<f64>,
+    /// Fading law name.
+    pub fading: Option<String>,
+    /// Rician K, dB (used with `rician`).
+    pub k_db: f64,
+    /// Nakagami m (used with `nakagami`).
+    pub m: f64,
+    /// Whether a density sweep will set the density (so none is needed here).
+    pub density_swept: bool,
+}
+
+impl FieldSpec {
+    /// Merges the user's values over the scenario's (when given) and the defaults: radius
+    /// 1000 m, guard 10 m, 20 dBm, omni 0 dBi at both ends, close-in n = 3 at 28 GHz,
+    /// Rayleigh.
+    pub fn resolve(
+        sc: Option<&crate::model::scenario::Scenario>,
+        a: &FieldOverrides,
+    ) -> Result<FieldSpec, crate::Error> {
+        use crate::model::antenna::Pattern;
+        use crate::model::fading::Fading;
+        use crate::model::pathloss::Law;
+        let node0 = sc.and_then(|s| s.nodes.first());
+        let (sc_bw, sc_g, sc_s, sc_p) = match node0.map(|n| (n.pattern, n.power_dbm)) {
+            Some((Pattern::Sector { beamwidth_deg, gain_dbi, sidelobe_dbi }, p)) => {
+                (Some(beamwidth_deg), Some(gain_dbi), Some(sidelobe_dbi), Some(p))
+            }
+            Some((Pattern::Parabolic { beamwidth_deg, gain_dbi, floor_dbi }, p)) => {
+                (Some(beamwidth_deg), Some(gain_dbi), Some(floor_dbi), Some(p))
+            }
+            Some((Pattern::Omni { gain_dbi }, p)) => (Some(360.0), Some(gain_dbi), Some(gain_dbi), Some(p)),
+            None => (None, None, None, None),
+        };
+        let rx = sc.map(|s| s.receiver.pattern);
+        let (rx_bw, rx_g, rx_s) = match rx {
+            Some(Pattern::Sector { beamwidth_deg, gain_dbi, sidelobe_dbi }) => {
+                (Some(beamwidth_deg), Some(gain_dbi), Some(sidelobe_dbi))
+            }
+            Some(Pattern::Omni { gain_dbi }) => (Some(360.0), Some(gain_dbi), Some(gain_dbi)),
+            _ => (None, None, None),
+        };
+        let pl = sc.map(|s| s.pathloss);
+        let (model, exponent, l1) = match pl.map(|p| p.law()) {
+            Some(Law::FreeSpace) => ("free-space", 2.0, 0.0),
+            Some(Law::CloseIn { exponent }) => ("close-in", exponent, 0.0),
+            Some(Law::PowerLaw { exponent, loss_at_1m_db }) => ("power-law", exponent, loss_at_1m_db),
+            None => ("close-in", 3.0, 40.0),
+        };
+        let gain = a.gain_dbi.or(sc_g).unwrap_or(0.0);
+        let rx_gain = a.rx_gain_dbi.or(rx_g).unwrap_or(0.0);
+        let draw = sc.and_then(|s| s.draw.clone());
+        let density = match (a.density_per_km2.or(draw.as_ref().map(|d| d.density_per_km2)), a.density_swept) {
+            (Some(d), _) => d,
+            (None, true) => 1.0,
+            _ => {
+                return Err(crate::Error::input(crate::Problem::flag(
+                    "--density-per-km2",
+                    "missing; give the interferer density per km² (or a scenario with a [draw] table)",
+                )));
+            }
+        };
+        // The scenario's interferer fading, unless the user says otherwise.
+        let (fading, k_db, m) = match (a.fading.as_deref(), sc.map(|s| s.fading.interferer)) {
+            (Some(f), _) => (f.to_string(), a.k_db, a.m),
+            (None, Some(Fading::None)) => ("none".into(), a.k_db, a.m),
+            (None, Some(Fading::Rayleigh)) | (None, None) => ("rayleigh".into(), a.k_db, a.m),
+            (None, Some(Fading::Nakagami { m })) => ("nakagami".into(), a.k_db, m),
+            (None, Some(Fading::Rician { k })) => ("rician".into(), 10.0 * k.log10(), a.m),
+        };
+        Ok(FieldSpec {
+            density_per_km2: density,
+            keep: a.keep.or(draw.as_ref().map(|d| d.keep)).unwrap_or(1.0),
+            hard_core_m: a.hard_core_m.or(draw.as_ref().map(|d| d.hard_core_m)).unwrap_or(0.0),
+            guard_m: a.guard_m,
+            radius_m: a.radius_m,
+            power_dbm: a.power_dbm.or(sc_p).unwrap_or(20.0),
+            tx: (a.beamwidth_deg.or(sc_bw).unwrap_or(360.0), gain, a.sidelobe_dbi.or(sc_s).unwrap_or(gain)),
+            rx: (a.rx_beamwidth_deg.or(rx_bw).unwrap_or(360.0), rx_gain, a.rx_sidelobe_dbi.or(rx_s).unwrap_or(rx_gain)),
+            fading,
+            m,
+            k_db,
+            model: a.model.clone().unwrap_or(model.into()),
+            exponent: a.exponent.unwrap_or(exponent),
+            loss_at_1m_db: a.loss_at_1m_db.unwrap_or(l1),
+            frequency_ghz: a.frequency_ghz.or(pl.map(|p| p.frequency_ghz())).unwrap_or(28.0),
+            absorption_db_per_km: a.absorption_db_per_km.or(pl.map(|p| p.absorption_db_per_km())).unwrap_or(0.0),
+            min_distance_m: a.min_distance_m.or(pl.map(|p| p.min_distance_m())).unwrap_or(1.0),
+        })
+    }
+}

@@ -1,0 +1,76 @@
+//! Text tables and CSV: the aggregate report.
+
+use crate::random::characterise::Report;
+
+/// CSV of the CDF tables (one block per curve set).
+pub fn cdf_csv(sets: &[(String, &Report)]) -> String {
+    let mut s = String::from("set,x_dbm,cdf_gamma,cdf_exact,cdf_mc\n");
+    for (label, r) in sets {
+        for row in &r.cdf {
+            s += &format!(
+                "{},{:.3},{:.9},{:.9},{}\n",
+                label,
+                row.x_dbm,
+                row.gamma,
+                row.exact,
+                row.mc.map(|m| format!("{m:.9}")).unwrap_or_default()
+            );
+        }
+    }
+    s
+}
+
+/// A plain-text summary of a report.
+pub fn table(label: &str, r: &Report) -> String {
+    let mut s = String::new();
+    if !label.is_empty() {
+        s += &format!("== {label}\n");
+    }
+    s += &format!(
+        "interferers: {:.1} on average (density {:.1} per km²), P(none) {:.3e}\n",
+        r.mean_interferers, r.effective_density_per_km2, r.p_no_interferer
+    );
+    s += &format!(
+        "mean {:.2} dBm, variance {:.3e} mW², skewness {:.3}, excess kurtosis {:.3}\n",
+        r.mean_dbm, r.variance_mw2, r.skewness, r.excess_kurtosis
+    );
+    s += &format!("gamma fit: shape {:.4}, scale {:.4e} mW\n", r.gamma.shape, r.gamma.scale_mw);
+    s += &format!("{:<12} {:>10} {:>10} {:>10}\n", "quantile", "gamma", "exact", "MC");
+    let q = &r.quantiles_dbm;
+    for (name, g, e, m) in [
+        ("p90 dBm", q.gamma.p90, q.exact.p90, q.mc.map(|x| x.p90)),
+        ("p99 dBm", q.gamma.p99, q.exact.p99, q.mc.map(|x| x.p99)),
+        ("p99.9 dBm", q.gamma.p999, q.exact.p999, q.mc.map(|x| x.p999)),
+    ] {
+        s += &format!("{name:<12} {g:>10.2} {e:>10.2} {:>10}\n", m.map(|x| format!("{x:.2}")).unwrap_or("-".into()));
+    }
+    for x in &r.exceedance {
+        s += &format!(
+            "P(I > {:.1} dBm): gamma {:.4e}, exact {:.4e}, MC {}\n",
+            x.threshold_dbm,
+            x.gamma,
+            x.exact,
+            x.mc.map(|m| format!("{m:.4e}")).unwrap_or("-".into())
+        );
+    }
+    if let Some(k) = &r.ks {
+        s += &format!(
+            "KS distance to Monte Carlo: gamma {:.4}, exact {:.4} (95 % DKW band {:.4})\n",
+            k.gamma_vs_mc, k.exact_vs_mc, k.dkw_95
+        );
+    }
+    if let Some(m) = &r.monte_carlo {
+        s += &format!(
+            "Monte Carlo: {} realisations, seed {}, {:.3e} interferer draws in {:.2} s\n",
+            m.realizations, m.seed, m.interferer_draws as f64, m.elapsed_s
+        );
+    }
+    s += &format!(
+        "exact CDF: {} M = {}, error estimate {:.1e}\n",
+        r.inversion.method, r.inversion.m, r.inversion.error_estimate
+    );
+    for n in &r.notes {
+        s += &format!("note: {n}\n");
+    }
+    s
+}

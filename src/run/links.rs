@@ -1,0 +1,112 @@
+//! The `links` command: the link check, the installer sheet and the report, staged and
+//! committed together.
+
+use crate::engine::{Engine, LayerSet, Options};
+use crate::error::{Error, Problem};
+use crate::io::heatmap::{MapSpec, render};
+use crate::io::hotspots::regions;
+use crate::io::staging::Staging;
+use crate::model::scenario::Scenario;
+use crate::run::map::{check_memory, markers_and_links};
+use std::path::PathBuf;
+
+/// Options of the links job.
+#[derive(Debug, Clone)]
+pub struct LinksOptions {
+    /// Output folder.
+    pub out: PathBuf,
+    /// Monte Carlo check of each link's coverage: (trials, seed).
+    pub monte_carlo: Option<(usize, u64)>,
+    /// Embed interference, coverage and SINR maps in the report.
+    pub maps: bool,
+    /// Memory limit for the maps, MiB.
+    pub max_memory_mib: u64,
+}
+
+/// What the links job produced.
+pub struct LinksResult {
+    /// One row per planned link.
+    pub rows: Vec<crate::jobs::links::LinkRow>,
+    /// The installer sheet.
+    pub sheet: crate::jobs::install::InstallSheet,
+    /// Paths written.
+    pub files: Vec<PathBuf>,
+}
+
+/// Runs the link check and writes `links.csv`, `links.geojson`, `install.csv` and
+/// `report.html` into `opts.out`.
+pub fn run_links(sc: &Scenario, opts: &LinksOptions) -> Result<LinksResult, Error> {
+    let mut st = Staging::new(&opts.out, &[&sc.path, &sc.nodes_path])?;
+    let rows = crate::jobs::links::links(sc, opts.monte_carlo);
+    let sheet = crate::jobs::install::sheet(sc).map_err(|m| {
+        Error::input(Problem::new(sc.path.display().to_string(), Some("[install]".into()), "declination_date", m))
+    })?;
+    let mut maps = Vec::new();
+    if opts.maps {
+        let layers = LayerSet { interference: true, sinr: true, coverage: true, total: false, server: false };
+        check_memory(sc, layers.count(), opts.max_memory_mib)?;
+        let l = Engine::new(sc).run(&Options { layers, cutoff_m: None, progress: false });
+        let (markers, links) = markers_and_links(sc);
+        let grid = &sc.grid;
+        let noise = sc.noise_dbm();
+        let mut add = |title: String,
+                       unit: &str,
+                       data: &[f32],
+                       outlines: Vec<Vec<(f64, f64)>>,
+                       caption: String|
+         -> Result<(), Error> {
+            let r = render(&MapSpec {
+                grid,
+                data,
+                title: &title,
+                unit,
+                markers: &markers,
+                links: &links,
+                outlines: &outlines,
+            })
+            .map_err(|e| Error::Output { path: opts.out.join("report.html"), source: std::io::Error::other(e) })?;
+            maps.push(crate::io::report::MapImage { title, png: r.png, caption });
+            Ok(())
+        };
+        if let Some(c) = &l.coverage {
+            let target = sc.thresholds.coverage_target;
+            add(
+                format!("Coverage T={} dB", sc.thresholds.sinr_db),
+                crate::io::heatmap::PROBABILITY,
+                c,
+                crate::io::hotspots::outlines(&regions(grid, c, target as f32, true)),
+                format!(
+                    "Probability that a receiver at each spot, served by its best node, reaches the SINR threshold with fading; crimson outlines: below the {target} target."
+                ),
+            )?;
+        }
+        if let Some(i) = &l.interference {
+            let level = noise + sc.thresholds.hotspot_i_over_n_db;
+            add(
+                "Interference".into(),
+                "dBm",
+                i,
+                crate::io::hotspots::outlines(&regions(grid, i, level as f32, false)),
+                format!(
+                    "Aggregate interference at a receiver served by its best node; crimson outlines: hot spots at or above {level:.1} dBm (noise + {} dB).",
+                    sc.thresholds.hotspot_i_over_n_db
+                ),
+            )?;
+        }
+        if let Some(s) = &l.sinr {
+            add(
+                "Mean SINR".into(),
+                "dB",
+                s,
+                Vec::new(),
+                "Mean SINR without fading; nodes with beam wedges, planned links as lines.".into(),
+            )?;
+        }
+    }
+    st.write("links.csv", crate::jobs::links::csv(&rows).as_bytes())?;
+    st.write("links.geojson", crate::jobs::links::geojson(sc, &rows).to_string().as_bytes())?;
+    st.write("install.csv", crate::jobs::install::csv(&sheet).as_bytes())?;
+    st.write("report.html", crate::io::report::html(sc, &rows, &sheet, &maps).as_bytes())?;
+    let files = st.commit()?;
+    Ok(LinksResult { rows, sheet, files })
+}
