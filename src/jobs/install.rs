@@ -14,6 +14,7 @@
 //!   (47 CFR 1.1310, confirmed in the model notes).
 
 use crate::jobs::links::angle_diff;
+use crate::model::link::{Budget, Geometry};
 use crate::model::scenario::Scenario;
 use serde::Serialize;
 use world_magnetic_model::GeomagneticField;
@@ -113,8 +114,9 @@ pub fn sheet(sc: &Scenario) -> Result<InstallSheet, String> {
                 let (x1, y1) = sc.frame.to_local(p.lon, p.lat);
                 let horiz = ((x1 - x0).powi(2) + (y1 - y0).powi(2)).sqrt();
                 let tilt = (n.height_m - p.height_m).atan2(horiz).to_degrees();
-                let d = (horiz * horiz + (n.height_m - p.height_m).powi(2)).sqrt();
-                let level = n.eirp_dbm() + p.pattern.max_gain_dbi() - sc.pathloss.loss_db(d);
+                let link =
+                    Budget::aligned(&sc.pathloss, n, Geometry::between((x0, y0), n.height_m, (x1, y1), p.height_m));
+                let level = link.received_dbm(p.pattern.max_gain_dbi());
                 (Some((tilt * 100.0).round() / 100.0), Some((level * 100.0).round() / 100.0))
             }
             None => (None, None),

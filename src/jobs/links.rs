@@ -9,9 +9,9 @@
 //!   gap Γ (dB) between this bound and a practical modem is common practice (e.g. Cioffi's
 //!   SNR-gap approximation).
 
-use crate::geometry::frame::bearing_deg;
 use crate::jobs::probe::McCheck;
 use crate::model::coverage::CoverageModel;
+use crate::model::link::{Budget, Geometry, gain_toward};
 use crate::model::node::Node;
 use crate::model::scenario::Scenario;
 use crate::model::units::{db_to_lin, dbm_to_mw, mw_to_dbm};
@@ -123,28 +123,25 @@ fn one(
     noise_dbm: f64,
     mc: Option<(usize, u64)>,
 ) -> LinkRow {
-    let (dx, dy) = (pos[t].0 - pos[f].0, pos[t].1 - pos[f].1);
-    let length_m = (dx * dx + dy * dy + (a.height_m - b.height_m).powi(2)).sqrt();
-    let brg = bearing_deg(dx, dy);
+    let link = Budget::new(&sc.pathloss, a, Geometry::between(pos[f], a.height_m, pos[t], b.height_m));
+    let length_m = link.geometry.distance_m;
+    let brg = link.geometry.bearing_from_tx_deg();
     let back = (brg + 180.0) % 360.0;
     let mis_a = angle_diff(a.azimuth_deg, brg);
     let mis_b = angle_diff(b.azimuth_deg, back);
-    let tx_gain = a.pattern.gain_dbi(mis_a);
-    let rx_gain = b.pattern.gain_dbi(mis_b);
-    let pl = sc.pathloss.loss_db(length_m);
-    let signal_dbm = a.power_dbm + tx_gain + rx_gain - pl;
+    let tx_gain = link.tx_gain_dbi;
+    let rx_gain = gain_toward(b, link.geometry.bearing_from_rx_deg());
+    let pl = link.path_loss_db;
+    let signal_dbm = link.received_dbm(rx_gain);
     // Interference at b from every other node, b's antenna as installed.
     let mut contrib: Vec<(usize, f64, f64)> = Vec::new(); // (node, activity, mean power mW)
     for (i, n) in sc.nodes.iter().enumerate() {
         if i == f || i == t {
             continue;
         }
-        let (wx, wy) = (pos[t].0 - pos[i].0, pos[t].1 - pos[i].1);
-        let d = (wx * wx + wy * wy + (n.height_m - b.height_m).powi(2)).sqrt();
-        let g_tx = n.pattern.gain_dbi(bearing_deg(wx, wy) - n.azimuth_deg);
-        let g_rx = b.pattern.gain_dbi(bearing_deg(-wx, -wy) - b.azimuth_deg);
-        let p = dbm_to_mw(n.power_dbm + g_tx + g_rx - sc.pathloss.loss_db(d));
-        contrib.push((i, n.activity, p));
+        let path = Budget::new(&sc.pathloss, n, Geometry::between(pos[i], n.height_m, pos[t], b.height_m));
+        let g_rx = gain_toward(b, path.geometry.bearing_from_rx_deg());
+        contrib.push((i, n.activity, dbm_to_mw(path.received_dbm(g_rx))));
     }
     let i_mw: f64 = contrib.iter().map(|c| c.1 * c.2).sum();
     let s_mw = dbm_to_mw(signal_dbm);

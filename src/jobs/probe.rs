@@ -2,7 +2,7 @@
 //! path loss and received power, then total, best server, interference, noise and SINR.
 //! It follows the engine's definitions (see [`crate::engine`]) and serves as its reference.
 
-use crate::geometry::frame::bearing_deg;
+use crate::model::link::{Budget, Geometry};
 use crate::model::scenario::Scenario;
 use crate::model::units::{dbm_to_mw, mw_to_dbm};
 use serde::Serialize;
@@ -85,40 +85,44 @@ pub fn probe_with(sc: &Scenario, lat: f64, lon: f64, mc: Option<(usize, u64)>) -
     let (px, py) = sc.frame.to_local(lon, lat);
     let rx = &sc.receiver;
     let g_omni = rx.omni_gain_dbi();
-    // First pass: tx side and path loss.
-    let mut base: Vec<(usize, f64, f64, f64, f64)> = Vec::with_capacity(sc.nodes.len());
-    for (i, n) in sc.nodes.iter().enumerate() {
-        let (nx, ny) = sc.frame.to_local(n.lon, n.lat);
-        let (wx, wy) = (px - nx, py - ny);
-        let dist = (wx * wx + wy * wy + (n.height_m - rx.height_m).powi(2)).sqrt();
-        let tx_off = bearing_deg(wx, wy) - n.azimuth_deg;
-        let tx_gain = n.pattern.gain_dbi(tx_off);
-        let pl = sc.pathloss.loss_db(dist);
-        base.push((i, dist, bearing_deg(-wx, -wy), tx_gain, pl));
-    }
-    let p0 = |b: &(usize, f64, f64, f64, f64)| sc.nodes[b.0].power_dbm + b.3 - b.4;
-    let server = base.iter().enumerate().fold(0, |best, (k, b)| if p0(b) > p0(&base[best]) { k } else { best });
-    let server_bearing = base[server].2;
-    let mut contributions: Vec<Contribution> = base
+    // First pass: the transmit side of every path (the receiver's aim needs the server).
+    let budgets: Vec<Budget> = sc
+        .nodes
         .iter()
-        .map(|b| {
-            let n = &sc.nodes[b.0];
-            let rx_gain = if rx.aimed { rx.pattern.gain_dbi(b.2 - server_bearing) } else { rx.pattern.max_gain_dbi() };
-            let rx_gain = if b.0 == server { rx.pattern.max_gain_dbi() } else { rx_gain };
+        .map(|n| {
+            let g = Geometry::between(sc.frame.to_local(n.lon, n.lat), n.height_m, (px, py), rx.height_m);
+            Budget::new(&sc.pathloss, n, g)
+        })
+        .collect();
+    let server = budgets
+        .iter()
+        .enumerate()
+        .fold(0, |best, (k, b)| if b.isotropic_dbm() > budgets[best].isotropic_dbm() { k } else { best });
+    let server_bearing = budgets[server].geometry.bearing_from_rx_deg();
+    let mut contributions: Vec<Contribution> = budgets
+        .iter()
+        .enumerate()
+        .map(|(i, b)| {
+            let n = &sc.nodes[i];
+            let bearing = b.geometry.bearing_from_rx_deg();
+            let rx_gain =
+                if rx.aimed { rx.pattern.gain_dbi(bearing - server_bearing) } else { rx.pattern.max_gain_dbi() };
+            let rx_gain = if i == server { rx.pattern.max_gain_dbi() } else { rx_gain };
             Contribution {
                 id: n.id.clone(),
-                index: b.0,
-                distance_m: b.1,
-                bearing_deg: b.2,
-                tx_gain_dbi: b.3,
+                index: i,
+                distance_m: b.geometry.distance_m,
+                bearing_deg: bearing,
+                tx_gain_dbi: b.tx_gain_dbi,
                 rx_gain_dbi: rx_gain,
-                path_loss_db: b.4,
-                power_dbm: n.power_dbm + b.3 + rx_gain - b.4,
+                path_loss_db: b.path_loss_db,
+                power_dbm: b.received_dbm(rx_gain),
                 activity: n.activity,
             }
         })
         .collect();
-    let total_mw: f64 = base.iter().map(|b| sc.nodes[b.0].activity * dbm_to_mw(p0(b) + g_omni)).sum();
+    let total_mw: f64 =
+        budgets.iter().zip(&sc.nodes).map(|(b, n)| n.activity * dbm_to_mw(b.isotropic_dbm() + g_omni)).sum();
     let interference_mw: f64 =
         contributions.iter().filter(|c| c.index != server).map(|c| c.activity * dbm_to_mw(c.power_dbm)).sum();
     let signal_mw = dbm_to_mw(contributions[server].power_dbm);

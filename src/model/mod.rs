@@ -8,6 +8,8 @@ pub mod coverage;
 pub mod draw;
 /// Fading laws and shadowing.
 pub mod fading;
+/// The link budget.
+pub mod link;
 /// A node of the layout.
 pub mod node;
 /// Thermal noise.
