@@ -1,0 +1,82 @@
+//! Preparing a scenario for the kernels: local coordinates, unit boresights, linear powers
+//! with the 1 m loss folded in, pattern tables, the receiver's lowered form and the R-tree.
+
+use crate::engine::Engine;
+use crate::engine::kernels::{LUT_LEN, NodeK};
+use crate::model::antenna::Pattern;
+use crate::model::scenario::Scenario;
+use crate::model::units::{db_to_lin, dbm_to_mw};
+use rstar::{RTree, primitives::GeomWithData};
+
+impl<'s> Engine<'s> {
+    /// Prepares the scenario's nodes: local coordinates, unit boresights, linear powers,
+    /// pattern tables, and the R-tree.
+    pub fn new(sc: &'s Scenario) -> Engine<'s> {
+        let k_inv = db_to_lin(-sc.pathloss.loss_at_1m_db());
+        let rx_h = sc.receiver.height_m;
+        let mut luts: Vec<(Pattern, Vec<f32>)> = Vec::new();
+        let nodes: Vec<NodeK> = sc
+            .nodes
+            .iter()
+            .enumerate()
+            .map(|(i, n)| {
+                let (x, y) = sc.frame.to_local(n.lon, n.lat);
+                let az = n.azimuth_deg.to_radians();
+                let p = dbm_to_mw(n.power_dbm) * k_inv;
+                let (p_main, p_side, lut) = match n.pattern {
+                    Pattern::Sector { gain_dbi, sidelobe_dbi, .. } => {
+                        (p * db_to_lin(gain_dbi), p * db_to_lin(sidelobe_dbi), None)
+                    }
+                    Pattern::Omni { gain_dbi } => (p * db_to_lin(gain_dbi), p * db_to_lin(gain_dbi), None),
+                    Pattern::Parabolic { .. } => {
+                        let pos = luts.iter().position(|(q, _)| *q == n.pattern).unwrap_or_else(|| {
+                            luts.push((n.pattern, n.pattern.gain_table_over_half_angle_sine(LUT_LEN)));
+                            luts.len() - 1
+                        });
+                        (p * db_to_lin(n.pattern.max_gain_dbi()), p, Some(pos))
+                    }
+                };
+                NodeK {
+                    x: x as f32,
+                    y: y as f32,
+                    dz2: ((n.height_m - rx_h) * (n.height_m - rx_h)) as f32,
+                    bx: az.sin() as f32,
+                    by: az.cos() as f32,
+                    cc: n.pattern.signed_cos_sq_half_beam() as f32,
+                    p_main: p_main as f32,
+                    p_side: p_side as f32,
+                    act: n.activity as f32,
+                    lut,
+                    idx: i as u32,
+                    p_max: p * db_to_lin(n.pattern.max_gain_dbi()),
+                }
+            })
+            .collect();
+        let tree = RTree::bulk_load(
+            nodes.iter().map(|n| GeomWithData::new([n.x as f64, n.y as f64], n.idx as usize)).collect(),
+        );
+        let g = &sc.grid;
+        let (sin_dlon, cos_dlon) =
+            (0..g.cols()).map(|c| (g.lon_of_col(c) - sc.frame.lon0()).to_radians().sin_cos()).unzip();
+        let rxp = sc.receiver.pattern;
+        let rx_aim = sc.receiver.aimed.then(|| match rxp {
+            Pattern::Sector { gain_dbi, sidelobe_dbi, .. } => {
+                (rxp.signed_cos_sq_half_beam() as f32, db_to_lin(gain_dbi) as f32, db_to_lin(sidelobe_dbi) as f32)
+            }
+            _ => unreachable!("an aimed receiver is a sector"),
+        });
+        Engine {
+            sc,
+            nodes,
+            luts: luts.into_iter().map(|(_, t)| t).collect(),
+            tree,
+            sin_dlon,
+            cos_dlon,
+            noise_mw: dbm_to_mw(sc.noise_dbm()),
+            g_omni: db_to_lin(sc.receiver.omni_gain_dbi()) as f32,
+            rx_aim,
+            g_signal: db_to_lin(rxp.max_gain_dbi()) as f32,
+            cov: crate::model::coverage::CoverageModel::new(sc.fading, sc.thresholds.sinr_db, sc.noise_dbm()),
+        }
+    }
+}

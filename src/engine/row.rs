@@ -1,0 +1,182 @@
+//! One grid row: cell positions, candidate nodes (all, or near the row under a cutoff, with
+//! the bound on what is dropped), the passes over the nodes, and the row's layer values.
+
+use crate::NODATA;
+use crate::engine::kernels::*;
+use crate::engine::simd::multiversion;
+use crate::engine::{Engine, LayerSet};
+use crate::model::units::db_to_lin;
+use rstar::AABB;
+
+/// One row: the grid row, the layers wanted, the cutoff and the row's output slices.
+pub(crate) struct RowJob<'a> {
+    pub(crate) r: usize,
+    pub(crate) l: LayerSet,
+    pub(crate) cutoff: Option<f64>,
+    pub(crate) out: [Option<&'a mut [f32]>; 5],
+}
+
+multiversion!(pub(crate) fn row<D: Decay>(e: &Engine<'_>, d: D, job: RowJob<'_>, b: &mut RowBufs) -> (u64, f64) => row_body);
+
+/// One row; returns (pair evaluations, bound on dropped power in mW).
+#[inline(always)]
+pub(crate) fn row_body<D: Decay>(e: &Engine<'_>, d: D, job: RowJob<'_>, b: &mut RowBufs) -> (u64, f64) {
+    let RowJob { r, l, cutoff, out } = job;
+    let g = &e.sc.grid;
+    let cols = g.cols();
+    let (sl, cl) = g.lat_of_row(r).to_radians().sin_cos();
+    let (mut xmin, mut xmax, mut ymin, mut ymax) = (f64::MAX, f64::MIN, f64::MAX, f64::MIN);
+    for c in 0..cols {
+        let (x, y) = e.sc.frame.from_trig(sl, cl, e.sin_dlon[c], e.cos_dlon[c]);
+        b.xs[c] = x as f32;
+        b.ys[c] = y as f32;
+        xmin = xmin.min(x);
+        xmax = xmax.max(x);
+        ymin = ymin.min(y);
+        ymax = ymax.max(y);
+    }
+    // Candidate nodes: all, or (with a cutoff) those near the row, in index order.
+    let mut dropped_mw = 0.0;
+    let cand: Vec<usize> = match cutoff {
+        None => (0..e.nodes.len()).collect(),
+        Some(rc) => {
+            let env = AABB::from_corners([xmin - rc, ymin - rc], [xmax + rc, ymax + rc]);
+            let mut keep = vec![false; e.nodes.len()];
+            for gd in e.tree.locate_in_envelope(env) {
+                keep[gd.data] = true;
+            }
+            let pl = &e.sc.pathloss;
+            let gmax_rx = e.g_omni.max(e.g_signal) as f64;
+            for (_, n) in e.nodes.iter().enumerate().filter(|(k, _)| !keep[*k]) {
+                let (nx, ny) = (n.x as f64, n.y as f64);
+                let dx = (xmin - nx).max(0.0).max(nx - xmax);
+                let dy = (ymin - ny).max(0.0).max(ny - ymax);
+                let dist = (dx * dx + dy * dy + n.dz2 as f64).sqrt();
+                dropped_mw += n.act as f64 * n.p_max * gmax_rx * pl.gain_lin(dist) / db_to_lin(-pl.loss_at_1m_db());
+            }
+            (0..e.nodes.len()).filter(|k| keep[*k]).collect()
+        }
+    };
+    let mut pairs = 0u64;
+    let full = l.needs_server();
+    if full {
+        b.best.fill(0.0);
+        b.bestw.fill(0.0);
+        b.other.fill(0.0);
+        b.server.fill(u32::MAX);
+    } else {
+        b.other.fill(0.0);
+    }
+    for &k in &cand {
+        let n = &e.nodes[k];
+        match (n.lut, full) {
+            (None, true) => pass_full(d, Flat, n, b),
+            (Some(t), true) => pass_full(d, Table(&e.luts[t]), n, b),
+            (None, false) => pass_sum(d, Flat, n, &b.xs, &b.ys, &mut b.other),
+            (Some(t), false) => pass_sum(d, Table(&e.luts[t]), n, &b.xs, &b.ys, &mut b.other),
+        }
+        pairs += cols as u64;
+    }
+    let aimed_needed = e.rx_aim.is_some() && (l.interference || l.sinr);
+    if e.rx_aim.is_some() && (aimed_needed || l.coverage) {
+        for c in 0..cols {
+            let s = b.server[c];
+            let (ux, uy) = if s == u32::MAX {
+                (0.0, 1.0)
+            } else {
+                let n = &e.nodes[s as usize];
+                let (vx, vy) = (n.x - b.xs[c], n.y - b.ys[c]);
+                let m = (vx * vx + vy * vy).sqrt();
+                if m > 0.0 { (vx / m, vy / m) } else { (0.0, 1.0) }
+            };
+            b.ux[c] = ux;
+            b.uy[c] = uy;
+        }
+    }
+    // With coverage requested, its pass also sums the aimed interference (see the kernels).
+    if let (Some(rx), true) = (e.rx_aim, aimed_needed && !l.coverage) {
+        b.iacc.fill(0.0);
+        for &k in &cand {
+            let n = &e.nodes[k];
+            match n.lut {
+                None => pass_aimed(d, Flat, n, rx, b),
+                Some(t) => pass_aimed(d, Table(&e.luts[t]), n, rx, b),
+            }
+            pairs += cols as u64;
+        }
+    }
+    if l.coverage {
+        // An omni receiver is the aimed kernel with an always-true beam test.
+        let rx = e.rx_aim.unwrap_or((-1.0, e.g_omni, e.g_omni));
+        let t_lin = e.cov.t_lin as f32;
+        for c in 0..cols {
+            let sig = e.g_signal * b.best[c];
+            b.tinv[c] = if sig > 0.0 { t_lin / sig } else { 0.0 };
+        }
+        let exact = e.cov.method == crate::model::coverage::Method::Exact;
+        b.cacc.fill(if exact { 1.0 } else { 0.0 });
+        b.cvar.fill(0.0);
+        b.iacc.fill(0.0);
+        let (e1, e2) = (e.cov.e1 as f32, e.cov.e2 as f32);
+        for &k in &cand {
+            let n = &e.nodes[k];
+            macro_rules! lt_pass {
+                ($lt:expr) => {
+                    match n.lut {
+                        None => pass_cov_exact(d, Flat, $lt, n, rx, b),
+                        Some(t) => pass_cov_exact(d, Table(&e.luts[t]), $lt, n, rx, b),
+                    }
+                };
+            }
+            if exact {
+                match e.cov.spec.interferer {
+                    crate::model::fading::Fading::None => lt_pass!(LtNone),
+                    crate::model::fading::Fading::Rayleigh => lt_pass!(LtRayleigh),
+                    crate::model::fading::Fading::Nakagami { m } => lt_pass!(LtNakagami(m as f32)),
+                    crate::model::fading::Fading::Rician { k } => lt_pass!(LtRician(k as f32)),
+                }
+            } else {
+                let coef = n.act * e2 - n.act * n.act * e1 * e1;
+                match n.lut {
+                    None => pass_cov_moment(d, Flat, n, rx, coef, b),
+                    Some(t) => pass_cov_moment(d, Table(&e.luts[t]), n, rx, coef, b),
+                }
+            }
+            pairs += cols as u64;
+        }
+    }
+    let db = |v: f32| if v > 0.0 { 10.0 * v.log10() } else { NODATA };
+    let noise = e.noise_mw as f32;
+    let [mut t, mut i, mut s, mut v, cv] = out;
+    if let Some(cv) = cv {
+        let exact = e.cov.method == crate::model::coverage::Method::Exact;
+        for (c, out) in cv.iter_mut().enumerate() {
+            let sig = (e.g_signal * b.best[c]) as f64;
+            *out = if b.server[c] == u32::MAX || sig <= 0.0 {
+                NODATA
+            } else if exact {
+                e.cov.from_log2_product(sig, (b.cacc[c] as f64).log2()) as f32
+            } else {
+                e.cov.from_moments(sig, b.cacc[c] as f64, b.cvar[c] as f64) as f32
+            };
+        }
+    }
+    for c in 0..cols {
+        let all = if full { b.other[c] + b.bestw[c] } else { b.other[c] };
+        let interf = if aimed_needed { b.iacc[c] } else { e.g_omni * b.other[c] };
+        if let Some(t) = t.as_deref_mut() {
+            t[c] = db(e.g_omni * all);
+        }
+        if let Some(i) = i.as_deref_mut() {
+            i[c] = db(interf);
+        }
+        let best = b.best[c];
+        if let Some(s) = s.as_deref_mut() {
+            s[c] = if best > 0.0 { db(e.g_signal * best / (interf + noise)) } else { NODATA };
+        }
+        if let Some(v) = v.as_deref_mut() {
+            v[c] = if b.server[c] == u32::MAX { NODATA } else { b.server[c] as f32 };
+        }
+    }
+    (pairs, dropped_mw)
+}
