@@ -6,6 +6,47 @@
 
 use crate::engine::fastmath::{fast_exp2, fast_log2};
 
+/// Per node–cell attenuation on the mean power (obstruction by buildings or terrain): the
+/// seam through which a surface model enters every pair. `apply` returns `p` times the
+/// factor of node `node` at column `col` of the row being computed (a model that depends on
+/// the row builds its value per row).
+pub(crate) trait PairFactor: Copy + Send + Sync {
+    /// `p` attenuated for node `node` at column `col`.
+    fn apply(self, node: u32, col: usize, p: f32) -> f32;
+}
+
+/// No attenuation: line of sight on every pair (compiles to nothing).
+#[derive(Clone, Copy)]
+pub(crate) struct Unobstructed;
+impl PairFactor for Unobstructed {
+    #[inline(always)]
+    fn apply(self, _node: u32, _col: usize, p: f32) -> f32 {
+        p
+    }
+}
+
+/// Per interferer–receiver coupling on interference (channel overlap, polarisation): the seam
+/// through which spectrum enters. `apply` returns `p` times the factor between interferer
+/// `interferer` and a receiver served by `server`.
+pub(crate) trait RxCoupling: Copy + Send + Sync {
+    /// Whether the factor is 1 for every pair; then the omni interference needs no pass that
+    /// knows the server.
+    const IDENTITY: bool;
+    /// `p` coupled from `interferer` into a receiver served by `server`.
+    fn apply(self, interferer: u32, server: u32, p: f32) -> f32;
+}
+
+/// Every node on one channel and polarisation: full coupling (compiles to nothing).
+#[derive(Clone, Copy)]
+pub(crate) struct CoChannel;
+impl RxCoupling for CoChannel {
+    const IDENTITY: bool = true;
+    #[inline(always)]
+    fn apply(self, _interferer: u32, _server: u32, p: f32) -> f32 {
+        p
+    }
+}
+
 /// One node prepared for the kernels (local metres, linear powers with the 1 m loss folded in).
 #[derive(Debug, Clone, Copy)]
 pub(crate) struct NodeK {
@@ -146,20 +187,28 @@ impl RowBufs {
 // purpose: moving them into a shared helper returning a tuple measured 1.7–2× slower for the
 // aimed pass (`cargo bench --bench engine`), the vectoriser loses the loop.
 #[inline(always)]
-pub(crate) fn pass_sum<D: Decay, G: TxGain>(d: D, g: G, n: &NodeK, xs: &[f32], ys: &[f32], sum: &mut [f32]) {
+pub(crate) fn pass_sum<D: Decay, G: TxGain, A: PairFactor>(
+    d: D,
+    g: G,
+    a: A,
+    n: &NodeK,
+    xs: &[f32],
+    ys: &[f32],
+    sum: &mut [f32],
+) {
     let len = xs.len();
     let (ys, sum) = (&ys[..len], &mut sum[..len]);
     for c in 0..len {
         let wx = xs[c] - n.x;
         let wy = ys[c] - n.y;
         let w2 = wx * wx + wy * wy;
-        let p = g.eval(n, wx, wy, w2) * d.inv(w2 + n.dz2);
+        let p = a.apply(n.idx, c, g.eval(n, wx, wy, w2) * d.inv(w2 + n.dz2));
         sum[c] += n.act * p;
     }
 }
 
 #[inline(always)]
-pub(crate) fn pass_full<D: Decay, G: TxGain>(d: D, g: G, n: &NodeK, b: &mut RowBufs) {
+pub(crate) fn pass_full<D: Decay, G: TxGain, A: PairFactor>(d: D, g: G, a: A, n: &NodeK, b: &mut RowBufs) {
     let len = b.xs.len();
     let (xs, ys) = (&b.xs[..len], &b.ys[..len]);
     let (best, bestw, other, server) =
@@ -168,7 +217,7 @@ pub(crate) fn pass_full<D: Decay, G: TxGain>(d: D, g: G, n: &NodeK, b: &mut RowB
         let wx = xs[c] - n.x;
         let wy = ys[c] - n.y;
         let w2 = wx * wx + wy * wy;
-        let p = g.eval(n, wx, wy, w2) * d.inv(w2 + n.dz2);
+        let p = a.apply(n.idx, c, g.eval(n, wx, wy, w2) * d.inv(w2 + n.dz2));
         let ap = n.act * p;
         let better = p > best[c];
         // The running sum of every node but the current best: no cancellation.
@@ -180,7 +229,15 @@ pub(crate) fn pass_full<D: Decay, G: TxGain>(d: D, g: G, n: &NodeK, b: &mut RowB
 }
 
 #[inline(always)]
-pub(crate) fn pass_aimed<D: Decay, G: TxGain>(d: D, g: G, n: &NodeK, rx: (f32, f32, f32), b: &mut RowBufs) {
+pub(crate) fn pass_aimed<D: Decay, G: TxGain, A: PairFactor, C: RxCoupling>(
+    d: D,
+    g: G,
+    a: A,
+    cp: C,
+    n: &NodeK,
+    rx: (f32, f32, f32),
+    b: &mut RowBufs,
+) {
     let (rcc, rmain, rside) = rx;
     let len = b.xs.len();
     let (xs, ys, ux, uy, server, iacc) =
@@ -189,8 +246,9 @@ pub(crate) fn pass_aimed<D: Decay, G: TxGain>(d: D, g: G, n: &NodeK, rx: (f32, f
         let wx = xs[c] - n.x;
         let wy = ys[c] - n.y;
         let w2 = wx * wx + wy * wy;
-        let p = g.eval(n, wx, wy, w2) * d.inv(w2 + n.dz2);
+        let p = a.apply(n.idx, c, g.eval(n, wx, wy, w2) * d.inv(w2 + n.dz2));
         // Receiver boresight u points at the server; the node lies along −w.
+        let p = cp.apply(n.idx, server[c], p);
         let t = -(ux[c] * wx + uy[c] * wy);
         let gr = if t * t.abs() >= rcc * w2 { rmain } else { rside };
         let own = server[c] == n.idx;
@@ -240,9 +298,11 @@ impl Lt for LtRician {
 /// product floored at 1e−30 (a coverage below that is zero for any purpose; no underflow into
 /// slow subnormals).
 #[inline(always)]
-pub(crate) fn pass_cov_exact<D: Decay, G: TxGain, L: Lt>(
+pub(crate) fn pass_cov_exact<D: Decay, G: TxGain, A: PairFactor, C: RxCoupling, L: Lt>(
     d: D,
     g: G,
+    a: A,
+    cp: C,
     lt: L,
     n: &NodeK,
     rx: (f32, f32, f32),
@@ -257,7 +317,8 @@ pub(crate) fn pass_cov_exact<D: Decay, G: TxGain, L: Lt>(
         let wx = xs[c] - n.x;
         let wy = ys[c] - n.y;
         let w2 = wx * wx + wy * wy;
-        let p = g.eval(n, wx, wy, w2) * d.inv(w2 + n.dz2);
+        let p = a.apply(n.idx, c, g.eval(n, wx, wy, w2) * d.inv(w2 + n.dz2));
+        let p = cp.apply(n.idx, server[c], p);
         let t = -(ux[c] * wx + uy[c] * wy);
         let gr = if t * t.abs() >= rcc * w2 { rmain } else { rside };
         let term = 1.0 - n.act + n.act * lt.l(tinv[c] * p * gr);
@@ -270,9 +331,11 @@ pub(crate) fn pass_cov_exact<D: Decay, G: TxGain, L: Lt>(
 
 /// Coverage, moment form: Σ a p g_rx and Σ (a e2 − a² e1²)(p g_rx)².
 #[inline(always)]
-pub(crate) fn pass_cov_moment<D: Decay, G: TxGain>(
+pub(crate) fn pass_cov_moment<D: Decay, G: TxGain, A: PairFactor, C: RxCoupling>(
     d: D,
     g: G,
+    a: A,
+    cp: C,
     n: &NodeK,
     rx: (f32, f32, f32),
     coef: f32,
@@ -286,7 +349,8 @@ pub(crate) fn pass_cov_moment<D: Decay, G: TxGain>(
         let wx = xs[c] - n.x;
         let wy = ys[c] - n.y;
         let w2 = wx * wx + wy * wy;
-        let p = g.eval(n, wx, wy, w2) * d.inv(w2 + n.dz2);
+        let p = a.apply(n.idx, c, g.eval(n, wx, wy, w2) * d.inv(w2 + n.dz2));
+        let p = cp.apply(n.idx, server[c], p);
         let t = -(ux[c] * wx + uy[c] * wy);
         let gr = if t * t.abs() >= rcc * w2 { rmain } else { rside };
         let q = p * gr;

@@ -16,7 +16,7 @@
 //! - `interference` = Σ_{i≠s} a_i p_i G_rx(i), with G_rx omni or aimed at s, dBm.
 //! - `sinr` = S / (I + N), dB; `server` = s (index in layout order).
 
-use crate::engine::kernels::{Cube, Decay, Fast, NodeK, Quart, RowBufs, Sq};
+use crate::engine::kernels::{CoChannel, Cube, Decay, Fast, NodeK, Quart, RowBufs, Sq, Unobstructed};
 use crate::engine::row::{RowJob, row};
 use crate::model::scenario::Scenario;
 use crate::model::units::lin_to_db;
@@ -197,7 +197,7 @@ impl Engine<'_> {
             .map_init(
                 || RowBufs::new(cols),
                 |bufs, (r, out)| {
-                    let out = row(self, d, RowJob { r, l, cutoff: opts.cutoff_m, out }, bufs);
+                    let out = row(self, d, Unobstructed, CoChannel, RowJob { r, l, cutoff: opts.cutoff_m, out }, bufs);
                     bar.inc(1);
                     out
                 },

@@ -16,11 +16,18 @@ pub(crate) struct RowJob<'a> {
     pub(crate) out: [Option<&'a mut [f32]>; 5],
 }
 
-multiversion!(pub(crate) fn row<D: Decay>(e: &Engine<'_>, d: D, job: RowJob<'_>, b: &mut RowBufs) -> (u64, f64) => row_body);
+multiversion!(pub(crate) fn row<D: Decay, A: PairFactor, C: RxCoupling>(e: &Engine<'_>, d: D, a: A, cp: C, job: RowJob<'_>, b: &mut RowBufs) -> (u64, f64) => row_body);
 
 /// One row; returns (pair evaluations, bound on dropped power in mW).
 #[inline(always)]
-pub(crate) fn row_body<D: Decay>(e: &Engine<'_>, d: D, job: RowJob<'_>, b: &mut RowBufs) -> (u64, f64) {
+pub(crate) fn row_body<D: Decay, A: PairFactor, C: RxCoupling>(
+    e: &Engine<'_>,
+    d: D,
+    a: A,
+    cp: C,
+    job: RowJob<'_>,
+    b: &mut RowBufs,
+) -> (u64, f64) {
     let RowJob { r, l, cutoff, out } = job;
     let g = &e.sc.grid;
     let cols = g.cols();
@@ -70,14 +77,16 @@ pub(crate) fn row_body<D: Decay>(e: &Engine<'_>, d: D, job: RowJob<'_>, b: &mut 
     for &k in &cand {
         let n = &e.nodes[k];
         match (n.lut, full) {
-            (None, true) => pass_full(d, Flat, n, b),
-            (Some(t), true) => pass_full(d, Table(&e.luts[t]), n, b),
-            (None, false) => pass_sum(d, Flat, n, &b.xs, &b.ys, &mut b.other),
-            (Some(t), false) => pass_sum(d, Table(&e.luts[t]), n, &b.xs, &b.ys, &mut b.other),
+            (None, true) => pass_full(d, Flat, a, n, b),
+            (Some(t), true) => pass_full(d, Table(&e.luts[t]), a, n, b),
+            (None, false) => pass_sum(d, Flat, a, n, &b.xs, &b.ys, &mut b.other),
+            (Some(t), false) => pass_sum(d, Table(&e.luts[t]), a, n, &b.xs, &b.ys, &mut b.other),
         }
         pairs += cols as u64;
     }
-    let aimed_needed = e.rx_aim.is_some() && (l.interference || l.sinr);
+    // The interference needs a pass that knows each cell's server when the receiver is aimed
+    // at it or when coupling depends on it; otherwise the server pass's sum stands.
+    let aimed_needed = (e.rx_aim.is_some() || !C::IDENTITY) && (l.interference || l.sinr);
     if e.rx_aim.is_some() && (aimed_needed || l.coverage) {
         for c in 0..cols {
             let s = b.server[c];
@@ -94,13 +103,15 @@ pub(crate) fn row_body<D: Decay>(e: &Engine<'_>, d: D, job: RowJob<'_>, b: &mut 
         }
     }
     // With coverage requested, its pass also sums the aimed interference (see the kernels).
-    if let (Some(rx), true) = (e.rx_aim, aimed_needed && !l.coverage) {
+    if aimed_needed && !l.coverage {
+        // An omni receiver is the aimed kernel with an always-true beam test.
+        let rx = e.rx_aim.unwrap_or((-1.0, e.g_omni, e.g_omni));
         b.iacc.fill(0.0);
         for &k in &cand {
             let n = &e.nodes[k];
             match n.lut {
-                None => pass_aimed(d, Flat, n, rx, b),
-                Some(t) => pass_aimed(d, Table(&e.luts[t]), n, rx, b),
+                None => pass_aimed(d, Flat, a, cp, n, rx, b),
+                Some(t) => pass_aimed(d, Table(&e.luts[t]), a, cp, n, rx, b),
             }
             pairs += cols as u64;
         }
@@ -123,8 +134,8 @@ pub(crate) fn row_body<D: Decay>(e: &Engine<'_>, d: D, job: RowJob<'_>, b: &mut 
             macro_rules! lt_pass {
                 ($lt:expr) => {
                     match n.lut {
-                        None => pass_cov_exact(d, Flat, $lt, n, rx, b),
-                        Some(t) => pass_cov_exact(d, Table(&e.luts[t]), $lt, n, rx, b),
+                        None => pass_cov_exact(d, Flat, a, cp, $lt, n, rx, b),
+                        Some(t) => pass_cov_exact(d, Table(&e.luts[t]), a, cp, $lt, n, rx, b),
                     }
                 };
             }
@@ -138,8 +149,8 @@ pub(crate) fn row_body<D: Decay>(e: &Engine<'_>, d: D, job: RowJob<'_>, b: &mut 
             } else {
                 let coef = n.act * e2 - n.act * n.act * e1 * e1;
                 match n.lut {
-                    None => pass_cov_moment(d, Flat, n, rx, coef, b),
-                    Some(t) => pass_cov_moment(d, Table(&e.luts[t]), n, rx, coef, b),
+                    None => pass_cov_moment(d, Flat, a, cp, n, rx, coef, b),
+                    Some(t) => pass_cov_moment(d, Table(&e.luts[t]), a, cp, n, rx, coef, b),
                 }
             }
             pairs += cols as u64;

@@ -35,19 +35,19 @@ pub fn level() -> Level {
     })
 }
 
-/// `multiversion!(fn name<T: Bound>(a: A, b: B) -> R => body);` defines `name`, which calls
+/// `multiversion!(fn name<T: Bound, U: Other>(a: A, b: B) -> R => body);` defines `name`, which calls
 /// `body(a, b)` compiled for the best [`Level`] of this CPU.
 macro_rules! multiversion {
-    ($vis:vis fn $name:ident $(<$g:ident: $bound:path>)? ($($arg:ident: $ty:ty),* $(,)?) -> $ret:ty => $body:ident) => {
-        $vis fn $name $(<$g: $bound>)? ($($arg: $ty),*) -> $ret {
+    ($vis:vis fn $name:ident $(<$($g:ident: $bound:path),+>)? ($($arg:ident: $ty:ty),* $(,)?) -> $ret:ty => $body:ident) => {
+        $vis fn $name $(<$($g: $bound),+>)? ($($arg: $ty),*) -> $ret {
             #[cfg(target_arch = "x86_64")]
             {
                 #[target_feature(enable = "avx512f,avx2,fma")]
-                fn v512 $(<$g: $bound>)? ($($arg: $ty),*) -> $ret {
+                fn v512 $(<$($g: $bound),+>)? ($($arg: $ty),*) -> $ret {
                     $body($($arg),*)
                 }
                 #[target_feature(enable = "avx2,fma")]
-                fn v2 $(<$g: $bound>)? ($($arg: $ty),*) -> $ret {
+                fn v2 $(<$($g: $bound),+>)? ($($arg: $ty),*) -> $ret {
                     $body($($arg),*)
                 }
                 match $crate::engine::simd::level() {
