@@ -298,6 +298,7 @@ impl Lt for LtRician {
 /// product floored at 1e−30 (a coverage below that is zero for any purpose; no underflow into
 /// slow subnormals).
 #[inline(always)]
+#[allow(clippy::too_many_arguments)] // every parameter is monomorphised into the loop
 pub(crate) fn pass_cov_exact<D: Decay, G: TxGain, A: PairFactor, C: RxCoupling, L: Lt>(
     d: D,
     g: G,
@@ -331,6 +332,7 @@ pub(crate) fn pass_cov_exact<D: Decay, G: TxGain, A: PairFactor, C: RxCoupling, 
 
 /// Coverage, moment form: Σ a p g_rx and Σ (a e2 − a² e1²)(p g_rx)².
 #[inline(always)]
+#[allow(clippy::too_many_arguments)] // every parameter is monomorphised into the loop
 pub(crate) fn pass_cov_moment<D: Decay, G: TxGain, A: PairFactor, C: RxCoupling>(
     d: D,
     g: G,
