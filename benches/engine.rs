@@ -89,15 +89,15 @@ fn main() {
     measure("sinr, aimed rx (two passes)", &sc_aim, sinr, reps);
     let mut sc_ray = layout(1000, 1000, 2.0, true);
     sc_ray.fading = lobemap::model::fading::FadingSpec {
-        signal: lobemap::model::fading::Fading::Rayleigh,
-        interferer: lobemap::model::fading::Fading::Rayleigh,
+        signal: lobemap::model::fading::Fading::RAYLEIGH,
+        interferer: lobemap::model::fading::Fading::RAYLEIGH,
         shadowing_db: 0.0,
     };
     measure("coverage exact (Rayleigh), aimed rx", &sc_ray, coverage, reps);
     let mut sc_ric = layout(1000, 1000, 2.0, true);
     sc_ric.fading = lobemap::model::fading::FadingSpec {
-        signal: lobemap::model::fading::Fading::Rician { k: 4.0 },
-        interferer: lobemap::model::fading::Fading::Rayleigh,
+        signal: lobemap::model::fading::Fading::rician_db(10.0 * 4f64.log10()).unwrap(),
+        interferer: lobemap::model::fading::Fading::RAYLEIGH,
         shadowing_db: 0.0,
     };
     measure("coverage moment (Rician signal), aimed rx", &sc_ric, coverage, reps);

@@ -51,7 +51,7 @@ fn main() {
         ("no fading", FadingSpec::default()),
         (
             "Rician 9 dB signal, Rayleigh interferers",
-            FadingSpec { signal: Fading::rician_db(9.0).unwrap(), interferer: Fading::Rayleigh, shadowing_db: 0.0 },
+            FadingSpec { signal: Fading::rician_db(9.0).unwrap(), interferer: Fading::RAYLEIGH, shadowing_db: 0.0 },
         ),
     ] {
         sc.fading = f;

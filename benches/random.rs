@@ -23,12 +23,12 @@ fn main() {
         power_mw: 1.0,
         tx: SectorGain::from_db(30.0, 10.0, -10.0),
         rx: SectorGain::from_db(30.0, 10.0, -10.0),
-        fading: Fading::Rayleigh,
+        fading: Fading::RAYLEIGH,
         pathloss: PathLoss::new(Law::PowerLaw { exponent: 3.0, loss_at_1m_db: 40.0 }, 28.0, 0.0, 1.0, "bench").unwrap(),
     };
     for (name, fading) in [
-        ("none", Fading::None),
-        ("rayleigh", Fading::Rayleigh),
+        ("none", Fading::NONE),
+        ("rayleigh", Fading::RAYLEIGH),
         ("rician 6 dB", Fading::rician_db(6.0).unwrap()),
         ("nakagami 2", Fading::nakagami(2.0).unwrap()),
     ] {

@@ -43,6 +43,24 @@ impl fmt::Display for Problem {
     }
 }
 
+/// A model parameter that cannot be used: which parameter (its name in the model, such as
+/// `exponent` or `k_db`) and what is allowed. The configuration layer adds the file and
+/// table, the command line the flag.
+#[derive(Debug, Clone, PartialEq)]
+pub struct ModelError {
+    /// The parameter's name in the model.
+    pub key: &'static str,
+    /// What is wrong: the value and the allowed range.
+    pub message: String,
+}
+
+impl ModelError {
+    /// A parameter `key` whose `value` lies outside `range` (printed like `[1, 8]`).
+    pub fn out_of_range(key: &'static str, value: f64, range: impl fmt::Display) -> Self {
+        ModelError { key, message: format!("value {value} is outside the allowed range {range}") }
+    }
+}
+
 /// Everything the library can fail with.
 #[derive(Debug, thiserror::Error)]
 pub enum Error {

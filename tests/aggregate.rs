@@ -35,7 +35,7 @@ fn mean_var(v: &[f64]) -> (f64, f64) {
 /// (√(κ2/N), κ2 the exact variance) of κ1; likewise the sample variance estimates κ2.
 #[test]
 fn campbell_mean_and_variance_against_monte_carlo() {
-    for f in [field(Fading::Rayleigh, 60.0, 6.0, -6.0), field(Fading::rician_db(6.0).unwrap(), 360.0, 0.0, 0.0)] {
+    for f in [field(Fading::RAYLEIGH, 60.0, 6.0, -6.0), field(Fading::rician_db(6.0).unwrap(), 360.0, 0.0, 0.0)] {
         let rad = f.radial();
         let (k1, k2) = (f.cumulant(1, &rad), f.cumulant(2, &rad));
         let n = 20_000;
@@ -93,7 +93,7 @@ fn directional_success_probability_matches_closed_form() {
         tx: SectorGain::from_db(30.0, 10.0, -10.0),
         rx: SectorGain::from_db(360.0, 0.0, 0.0),
         pathloss: PathLoss::new(Law::PowerLaw { exponent: alpha, loss_at_1m_db: 0.0 }, 28.0, 0.0, 1e-3, "t").unwrap(),
-        ..field(Fading::Rayleigh, 360.0, 0.0, 0.0)
+        ..field(Fading::RAYLEIGH, 360.0, 0.0, 0.0)
     };
     let s: f64 = r.powf(alpha); // T = 1, G₀ = 1
     let p = f.log_laplace(Complex64::new(s, 0.0), &f.radial()).exp().re;
@@ -110,7 +110,7 @@ fn directional_success_probability_matches_closed_form() {
 /// its distance stays large whatever N: that is what the tool must show.
 #[test]
 fn ks_distances_shrink_for_exact_not_for_gamma() {
-    let f = field(Fading::Rayleigh, 30.0, 10.0, -10.0);
+    let f = field(Fading::RAYLEIGH, 30.0, 10.0, -10.0);
     for n in [2_000usize, 20_000] {
         let r = characterise(&f, &Request { thresholds_dbm: vec![], realizations: n, seed: 3, table_points: 160 });
         let ks = r.ks.unwrap();
@@ -137,7 +137,7 @@ fn monte_carlo_is_thread_count_independent() {
 /// (1 − e^{−λπh²})/(πh²) (Matérn 1986) within 4 sample standard errors.
 #[test]
 fn hard_core_mean_matches_retained_intensity() {
-    let f = Field { hard_core_m: 30.0, radius_m: 400.0, ..field(Fading::Rayleigh, 360.0, 0.0, 0.0) };
+    let f = Field { hard_core_m: 30.0, radius_m: 400.0, ..field(Fading::RAYLEIGH, 360.0, 0.0, 0.0) };
     let k1 = f.cumulant(1, &f.radial());
     let (v, _) = simulate(&f, 4000, 5);
     let (m, var) = mean_var(&v);
@@ -148,7 +148,7 @@ fn hard_core_mean_matches_retained_intensity() {
 /// target; the gamma answer is reported beside it.
 #[test]
 fn planning_answers_meet_the_target() {
-    let f = field(Fading::Rayleigh, 30.0, 10.0, -10.0);
+    let f = field(Fading::RAYLEIGH, 30.0, 10.0, -10.0);
     let p = max_density(&f, -65.0, 0.05);
     let d = p.exact.unwrap();
     let at = |dens: f64| {

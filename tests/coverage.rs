@@ -48,7 +48,7 @@ fn andrews_baccelli_ganti_coverage() {
     let lambda = 1e-5;
     let radius: f64 = 5000.0;
     let omni = Pattern::Omni { gain_dbi: 0.0 };
-    let fading = FadingSpec { signal: Fading::Rayleigh, interferer: Fading::Rayleigh, shadowing_db: 0.0 };
+    let fading = FadingSpec { signal: Fading::RAYLEIGH, interferer: Fading::RAYLEIGH, shadowing_db: 0.0 };
     let layers = LayerSet { coverage: true, total: false, ..LayerSet::TOTAL };
     for (t_db, want) in [(0.0, 0.56010), (5.0, 0.34694)] {
         let mut means = Vec::new();
@@ -92,7 +92,11 @@ fn andrews_baccelli_ganti_coverage() {
 #[test]
 fn exact_coverage_layer_matches_monte_carlo_on_demo() {
     let mut sc = Scenario::load(std::path::Path::new("sites/harbourlight/scenario.toml")).unwrap();
-    sc.fading = FadingSpec { signal: Fading::Rayleigh, interferer: Fading::Rician { k: 2.0 }, shadowing_db: 0.0 };
+    sc.fading = FadingSpec {
+        signal: Fading::RAYLEIGH,
+        interferer: Fading::rician_db(10.0 * 2f64.log10()).unwrap(),
+        shadowing_db: 0.0,
+    };
     let layers = LayerSet { coverage: true, total: false, ..LayerSet::TOTAL };
     let cov = Engine::new(&sc).run(&Options { layers, cutoff_m: None, progress: false }).coverage.unwrap();
     let g = &sc.grid;

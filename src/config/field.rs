@@ -80,25 +80,16 @@ impl FieldSpec {
                 format!("value {} must be below --radius-m {}", self.guard_m, self.radius_m),
             ));
         }
-        let fading = match self.fading.as_str() {
-            "none" => Some(crate::model::fading::Fading::None),
-            "rayleigh" => Some(crate::model::fading::Fading::Rayleigh),
-            "nakagami" => crate::model::fading::Fading::nakagami(self.m)
-                .map_err(|m| p.push(Problem::new("(command line)", None, "--m", m)))
-                .ok(),
-            "rician" => crate::model::fading::Fading::rician_db(self.k_db)
-                .map_err(|m| p.push(Problem::new("(command line)", None, "--k-db", m)))
-                .ok(),
-            other => {
-                p.push(Problem::new(
-                    "(command line)",
-                    None,
-                    "--fading",
-                    format!("value `{other}` is not one of none, rayleigh, nakagami, rician"),
-                ));
-                None
-            }
-        };
+        let fading = crate::model::fading::Fading::from_name(&self.fading, Some(self.m), Some(self.k_db))
+            .map_err(|e| {
+                let flag = match e.key {
+                    "m" => "--m",
+                    "k_db" => "--k-db",
+                    _ => "--fading",
+                };
+                p.push(Problem::flag(flag, e.message))
+            })
+            .ok();
         let law = match self.model.as_str() {
             "free-space" => Some(crate::model::pathloss::Law::FreeSpace),
             "close-in" => Some(crate::model::pathloss::Law::CloseIn { exponent: self.exponent }),
@@ -249,7 +240,7 @@ impl FieldSpec {
         a: &FieldOverrides,
     ) -> Result<FieldSpec, crate::Error> {
         use crate::model::antenna::Pattern;
-        use crate::model::fading::Fading;
+        use crate::model::fading::FadingKind;
         use crate::model::pathloss::Law;
         let node0 = sc.and_then(|s| s.nodes.first());
         let (sc_bw, sc_g, sc_s, sc_p) = match node0.map(|n| (n.pattern, n.power_dbm)) {
@@ -291,12 +282,12 @@ impl FieldSpec {
             }
         };
         // The scenario's interferer fading, unless the user says otherwise.
-        let (fading, k_db, m) = match (a.fading.as_deref(), sc.map(|s| s.fading.interferer)) {
+        let (fading, k_db, m) = match (a.fading.as_deref(), sc.map(|s| s.fading.interferer.kind())) {
             (Some(f), _) => (f.to_string(), a.k_db, a.m),
-            (None, Some(Fading::None)) => ("none".into(), a.k_db, a.m),
-            (None, Some(Fading::Rayleigh)) | (None, None) => ("rayleigh".into(), a.k_db, a.m),
-            (None, Some(Fading::Nakagami { m })) => ("nakagami".into(), a.k_db, m),
-            (None, Some(Fading::Rician { k })) => ("rician".into(), 10.0 * k.log10(), a.m),
+            (None, Some(FadingKind::None)) => ("none".into(), a.k_db, a.m),
+            (None, Some(FadingKind::Rayleigh)) | (None, None) => ("rayleigh".into(), a.k_db, a.m),
+            (None, Some(FadingKind::Nakagami { m })) => ("nakagami".into(), a.k_db, m),
+            (None, Some(FadingKind::Rician { k })) => ("rician".into(), 10.0 * k.log10(), a.m),
         };
         Ok(FieldSpec {
             density_per_km2: density,

@@ -133,26 +133,18 @@ impl Scenario {
                 format!("value `{}` must be non-empty and use only letters, digits, space, '-', '_' or '.'", raw.name),
             ));
         }
-        let mut fading_law = |field: &str, model: Option<&str>, m: Option<f64>, k: Option<f64>| {
-            use crate::model::fading::Fading;
-            let r = match model.unwrap_or("none") {
-                "none" => Ok(Fading::None),
-                "rayleigh" => Ok(Fading::Rayleigh),
-                "nakagami" => Fading::nakagami(m.unwrap_or(f64::NAN)).map_err(|e| (field.replace("model", "m"), e)),
-                "rician" => Fading::rician_db(k.unwrap_or(f64::NAN)).map_err(|e| (field.replace("model", "k_db"), e)),
-                other => Err((
-                    field.to_string(),
-                    format!("value `{other}` is not one of `none`, `rayleigh`, `nakagami`, `rician`"),
-                )),
-            };
-            r.map_err(|(f, e)| probs.push(Problem::new(&file, Some("[fading]".into()), f, e))).ok()
+        // `prefix` is "" for the signal's keys and "interferer_" for the interferers'.
+        let mut fading_law = |prefix: &str, model: Option<&str>, m: Option<f64>, k: Option<f64>| {
+            crate::model::fading::Fading::from_name(model.unwrap_or("none"), m, k)
+                .map_err(|e| {
+                    probs.push(Problem::new(&file, Some("[fading]".into()), format!("{prefix}{}", e.key), e.message))
+                })
+                .ok()
         };
-        let sig = fading_law("model", fz.model.as_deref(), fz.m, fz.k_db);
+        let sig = fading_law("", fz.model.as_deref(), fz.m, fz.k_db);
         let intf = match fz.interferer_model.as_deref() {
             None => sig,
-            Some(m) => {
-                fading_law("interferer_model", Some(m), fz.interferer_m.or(fz.m), fz.interferer_k_db.or(fz.k_db))
-            }
+            Some(m) => fading_law("interferer_", Some(m), fz.interferer_m.or(fz.m), fz.interferer_k_db.or(fz.k_db)),
         };
         let declination_date = match raw.install.declination_date.as_deref() {
             None => Some((2026, 1)),
@@ -293,8 +285,8 @@ impl Scenario {
             thresholds: thr,
             draw,
             fading: FadingSpec {
-                signal: sig.unwrap_or(crate::model::fading::Fading::None),
-                interferer: intf.unwrap_or(crate::model::fading::Fading::None),
+                signal: sig.unwrap_or(crate::model::fading::Fading::NONE),
+                interferer: intf.unwrap_or(crate::model::fading::Fading::NONE),
                 shadowing_db,
             },
             links: LinkSettings { capacity_gap_db, max_spectral_efficiency: max_se },

@@ -271,26 +271,25 @@ pub(crate) struct LtRician(pub(crate) f32);
 impl Lt for LtNone {
     #[inline(always)]
     fn l(self, t: f32) -> f32 {
-        fast_exp2(-t * std::f32::consts::LOG2_E)
+        crate::model::fading::none_laplace_f32(t)
     }
 }
 impl Lt for LtRayleigh {
     #[inline(always)]
     fn l(self, t: f32) -> f32 {
-        1.0 / (1.0 + t)
+        crate::model::fading::rayleigh_laplace_f32(t)
     }
 }
 impl Lt for LtNakagami {
     #[inline(always)]
     fn l(self, t: f32) -> f32 {
-        fast_exp2(-self.0 * fast_log2(1.0 + t / self.0))
+        crate::model::fading::nakagami_laplace_f32(self.0, t)
     }
 }
 impl Lt for LtRician {
     #[inline(always)]
     fn l(self, t: f32) -> f32 {
-        let d = 1.0 + self.0 + t;
-        (1.0 + self.0) / d * fast_exp2(-self.0 * t / d * std::f32::consts::LOG2_E)
+        crate::model::fading::rician_laplace_f32(self.0, t)
     }
 }
 

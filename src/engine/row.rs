@@ -5,6 +5,7 @@ use crate::NODATA;
 use crate::engine::kernels::*;
 use crate::engine::simd::multiversion;
 use crate::engine::{Engine, LayerSet};
+use crate::model::fading::KernelForm;
 use crate::model::units::db_to_lin;
 use rstar::AABB;
 
@@ -140,11 +141,11 @@ pub(crate) fn row_body<D: Decay, A: PairFactor, C: RxCoupling>(
                 };
             }
             if exact {
-                match e.cov.spec.interferer {
-                    crate::model::fading::Fading::None => lt_pass!(LtNone),
-                    crate::model::fading::Fading::Rayleigh => lt_pass!(LtRayleigh),
-                    crate::model::fading::Fading::Nakagami { m } => lt_pass!(LtNakagami(m as f32)),
-                    crate::model::fading::Fading::Rician { k } => lt_pass!(LtRician(k as f32)),
+                match e.cov.spec.interferer.kernel_form() {
+                    KernelForm::Unit => lt_pass!(LtNone),
+                    KernelForm::Rayleigh => lt_pass!(LtRayleigh),
+                    KernelForm::Nakagami(m) => lt_pass!(LtNakagami(m)),
+                    KernelForm::Rician(k) => lt_pass!(LtRician(k)),
                 }
             } else {
                 let coef = n.act * e2 - n.act * n.act * e1 * e1;

@@ -31,7 +31,7 @@ use crate::model::fading::{Fading, lognormal_moment};
 use crate::model::fading::FadingSpec;
 use crate::model::units::{db_to_lin, dbm_to_mw};
 use rand::{RngExt, SeedableRng};
-use rand_distr::{Distribution, Exp1, Gamma, StandardNormal};
+use rand_distr::{Distribution, StandardNormal};
 use rayon::prelude::*;
 use statrs::function::gamma::gamma_lr;
 
@@ -112,7 +112,7 @@ impl CoverageModel {
     pub fn new(spec: FadingSpec, sinr_db: f64, noise_dbm: f64) -> CoverageModel {
         let e1 = lognormal_moment(spec.shadowing_db, 1);
         let ex2 = lognormal_moment(spec.shadowing_db, 2);
-        let method = if spec.signal == Fading::Rayleigh && spec.shadowing_db == 0.0 {
+        let method = if spec.signal == Fading::RAYLEIGH && spec.shadowing_db == 0.0 {
             Method::Exact
         } else {
             Method::MomentGamma
@@ -143,12 +143,7 @@ impl CoverageModel {
 
     /// The interferers' Laplace transform E[e^{−t h}].
     pub fn lt(&self, t: f64) -> f64 {
-        match self.spec.interferer {
-            Fading::None => (-t).exp(),
-            Fading::Rayleigh => 1.0 / (1.0 + t),
-            Fading::Nakagami { m } => (1.0 + t / m).powf(-m),
-            Fading::Rician { k } => (1.0 + k) / (1.0 + k + t) * (-k * t / (1.0 + k + t)).exp(),
-        }
+        self.spec.interferer.laplace(t)
     }
 
     /// Exact form from Σ log2(1 − a + a L(T p / S)) over interferers.
@@ -272,8 +267,8 @@ impl CoverageModel {
             .map(|c| {
                 let mut rng = rand_pcg::Pcg64Mcg::seed_from_u64(seed.wrapping_mul(0x9E37_79B9_7F4A_7C15) ^ c as u64);
                 let n = CHUNK.min(trials - c * CHUNK);
-                let sig = sampler(self.spec.signal);
-                let intf = sampler(self.spec.interferer);
+                let sig = self.spec.signal.sampler();
+                let intf = self.spec.interferer.sampler();
                 let shadow = |rng: &mut rand_pcg::Pcg64Mcg| -> f64 {
                     if sigma_ln > 0.0 {
                         let z: f64 = StandardNormal.sample(rng);
@@ -284,11 +279,11 @@ impl CoverageModel {
                 };
                 let mut hits = 0;
                 for _ in 0..n {
-                    let s = s_mw * sig(&mut rng) * shadow(&mut rng);
+                    let s = s_mw * sig.sample(&mut rng) * shadow(&mut rng);
                     let mut i = 0.0;
                     for &(a, p) in interferers {
                         if rng.random::<f64>() < a {
-                            i += p * intf(&mut rng) * shadow(&mut rng);
+                            i += p * intf.sample(&mut rng) * shadow(&mut rng);
                         }
                     }
                     if s >= self.t_lin * (i + self.noise_mw) {
@@ -299,27 +294,6 @@ impl CoverageModel {
             })
             .sum();
         wilson(hits, trials)
-    }
-}
-
-type Sampler = Box<dyn Fn(&mut rand_pcg::Pcg64Mcg) -> f64 + Sync>;
-
-fn sampler(f: Fading) -> Sampler {
-    match f {
-        Fading::None => Box::new(|_| 1.0),
-        Fading::Rayleigh => Box::new(|r| Exp1.sample(r)),
-        Fading::Nakagami { m } => {
-            let g = Gamma::new(m, 1.0 / m).expect("validated m");
-            Box::new(move |r| g.sample(r))
-        }
-        Fading::Rician { k } => {
-            let (a, s) = ((k / (k + 1.0)).sqrt(), (0.5 / (k + 1.0)).sqrt());
-            Box::new(move |r| {
-                let x: f64 = StandardNormal.sample(r);
-                let y: f64 = StandardNormal.sample(r);
-                (a + s * x).powi(2) + (s * y).powi(2)
-            })
-        }
     }
 }
 
@@ -349,7 +323,7 @@ mod tests {
     // contain the formula, and the estimate lie within 4 standard errors.
     #[test]
     fn exact_rayleigh_matches_monte_carlo() {
-        let m = model(Fading::Rayleigh, Fading::Rician { k: 4.0 }, 0.0);
+        let m = model(Fading::RAYLEIGH, Fading::rician_db(10.0 * 4f64.log10()).unwrap(), 0.0);
         assert_eq!(m.method, Method::Exact);
         let s = dbm_to_mw(-70.0);
         let intf = [(1.0, dbm_to_mw(-80.0)), (0.5, dbm_to_mw(-76.0)), (0.2, dbm_to_mw(-72.0))];
@@ -365,7 +339,7 @@ mod tests {
     #[test]
     fn noise_limited_matches_gamma_survival() {
         use statrs::distribution::{ContinuousCDF, Gamma};
-        let m = model(Fading::Rician { k: 10f64.powf(0.9) }, Fading::Rayleigh, 0.0);
+        let m = model(Fading::rician_db(9.0).unwrap(), Fading::RAYLEIGH, 0.0);
         let shape = m.signal_shape;
         for s_dbm in [-88.0, -86.0, -84.0, -80.0] {
             let s = dbm_to_mw(s_dbm);
@@ -380,9 +354,9 @@ mod tests {
     // not of sampling: the sampling error is 0.002).
     #[test]
     fn moment_matching_is_close_to_monte_carlo() {
-        let m = model(Fading::Nakagami { m: 2.0 }, Fading::Rayleigh, 4.0);
+        let m = model(Fading::nakagami(2.0).unwrap(), Fading::RAYLEIGH, 4.0);
         assert_eq!(m.method, Method::MomentGamma);
-        let r = model(Fading::Rician { k: 10f64.powf(0.9) }, Fading::Rayleigh, 0.0);
+        let r = model(Fading::rician_db(9.0).unwrap(), Fading::RAYLEIGH, 0.0);
         let s = dbm_to_mw(-78.0);
         let intf: Vec<(f64, f64)> = (0..8).map(|i| (0.5, dbm_to_mw(-88.0 - 2.0 * i as f64))).collect();
         let (p, (est, _, _)) = (r.probability(s, &intf), r.monte_carlo(s, &intf, 100_000, 3));
@@ -418,7 +392,7 @@ mod laplace_form_checks {
         for k_db in [-3.0, 3.0, 9.0, 15.0] {
             let spec = FadingSpec {
                 signal: Fading::rician_db(k_db).unwrap(),
-                interferer: Fading::Rayleigh,
+                interferer: Fading::RAYLEIGH,
                 shadowing_db: 0.0,
             };
             let mut mref = CoverageModel::new(spec, 6.0, -80.0);
@@ -443,7 +417,8 @@ mod laplace_form_checks {
     // integral at m = 3 within 1e-4.
     #[test]
     fn laplace_form_is_exact_at_integer_shape() {
-        let spec = FadingSpec { signal: Fading::Nakagami { m: 3.0 }, interferer: Fading::Rayleigh, shadowing_db: 0.0 };
+        let spec =
+            FadingSpec { signal: Fading::nakagami(3.0).unwrap(), interferer: Fading::RAYLEIGH, shadowing_db: 0.0 };
         let mut m = CoverageModel::new(spec, 3.0, -80.0);
         m.gl = crate::math::quadrature::gauss_legendre(8);
         for (s_dbm, mu_dbm, k) in [(-70.0, -82.0, 0.3), (-74.0, -79.0, 3.0), (-66.0, -75.0, 0.08)] {

@@ -174,15 +174,7 @@ impl Field {
 
     /// E[e^{−t h}] for complex t with Re t ≥ 0.
     pub fn fading_transform(&self, t: Complex64) -> Complex64 {
-        match self.fading {
-            Fading::None => (-t).exp(),
-            Fading::Rayleigh => 1.0 / (1.0 + t),
-            Fading::Nakagami { m } => (-m * (1.0 + t / m).ln()).exp(),
-            Fading::Rician { k } => {
-                let d = 1.0 + k + t;
-                (1.0 + k) / d * (-k * t / d).exp()
-            }
-        }
+        self.fading.laplace_complex(t)
     }
 
     /// ln L_I(s) = −λ ∫_A (1 − E[e^{−s P G_t G_r h ℓ}]) dA for complex s (Re s > 0).
@@ -233,7 +225,7 @@ mod tests {
             power_mw: 1.0,
             tx: SectorGain::from_db(360.0, 0.0, 0.0),
             rx: SectorGain::from_db(360.0, 0.0, 0.0),
-            fading: Fading::Rayleigh,
+            fading: Fading::RAYLEIGH,
             pathloss: PathLoss::new(Law::PowerLaw { exponent: alpha, loss_at_1m_db: 0.0 }, 2.0, 0.0, 1e-3, "t")
                 .unwrap(),
         }

@@ -4,10 +4,9 @@
 
 use crate::engine::simd::multiversion;
 use crate::engine::{fast_exp2, fast_log2};
-use crate::model::fading::Fading;
 use crate::random::field::Field;
 use rand::{Rng, RngExt, SeedableRng};
-use rand_distr::{Distribution, Gamma, Poisson, StandardNormal};
+use rand_distr::{Distribution, Poisson};
 use rand_pcg::Pcg64Mcg;
 use rayon::prelude::*;
 use rstar::{RTree, primitives::GeomWithData};
@@ -75,43 +74,6 @@ fn consts(f: &Field) -> Consts {
     }
 }
 
-fn fill_fading(f: &Fading, gamma: Option<&Gamma<f64>>, rng: &mut impl Rng, h: &mut [f32]) {
-    match *f {
-        Fading::None => h.fill(1.0),
-        Fading::Rayleigh => {
-            // Inverse transform h = −ln U with U = (k + ½)/2³² (no zero; the tail is cut at
-            // P < 1e−10), two uniforms per 64-bit draw, logarithm in the vectorised loop.
-            for pair in h.chunks_mut(2) {
-                let u = rng.next_u64();
-                pair[0] = ((u >> 32) as f32 + 0.5) * (1.0 / 4_294_967_296.0);
-                if pair.len() > 1 {
-                    pair[1] = ((u & 0xffff_ffff) as f32 + 0.5) * (1.0 / 4_294_967_296.0);
-                }
-            }
-            neg_ln_in_place(h);
-        }
-        Fading::Nakagami { .. } => h.iter_mut().for_each(|x| *x = gamma.map(|g| g.sample(rng)).unwrap_or(1.0) as f32),
-        Fading::Rician { k } => {
-            let a = (k / (k + 1.0)).sqrt() as f32;
-            let s = (0.5 / (k + 1.0)).sqrt() as f32;
-            h.iter_mut().for_each(|x| {
-                let u: f32 = StandardNormal.sample(rng);
-                let v: f32 = StandardNormal.sample(rng);
-                *x = (a + s * u).powi(2) + (s * v).powi(2)
-            });
-        }
-    }
-}
-
-#[inline(always)]
-fn neg_ln_body(h: &mut [f32]) {
-    for x in h.iter_mut() {
-        *x = -fast_log2(*x) * std::f32::consts::LN_2;
-    }
-}
-
-multiversion!(fn neg_ln_in_place(h: &mut [f32]) -> () => neg_ln_body);
-
 /// Scratch buffers of one realisation.
 #[derive(Default)]
 struct Buf {
@@ -170,16 +132,8 @@ fn sum_body(c: &Consts, b: &Buf) -> f64 {
 
 multiversion!(fn sum_powers(c: &Consts, b: &Buf) -> f64 => sum_body);
 
-fn nakagami(f: &Field) -> Option<Gamma<f64>> {
-    match f.fading {
-        Fading::Nakagami { m } => Gamma::new(m, 1.0 / m).ok(),
-        _ => None,
-    }
-}
-
 fn one_poisson(f: &Field, rng: &mut Pcg64Mcg, buf: &mut Buf) -> (f64, u64) {
     let c = consts(f);
-    let gamma = nakagami(f);
     let mean = f.density_per_m2 * f.keep * f.area_m2();
     let n = if mean > 0.0 { Poisson::new(mean).map(|p| p.sample(rng) as usize).unwrap_or(0) } else { 0 };
     let (a2, span) = ((f.guard_m * f.guard_m) as f32, (f.radius_m * f.radius_m - f.guard_m * f.guard_m) as f32);
@@ -191,13 +145,12 @@ fn one_poisson(f: &Field, rng: &mut Pcg64Mcg, buf: &mut Buf) -> (f64, u64) {
         buf.ut[k] = ((u >> 20) & 0xfffff) as f32 * (1.0 / 1_048_576.0);
         buf.ur[k] = (u & 0xfffff) as f32 * (1.0 / 1_048_576.0);
     }
-    fill_fading(&f.fading, gamma.as_ref(), rng, &mut buf.h);
+    f.fading.fill_f32(rng, &mut buf.h);
     (sum_powers(&c, buf), n as u64)
 }
 
 fn one_hard_core(f: &Field, rng: &mut Pcg64Mcg, buf: &mut Buf) -> (f64, u64) {
     let c = consts(f);
-    let gamma = nakagami(f);
     // Parent Poisson points on the disc of radius R + h, so that every candidate in the
     // annulus sees all its competitors; uniform marks; Matérn II retention.
     let rp = f.radius_m + f.hard_core_m;
@@ -228,6 +181,6 @@ fn one_hard_core(f: &Field, rng: &mut Pcg64Mcg, buf: &mut Buf) -> (f64, u64) {
         buf.ut[k] = rng.random::<f32>();
         buf.ur[k] = rng.random::<f32>();
     }
-    fill_fading(&f.fading, gamma.as_ref(), rng, &mut buf.h);
+    f.fading.fill_f32(rng, &mut buf.h);
     (sum_powers(&c, buf), n as u64)
 }

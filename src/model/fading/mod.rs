@@ -1,86 +1,237 @@
-//! Small-scale fading of a normalised power gain h (E[h] = 1) and log-normal shadowing:
-//! exact moments and the gamma (Nakagami-m) form used by moment matching.
+//! Small-scale fading of a normalised power gain h (E[h] = 1) and log-normal shadowing.
+//!
+//! Each law lives in its own file with every formula the project needs of it: moments, the
+//! Laplace transform E[e^{−t h}] (real and complex), samplers (double precision, and float32
+//! for the random-field Monte Carlo) and the float32 transform the engine's coverage kernel
+//! evaluates. [`Fading`] dispatches to them; adding a law is a file and one line per method
+//! here, plus its name in [`Fading::NAMES`].
 //!
 //! # References
 //! - M. Nakagami, "The m-distribution — a general formula of intensity distribution of rapid
 //!   fading", in Statistical Methods in Radio Wave Propagation, Pergamon, 1960: a Rician power
 //!   is matched by m = (K + 1)² / (2K + 1).
-//! - Rician second moment E[h²] = (2 + 4K + K²)/(1 + K)² (from the non-central χ² with two
-//!   degrees of freedom; values checked against scipy.stats.rice in the shared model notes).
 
-use statrs::function::gamma::ln_gamma;
+use crate::error::ModelError;
+use num_complex::Complex64;
+use rand::Rng;
 
-/// A fading law for a normalised power gain.
+mod nakagami;
+mod none;
+mod rayleigh;
+mod rician;
+
+pub(crate) use nakagami::laplace_f32 as nakagami_laplace_f32;
+pub(crate) use none::laplace_f32 as none_laplace_f32;
+pub(crate) use rayleigh::laplace_f32 as rayleigh_laplace_f32;
+pub(crate) use rician::laplace_f32 as rician_laplace_f32;
+
+/// A fading law for a normalised power gain; built only through its validating
+/// constructors, so every value is usable.
+///
+/// ```
+/// use lobemap::model::fading::Fading;
+/// let f = Fading::rician_db(6.0).unwrap();
+/// assert!((f.moment(1) - 1.0).abs() < 1e-12);
+/// assert!(Fading::nakagami(0.3).is_err());
+/// ```
 #[derive(Debug, Clone, Copy, PartialEq)]
-pub enum Fading {
+pub struct Fading(Law);
+
+#[derive(Debug, Clone, Copy, PartialEq)]
+enum Law {
+    None,
+    Rayleigh,
+    Nakagami(f64),
+    Rician(f64),
+}
+
+/// A read-only view of a fading law and its parameter.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub enum FadingKind {
     /// No fading: h = 1.
     None,
     /// Rayleigh amplitude: h ~ Exp(1).
     Rayleigh,
-    /// Nakagami-m amplitude: h ~ Gamma(m, 1/m), m ≥ 0.5.
+    /// Nakagami-m amplitude: h ~ Gamma(m, 1/m).
     Nakagami {
         /// Shape m.
         m: f64,
     },
-    /// Rician amplitude with K-factor (linear): h = |√(K/(K+1)) + CN(0, 1/(K+1))|².
+    /// Rician amplitude with K-factor (linear).
     Rician {
         /// K-factor, linear.
         k: f64,
     },
 }
 
+/// The transform a kernel evaluates in float32 (the engine matches on this).
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub enum KernelForm {
+    /// e^{−t}.
+    Unit,
+    /// 1 / (1 + t).
+    Rayleigh,
+    /// (1 + t/m)^{−m}.
+    Nakagami(f32),
+    /// (1+K)/(1+K+t)·exp(−Kt/(1+K+t)).
+    Rician(f32),
+}
+
 impl Fading {
-    /// A Nakagami law, checking m ≥ 0.5.
-    pub fn nakagami(m: f64) -> Result<Fading, String> {
+    /// No fading.
+    pub const NONE: Fading = Fading(Law::None);
+    /// Rayleigh fading.
+    pub const RAYLEIGH: Fading = Fading(Law::Rayleigh);
+    /// Law names, as written in scenario files and on the command line.
+    pub const NAMES: [&'static str; 4] = ["none", "rayleigh", "nakagami", "rician"];
+
+    /// A Nakagami law, checking m in [0.5, 1e6] (key `m`).
+    pub fn nakagami(m: f64) -> Result<Fading, ModelError> {
         if (0.5..=1e6).contains(&m) {
-            Ok(Fading::Nakagami { m })
+            Ok(Fading(Law::Nakagami(m)))
         } else {
-            Err(format!("value {m} is outside the allowed range [0.5, 1e6]"))
+            Err(ModelError::out_of_range("m", m, "[0.5, 1e6]"))
         }
     }
 
-    /// A Rician law from its K-factor in dB, checking a finite value in [−30, 40] dB.
-    pub fn rician_db(k_db: f64) -> Result<Fading, String> {
+    /// A Rician law from its K-factor in dB, checking a finite value in [−30, 40] dB (key
+    /// `k_db`).
+    pub fn rician_db(k_db: f64) -> Result<Fading, ModelError> {
         if k_db.is_finite() && (-30.0..=40.0).contains(&k_db) {
-            Ok(Fading::Rician { k: 10f64.powf(k_db / 10.0) })
+            Ok(Fading(Law::Rician(10f64.powf(k_db / 10.0))))
         } else {
-            Err(format!("value {k_db} is outside the allowed range [-30, 40] dB"))
+            Err(ModelError::out_of_range("k_db", k_db, "[-30, 40] dB"))
+        }
+    }
+
+    /// A law by name: `m` is used by `nakagami`, `k_db` by `rician` (key `model` for an
+    /// unknown name).
+    pub fn from_name(name: &str, m: Option<f64>, k_db: Option<f64>) -> Result<Fading, ModelError> {
+        match name {
+            "none" => Ok(Fading::NONE),
+            "rayleigh" => Ok(Fading::RAYLEIGH),
+            "nakagami" => Fading::nakagami(m.unwrap_or(f64::NAN)),
+            "rician" => Fading::rician_db(k_db.unwrap_or(f64::NAN)),
+            other => Err(ModelError {
+                key: "model",
+                message: format!("value `{other}` is not one of `{}`", Fading::NAMES.join("`, `")),
+            }),
+        }
+    }
+
+    /// The law and its parameter.
+    pub fn kind(&self) -> FadingKind {
+        match self.0 {
+            Law::None => FadingKind::None,
+            Law::Rayleigh => FadingKind::Rayleigh,
+            Law::Nakagami(m) => FadingKind::Nakagami { m },
+            Law::Rician(k) => FadingKind::Rician { k },
+        }
+    }
+
+    /// The law's name (one of [`Fading::NAMES`]).
+    pub fn name(&self) -> &'static str {
+        match self.0 {
+            Law::None => "none",
+            Law::Rayleigh => "rayleigh",
+            Law::Nakagami(_) => "nakagami",
+            Law::Rician(_) => "rician",
         }
     }
 
     /// The n-th moment E[hⁿ] (n ≥ 0).
     pub fn moment(&self, n: u32) -> f64 {
-        match *self {
-            Fading::None => 1.0,
-            Fading::Rayleigh => (1..=n).map(f64::from).product(),
-            Fading::Nakagami { m } => (ln_gamma(m + n as f64) - ln_gamma(m) - n as f64 * m.ln()).exp(),
-            Fading::Rician { k } => {
-                // h = X / (K+1) with X non-central χ²-like: |√K + CN(0,1)|² has moments
-                // E[Xⁿ] = n! Σ_j C(n, j) K^j / j!  (Laguerre form).
-                let mut s = 0.0;
-                let mut binom = 1.0;
-                let mut jfact = 1.0;
-                for j in 0..=n {
-                    if j > 0 {
-                        binom *= (n - j + 1) as f64 / j as f64;
-                        jfact *= j as f64;
-                    }
-                    s += binom * k.powi(j as i32) / jfact;
-                }
-                let nfact: f64 = (1..=n).map(f64::from).product();
-                nfact * s / (k + 1.0).powi(n as i32)
-            }
+        match self.0 {
+            Law::None => none::moment(n),
+            Law::Rayleigh => rayleigh::moment(n),
+            Law::Nakagami(m) => nakagami::moment(m, n),
+            Law::Rician(k) => rician::moment(k, n),
         }
     }
 
     /// The Nakagami-m of the gamma law with the same first two moments: 1 / Var[h]
     /// (∞ for no fading). For Rician this is (K+1)²/(2K+1) (Nakagami 1960).
     pub fn gamma_shape(&self) -> f64 {
-        match *self {
-            Fading::None => f64::INFINITY,
-            Fading::Rayleigh => 1.0,
-            Fading::Nakagami { m } => m,
-            Fading::Rician { k } => (k + 1.0).powi(2) / (2.0 * k + 1.0),
+        match self.0 {
+            Law::None => f64::INFINITY,
+            Law::Rayleigh => 1.0,
+            Law::Nakagami(m) => m,
+            Law::Rician(k) => (k + 1.0).powi(2) / (2.0 * k + 1.0),
+        }
+    }
+
+    /// The Laplace transform E[e^{−t h}] at real t ≥ 0.
+    pub fn laplace(&self, t: f64) -> f64 {
+        match self.0 {
+            Law::None => none::laplace(t),
+            Law::Rayleigh => rayleigh::laplace(t),
+            Law::Nakagami(m) => nakagami::laplace(m, t),
+            Law::Rician(k) => rician::laplace(k, t),
+        }
+    }
+
+    /// The Laplace transform E[e^{−t h}] at complex t with Re t ≥ 0.
+    pub fn laplace_complex(&self, t: Complex64) -> Complex64 {
+        match self.0 {
+            Law::None => none::laplace_complex(t),
+            Law::Rayleigh => rayleigh::laplace_complex(t),
+            Law::Nakagami(m) => nakagami::laplace_complex(m, t),
+            Law::Rician(k) => rician::laplace_complex(k, t),
+        }
+    }
+
+    /// The transform in the form the engine's kernels evaluate.
+    pub fn kernel_form(&self) -> KernelForm {
+        match self.0 {
+            Law::None => KernelForm::Unit,
+            Law::Rayleigh => KernelForm::Rayleigh,
+            Law::Nakagami(m) => KernelForm::Nakagami(m as f32),
+            Law::Rician(k) => KernelForm::Rician(k as f32),
+        }
+    }
+
+    /// A double-precision sampler of h (prepared once, drawn many times).
+    pub fn sampler(&self) -> Sampler {
+        Sampler(match self.0 {
+            Law::None => Prepared::None,
+            Law::Rayleigh => Prepared::Rayleigh,
+            Law::Nakagami(m) => Prepared::Nakagami(nakagami::law(m)),
+            Law::Rician(k) => Prepared::Rician(k),
+        })
+    }
+
+    /// Fills `h` with float32 draws of h (the random-field Monte Carlo's vectorised form).
+    pub fn fill_f32(&self, rng: &mut impl Rng, h: &mut [f32]) {
+        match self.0 {
+            Law::None => h.fill(1.0),
+            Law::Rayleigh => rayleigh::fill_f32(rng, h),
+            Law::Nakagami(m) => nakagami::fill_f32(m, rng, h),
+            Law::Rician(k) => rician::fill_f32(k, rng, h),
+        }
+    }
+}
+
+/// A prepared double-precision sampler of a fading law.
+#[derive(Debug, Clone)]
+pub struct Sampler(Prepared);
+
+#[derive(Debug, Clone)]
+enum Prepared {
+    None,
+    Rayleigh,
+    Nakagami(rand_distr::Gamma<f64>),
+    Rician(f64),
+}
+
+impl Sampler {
+    /// One draw of h.
+    pub fn sample(&self, rng: &mut impl Rng) -> f64 {
+        use rand_distr::Distribution;
+        match &self.0 {
+            Prepared::None => 1.0,
+            Prepared::Rayleigh => rayleigh::sample(rng),
+            Prepared::Nakagami(g) => g.sample(rng),
+            Prepared::Rician(k) => rician::sample(*k, rng),
         }
     }
 }
@@ -112,7 +263,7 @@ pub struct FadingSpec {
 
 impl Default for FadingSpec {
     fn default() -> Self {
-        FadingSpec { signal: Fading::None, interferer: Fading::None, shadowing_db: 0.0 }
+        FadingSpec { signal: Fading::NONE, interferer: Fading::NONE, shadowing_db: 0.0 }
     }
 }
 
@@ -138,10 +289,10 @@ mod tests {
     // with m = 1 is Rayleigh).
     #[test]
     fn rayleigh_and_nakagami_moments() {
-        assert_eq!(Fading::Rayleigh.moment(3), 6.0);
+        assert_eq!(Fading::RAYLEIGH.moment(3), 6.0);
         let n1 = Fading::nakagami(1.0).unwrap();
         for n in 0..5 {
-            assert!((n1.moment(n) - Fading::Rayleigh.moment(n)).abs() < 1e-9 * Fading::Rayleigh.moment(n));
+            assert!((n1.moment(n) - Fading::RAYLEIGH.moment(n)).abs() < 1e-9 * Fading::RAYLEIGH.moment(n));
         }
         // m = 2: E[h²] = Γ(4)/(Γ(2)·4) = 1.5.
         assert!((Fading::nakagami(2.0).unwrap().moment(2) - 1.5).abs() < 1e-12);
