@@ -9,7 +9,7 @@ use lobemap::geometry::frame::LocalFrame;
 use lobemap::geometry::grid::{BBox, Grid};
 use lobemap::model::antenna::Pattern;
 use lobemap::model::node::Node;
-use lobemap::model::pathloss::{Law, PathLoss};
+use lobemap::model::pathloss::{CloseIn, FreeSpace, PathLoss};
 use lobemap::model::scenario::{Radio, Receiver, Scenario, Thresholds};
 use rand::{RngExt, SeedableRng};
 use std::time::Instant;
@@ -39,7 +39,6 @@ fn layout(nodes: usize, cells_side: usize, exponent: f64, aimed: bool) -> Scenar
     let (w, s) = frame.to_geo(-half, -half);
     let (e, n) = frame.to_geo(half, half);
     let grid = Grid::new(BBox { west: w, south: s, east: e, north: n }, 2.0 * half / cells_side as f64).unwrap();
-    let law = if exponent == 2.0 { Law::FreeSpace } else { Law::CloseIn { exponent } };
     let rx = if aimed {
         Pattern::Sector { beamwidth_deg: 30.0, gain_dbi: 15.0, sidelobe_dbi: -5.0 }
     } else {
@@ -47,8 +46,12 @@ fn layout(nodes: usize, cells_side: usize, exponent: f64, aimed: bool) -> Scenar
     };
     Scenario::from_parts(
         nodes,
-        Radio { frequency_ghz: 28.0, bandwidth_mhz: 400.0, noise_figure_db: 7.0 },
-        PathLoss::new(law, 28.0, 0.0, 1.0, "bench").unwrap(),
+        Radio { bandwidth_mhz: 400.0, noise_figure_db: 7.0 },
+        if exponent == 2.0 {
+            PathLoss::new(FreeSpace, 28.0, 0.0, 1.0).unwrap()
+        } else {
+            PathLoss::new(CloseIn::new(exponent).unwrap(), 28.0, 0.0, 1.0).unwrap()
+        },
         Receiver { height_m: 1.5, pattern: rx, aimed },
         grid,
         Thresholds { sinr_db: 5.0, hotspot_i_over_n_db: 0.0, coverage_target: 0.9 },

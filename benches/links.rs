@@ -7,7 +7,7 @@ use lobemap::model::antenna::Pattern;
 use lobemap::model::fading::Fading;
 use lobemap::model::fading::FadingSpec;
 use lobemap::model::node::Node;
-use lobemap::model::pathloss::{Law, PathLoss};
+use lobemap::model::pathloss::{CloseIn, PathLoss};
 use lobemap::model::scenario::{Radio, Receiver, Scenario, Thresholds};
 use rand::{RngExt, SeedableRng};
 use std::time::Instant;
@@ -41,8 +41,8 @@ fn main() {
     let (e, n) = frame.to_geo(half, half);
     let mut sc = Scenario::from_parts(
         nodes,
-        Radio { frequency_ghz: 60.0, bandwidth_mhz: 2160.0, noise_figure_db: 8.0 },
-        PathLoss::new(Law::CloseIn { exponent: 2.1 }, 60.0, 15.0, 1.0, "bench").unwrap(),
+        Radio { bandwidth_mhz: 2160.0, noise_figure_db: 8.0 },
+        PathLoss::new(CloseIn::new(2.1).unwrap(), 60.0, 15.0, 1.0).unwrap(),
         Receiver { height_m: 5.0, pattern: Pattern::Omni { gain_dbi: 0.0 }, aimed: false },
         Grid::new(BBox { west: w, south: s, east: e, north: n }, 50.0).unwrap(),
         Thresholds { sinr_db: 6.0, hotspot_i_over_n_db: 0.0, coverage_target: 0.9 },

@@ -3,7 +3,7 @@
 //! with a hard core. `cargo bench --bench random`.
 
 use lobemap::model::fading::Fading;
-use lobemap::model::pathloss::{Law, PathLoss};
+use lobemap::model::pathloss::{PathLoss, PowerLaw};
 use lobemap::random::characterise::{Request, characterise};
 use lobemap::random::field::{Field, SectorGain};
 use lobemap::random::montecarlo::simulate;
@@ -24,7 +24,7 @@ fn main() {
         tx: SectorGain::from_db(30.0, 10.0, -10.0),
         rx: SectorGain::from_db(30.0, 10.0, -10.0),
         fading: Fading::RAYLEIGH,
-        pathloss: PathLoss::new(Law::PowerLaw { exponent: 3.0, loss_at_1m_db: 40.0 }, 28.0, 0.0, 1.0, "bench").unwrap(),
+        pathloss: PathLoss::new(PowerLaw::new(3.0, 40.0).unwrap(), 28.0, 0.0, 1.0).unwrap(),
     };
     for (name, fading) in [
         ("none", Fading::NONE),
@@ -32,7 +32,7 @@ fn main() {
         ("rician 6 dB", Fading::rician_db(6.0).unwrap()),
         ("nakagami 2", Fading::nakagami(2.0).unwrap()),
     ] {
-        let f = Field { fading, ..base };
+        let f = Field { fading, ..base.clone() };
         let _ = simulate(&f, 2000, 1);
         let t0 = Instant::now();
         let (_, draws) = simulate(&f, 40_000, 2);

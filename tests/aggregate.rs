@@ -2,7 +2,7 @@
 //! libraries.
 
 use lobemap::model::fading::Fading;
-use lobemap::model::pathloss::{Law, PathLoss};
+use lobemap::model::pathloss::{PathLoss, PowerLaw};
 use lobemap::random::characterise::{GammaFit, Request, characterise};
 use lobemap::random::field::{Field, SectorGain};
 use lobemap::random::montecarlo::simulate;
@@ -20,7 +20,7 @@ fn field(fading: Fading, bw: f64, main: f64, side: f64) -> Field {
         tx: SectorGain::from_db(bw, main, side),
         rx: SectorGain::from_db(bw, main, side),
         fading,
-        pathloss: PathLoss::new(Law::PowerLaw { exponent: 3.0, loss_at_1m_db: 40.0 }, 28.0, 0.0, 1.0, "t").unwrap(),
+        pathloss: PathLoss::new(PowerLaw::new(3.0, 40.0).unwrap(), 28.0, 0.0, 1.0).unwrap(),
     }
 }
 
@@ -92,7 +92,7 @@ fn directional_success_probability_matches_closed_form() {
         radius_m: 20_000.0,
         tx: SectorGain::from_db(30.0, 10.0, -10.0),
         rx: SectorGain::from_db(360.0, 0.0, 0.0),
-        pathloss: PathLoss::new(Law::PowerLaw { exponent: alpha, loss_at_1m_db: 0.0 }, 28.0, 0.0, 1e-3, "t").unwrap(),
+        pathloss: PathLoss::new(PowerLaw::new(alpha, 0.0).unwrap(), 28.0, 0.0, 1e-3).unwrap(),
         ..field(Fading::RAYLEIGH, 360.0, 0.0, 0.0)
     };
     let s: f64 = r.powf(alpha); // T = 1, G₀ = 1
@@ -152,17 +152,17 @@ fn planning_answers_meet_the_target() {
     let p = max_density(&f, -65.0, 0.05);
     let d = p.exact.unwrap();
     let at = |dens: f64| {
-        let g = Field { density_per_m2: dens / 1e6, ..f };
+        let g = Field { density_per_m2: dens / 1e6, ..f.clone() };
         lobemap::random::characterise::Exact::new(&g).sf(lobemap::model::units::dbm_to_mw(-65.0))
     };
     assert!((at(d) - 0.05).abs() < 2e-3 && at(d * 1.05) > 0.05, "{} {}", at(d), at(d * 1.05));
     assert!(p.gamma.is_some());
     // At 3000 per km² a guard is needed (at 10 m the exceedance is above 5 %).
-    let dense = Field { density_per_m2: 3e-3, ..f };
+    let dense = Field { density_per_m2: 3e-3, ..f.clone() };
     let g = min_guard(&dense, -65.0, 0.05);
     let gm = g.exact.unwrap();
     let at_g = |guard: f64| {
-        lobemap::random::characterise::Exact::new(&Field { guard_m: guard, ..dense })
+        lobemap::random::characterise::Exact::new(&Field { guard_m: guard, ..dense.clone() })
             .sf(lobemap::model::units::dbm_to_mw(-65.0))
     };
     assert!(gm > 10.0, "{gm}");

@@ -7,7 +7,7 @@ use lobemap::model::antenna::Pattern;
 use lobemap::model::fading::Fading;
 use lobemap::model::fading::FadingSpec;
 use lobemap::model::node::Node;
-use lobemap::model::pathloss::{Law, PathLoss};
+use lobemap::model::pathloss::{PathLoss, PowerLaw};
 use lobemap::model::scenario::{Radio, Receiver, Scenario, Thresholds};
 use rand::{RngExt, SeedableRng};
 use rand_distr::{Distribution, Poisson};
@@ -22,8 +22,8 @@ fn scenario(
 ) -> Scenario {
     let mut sc = Scenario::from_parts(
         nodes,
-        Radio { frequency_ghz: 3.5, bandwidth_mhz, noise_figure_db: 0.0 },
-        PathLoss::new(Law::PowerLaw { exponent: 4.0, loss_at_1m_db: 0.0 }, 3.5, 0.0, 1.0, "t").unwrap(),
+        Radio { bandwidth_mhz, noise_figure_db: 0.0 },
+        PathLoss::new(PowerLaw::new(4.0, 0.0).unwrap(), 3.5, 0.0, 1.0).unwrap(),
         Receiver { height_m: 10.0, pattern: Pattern::Omni { gain_dbi: 0.0 }, aimed: false },
         Grid::new(bbox, cell_m).unwrap(),
         Thresholds { sinr_db, hotspot_i_over_n_db: 0.0, coverage_target: 0.9 },

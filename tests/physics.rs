@@ -7,7 +7,7 @@ use lobemap::geometry::grid::{BBox, Grid};
 use lobemap::jobs::probe::probe;
 use lobemap::model::antenna::Pattern;
 use lobemap::model::node::Node;
-use lobemap::model::pathloss::{Law, PathLoss};
+use lobemap::model::pathloss::{FreeSpace, PathLoss, PowerLaw};
 use lobemap::model::scenario::{Radio, Receiver, Scenario, Thresholds};
 use rand::{RngExt, SeedableRng};
 use rand_distr::{Distribution, Poisson};
@@ -30,7 +30,7 @@ fn node(id: &str, lon: f64, lat: f64, az: f64, pattern: Pattern, power_dbm: f64,
 fn scenario(nodes: Vec<Node>, pathloss: PathLoss, bbox: BBox, cell_m: f64, rx_height: f64) -> Scenario {
     Scenario::from_parts(
         nodes,
-        Radio { frequency_ghz: pathloss.frequency_ghz(), bandwidth_mhz: 100.0, noise_figure_db: 7.0 },
+        Radio { bandwidth_mhz: 100.0, noise_figure_db: 7.0 },
         pathloss,
         Receiver { height_m: rx_height, pattern: Pattern::Omni { gain_dbi: 0.0 }, aimed: false },
         Grid::new(bbox, cell_m).unwrap(),
@@ -56,7 +56,7 @@ fn probe_matches_hand_calculation() {
     let sector = Pattern::Sector { beamwidth_deg: 30.0, gain_dbi: 20.0, sidelobe_dbi: -5.0 };
     let nodes =
         vec![node("A", a.x(), a.y(), 270.0, sector, 20.0, 10.0), node("B", b.x(), b.y(), 90.0, sector, 20.0, 10.0)];
-    let pl = PathLoss::new(Law::FreeSpace, 28.0, 0.0, 1.0, "t").unwrap();
+    let pl = PathLoss::new(FreeSpace, 28.0, 0.0, 1.0).unwrap();
     let sc = scenario(nodes, pl, BBox { west: 7.99, south: 49.99, east: 8.02, north: 50.01 }, 20.0, 10.0);
     let r = probe(&sc, 50.0, 8.0);
     // 1e-4 relative distance error (plane vs geodesic) is below 0.001 dB; 0.005 dB tolerance.
@@ -121,7 +121,7 @@ fn campbell_mean_of_total_over_poisson_field() {
     let q = bw / 360.0;
     let (gml, gsl) = (10f64.powf(gm / 10.0), 10f64.powf(gs / 10.0));
     let (eg, eg2) = (q * gml + (1.0 - q) * gsl, q * gml * gml + (1.0 - q) * gsl * gsl);
-    let pl = PathLoss::new(Law::PowerLaw { exponent: 4.0, loss_at_1m_db: 0.0 }, 2.4, 0.0, d0, "t").unwrap();
+    let pl = PathLoss::new(PowerLaw::new(4.0, 0.0).unwrap(), 2.4, 0.0, d0).unwrap();
     let centre = (10.0, 40.0);
     let frame = LocalFrame::new(centre.1, centre.0);
     let half = 500.0;
@@ -138,7 +138,7 @@ fn campbell_mean_of_total_over_poisson_field() {
             node(&k.to_string(), lon, lat, rng.random::<f64>() * 360.0, pattern, 0.0, 2.0)
         })
         .collect();
-    let sc = scenario(nodes, pl, bbox, 20.0, 2.0);
+    let sc = scenario(nodes, pl.clone(), bbox, 20.0, 2.0);
     let only_total = LayerSet::TOTAL;
     let tot = Engine::new(&sc).run(&Options { layers: only_total, cutoff_m: None, progress: false }).total.unwrap();
     let cells = tot.len() as f64;
@@ -152,7 +152,7 @@ fn campbell_mean_of_total_over_poisson_field() {
         (g.lon_of_col(g.cols() / 2) - g.dlon() / 2.0, g.lat_of_row(g.rows() / 2) + g.dlat() / 2.0),
     ] {
         let one = vec![node("x", lon, lat, 0.0, Pattern::Omni { gain_dbi: 0.0 }, 0.0, 2.0)];
-        let sc1 = scenario(one, pl, bbox, 20.0, 2.0);
+        let sc1 = scenario(one, pl.clone(), bbox, 20.0, 2.0);
         let t1 = Engine::new(&sc1).run(&Options { layers: only_total, cutoff_m: None, progress: false }).total.unwrap();
         sup_phi = sup_phi.max(t1.iter().map(|v| 10f64.powf(*v as f64 / 10.0)).sum::<f64>() / cells);
     }

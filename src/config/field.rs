@@ -90,41 +90,27 @@ impl FieldSpec {
                 p.push(Problem::flag(flag, e.message))
             })
             .ok();
-        let law = match self.model.as_str() {
-            "free-space" => Some(crate::model::pathloss::Law::FreeSpace),
-            "close-in" => Some(crate::model::pathloss::Law::CloseIn { exponent: self.exponent }),
-            "power-law" => Some(crate::model::pathloss::Law::PowerLaw {
-                exponent: self.exponent,
-                loss_at_1m_db: self.loss_at_1m_db,
-            }),
-            other => {
-                p.push(Problem::new(
-                    "(command line)",
-                    None,
-                    "--model",
-                    format!("value `{other}` is not one of free-space, close-in, power-law"),
-                ));
-                None
-            }
+        // Only the parameters the named law takes are passed (the others have defaults).
+        use crate::model::pathloss::{LAWS, LawParams, PathLoss};
+        let takes = |k: &str| LAWS.iter().any(|e| e.name == self.model && e.takes.contains(&k));
+        let params = LawParams {
+            exponent: takes("exponent").then_some(self.exponent),
+            loss_at_1m_db: takes("loss_at_1m_db").then_some(self.loss_at_1m_db),
         };
-        let pl = law.and_then(|law| {
-            crate::model::pathloss::PathLoss::new(
-                law,
-                self.frequency_ghz,
-                self.absorption_db_per_km,
-                self.min_distance_m,
-                "(command line)",
-            )
-            .map_err(|e| {
-                for mut q in e {
-                    q.field = format!("--{}", q.field.replace('_', "-"));
-                    q.feature = None;
-                    p.push(q);
-                }
-            })
-            .ok()
-        });
-        if law.is_some() && pl.is_some() && self.exponent <= 2.0 && self.model != "free-space" && self.radius_m > 1e5 {
+        let pl = PathLoss::from_name(
+            &self.model,
+            &params,
+            self.frequency_ghz,
+            self.absorption_db_per_km,
+            self.min_distance_m,
+        )
+        .map_err(|e| {
+            for q in e {
+                p.push(Problem::flag(flag_of(q.key), q.message));
+            }
+        })
+        .ok();
+        if pl.is_some() && self.exponent <= 2.0 && self.model != "free-space" && self.radius_m > 1e5 {
             p.push(Problem::new(
                 "(command line)",
                 None,
@@ -177,6 +163,18 @@ impl FieldSpec {
             }
         }
         Ok(s)
+    }
+}
+
+/// The command-line flag of a model parameter.
+fn flag_of(key: &str) -> &'static str {
+    match key {
+        "exponent" => "--exponent",
+        "loss_at_1m_db" => "--loss-at-1m-db",
+        "frequency_ghz" => "--frequency-ghz",
+        "absorption_db_per_km" => "--absorption-db-per-km",
+        "min_distance_m" => "--min-distance-m",
+        _ => "--model",
     }
 }
 
@@ -241,7 +239,6 @@ impl FieldSpec {
     ) -> Result<FieldSpec, crate::Error> {
         use crate::model::antenna::Pattern;
         use crate::model::fading::FadingKind;
-        use crate::model::pathloss::Law;
         let node0 = sc.and_then(|s| s.nodes.first());
         let (sc_bw, sc_g, sc_s, sc_p) = match node0.map(|n| (n.pattern, n.power_dbm)) {
             Some((Pattern::Sector { beamwidth_deg, gain_dbi, sidelobe_dbi }, p)) => {
@@ -261,11 +258,9 @@ impl FieldSpec {
             Some(Pattern::Omni { gain_dbi }) => (Some(360.0), Some(gain_dbi), Some(gain_dbi)),
             _ => (None, None, None),
         };
-        let pl = sc.map(|s| s.pathloss);
+        let pl = sc.map(|s| &s.pathloss);
         let (model, exponent, l1) = match pl.map(|p| p.law()) {
-            Some(Law::FreeSpace) => ("free-space", 2.0, 0.0),
-            Some(Law::CloseIn { exponent }) => ("close-in", exponent, 0.0),
-            Some(Law::PowerLaw { exponent, loss_at_1m_db }) => ("power-law", exponent, loss_at_1m_db),
+            Some(law) => (law.name(), law.exponent(), law.params().loss_at_1m_db.unwrap_or(0.0)),
             None => ("close-in", 3.0, 40.0),
         };
         let gain = a.gain_dbi.or(sc_g).unwrap_or(0.0);

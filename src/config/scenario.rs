@@ -11,7 +11,7 @@ use crate::geometry::frame::LocalFrame;
 use crate::geometry::grid::{BBox, Grid};
 use crate::model::antenna::Pattern;
 use crate::model::fading::FadingSpec;
-use crate::model::pathloss::{Law, PathLoss};
+use crate::model::pathloss::{LawParams, PathLoss};
 use crate::model::scenario::{InstallSettings, LinkSettings, Radio, Receiver, Scenario, Thresholds};
 use std::path::Path;
 
@@ -157,50 +157,21 @@ impl Scenario {
             },
         };
         let p = &raw.propagation;
-        let law = match p.model.as_str() {
-            "free-space" => Some(Law::FreeSpace),
-            "close-in" => Some(Law::CloseIn { exponent: p.exponent.unwrap_or(f64::NAN) }),
-            "power-law" => Some(Law::PowerLaw {
-                exponent: p.exponent.unwrap_or(f64::NAN),
-                loss_at_1m_db: p.loss_at_1m_db.unwrap_or(f64::NAN),
-            }),
-            other => {
-                probs.push(Problem::new(
-                    &file,
-                    Some("[propagation]".into()),
-                    "model",
-                    format!("value `{other}` is not one of `free-space`, `close-in`, `power-law`"),
-                ));
-                None
+        let params = LawParams { exponent: p.exponent, loss_at_1m_db: p.loss_at_1m_db };
+        let pathloss = PathLoss::from_name(
+            &p.model,
+            &params,
+            r.frequency_ghz,
+            p.absorption_db_per_km.unwrap_or(0.0),
+            p.min_distance_m.unwrap_or(1.0),
+        )
+        .map_err(|e| {
+            for q in e {
+                let table = if q.key == "frequency_ghz" { "[radio]" } else { "[propagation]" };
+                probs.push(Problem::new(&file, Some(table.into()), q.key, q.message));
             }
-        };
-        if p.model == "free-space" && p.exponent.is_some_and(|n| n != 2.0) {
-            probs.push(Problem::new(
-                &file,
-                Some("[propagation]".into()),
-                "exponent",
-                "free-space has exponent 2; use `close-in` for another exponent",
-            ));
-        }
-        if p.model != "power-law" && p.loss_at_1m_db.is_some() {
-            probs.push(Problem::new(
-                &file,
-                Some("[propagation]".into()),
-                "loss_at_1m_db",
-                "only used by `power-law`; the other models derive it from the frequency",
-            ));
-        }
-        let pathloss = law.and_then(|law| {
-            PathLoss::new(
-                law,
-                r.frequency_ghz,
-                p.absorption_db_per_km.unwrap_or(0.0),
-                p.min_distance_m.unwrap_or(1.0),
-                &file,
-            )
-            .map_err(|e| probs.0.extend(e))
-            .ok()
-        });
+        })
+        .ok();
 
         let dir = path.parent().unwrap_or(Path::new("."));
         let nodes_path = dir.join(&raw.nodes);
@@ -273,11 +244,7 @@ impl Scenario {
             path: path.to_path_buf(),
             nodes_path,
             nodes,
-            radio: Radio {
-                frequency_ghz: r.frequency_ghz,
-                bandwidth_mhz: r.bandwidth_mhz,
-                noise_figure_db: r.noise_figure_db,
-            },
+            radio: Radio { bandwidth_mhz: r.bandwidth_mhz, noise_figure_db: r.noise_figure_db },
             pathloss,
             receiver: Receiver { height_m: rx_height, pattern: receiver_pattern, aimed },
             grid,

@@ -56,7 +56,7 @@ pub fn html(sc: &Scenario, links: &[LinkRow], sheet: &InstallSheet, maps: &[MapI
         esc(&sc.name),
         sc.nodes.len(),
         links.len(),
-        sc.radio.frequency_ghz,
+        sc.pathloss.frequency_ghz(),
         sc.radio.bandwidth_mhz,
         sc.noise_dbm(),
         sc.thresholds.sinr_db,

@@ -100,7 +100,7 @@ pub struct InstallSheet {
 
 /// Builds the sheet; fails only if the magnetic model rejects a place or date.
 pub fn sheet(sc: &Scenario) -> Result<InstallSheet, String> {
-    let (limit, name) = reference_level(sc.radio.frequency_ghz);
+    let (limit, name) = reference_level(sc.pathloss.frequency_ghz());
     let date = sc.install.declination_date;
     let index: std::collections::HashMap<&str, usize> =
         sc.nodes.iter().enumerate().map(|(i, n)| (n.id.as_str(), i)).collect();

@@ -11,11 +11,10 @@ use crate::model::node::Node;
 use crate::model::pathloss::PathLoss;
 use std::path::PathBuf;
 
-/// `[radio]`.
+/// `[radio]`: the receiver's noise bandwidth and figure (the carrier frequency is the path-loss
+/// model's, [`PathLoss::frequency_ghz`], so there is one).
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub struct Radio {
-    /// Carrier frequency, GHz.
-    pub frequency_ghz: f64,
     /// Receiver noise bandwidth, MHz.
     pub bandwidth_mhz: f64,
     /// Receiver noise figure, dB.

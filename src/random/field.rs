@@ -52,7 +52,7 @@ impl SectorGain {
 }
 
 /// The random-field model.
-#[derive(Debug, Clone, Copy, PartialEq)]
+#[derive(Debug, Clone)]
 pub struct Field {
     /// Parent density, per m².
     pub density_per_m2: f64,
@@ -213,7 +213,7 @@ impl Field {
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::model::pathloss::Law;
+    use crate::model::pathloss::PowerLaw;
 
     fn field(alpha: f64, guard: f64, radius: f64) -> Field {
         Field {
@@ -226,8 +226,7 @@ mod tests {
             tx: SectorGain::from_db(360.0, 0.0, 0.0),
             rx: SectorGain::from_db(360.0, 0.0, 0.0),
             fading: Fading::RAYLEIGH,
-            pathloss: PathLoss::new(Law::PowerLaw { exponent: alpha, loss_at_1m_db: 0.0 }, 2.0, 0.0, 1e-3, "t")
-                .unwrap(),
+            pathloss: PathLoss::new(PowerLaw::new(alpha, 0.0).unwrap(), 2.0, 0.0, 1e-3).unwrap(),
         }
     }
 

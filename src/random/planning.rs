@@ -48,7 +48,7 @@ fn gamma_sf(f: &Field, x_mw: f64) -> f64 {
 /// The highest parent density (per km²) with P(I > budget) ≤ outage.
 pub fn max_density(field: &Field, budget_dbm: f64, outage: f64) -> PlanAnswer {
     let x = dbm_to_mw(budget_dbm);
-    let with = |d: f64| Field { density_per_m2: d / 1e6, ..*field };
+    let with = |d: f64| Field { density_per_m2: d / 1e6, ..field.clone() };
     let exact_ok = |d: f64| Exact::new(&with(d)).sf(x) <= outage;
     let gamma_ok = |d: f64| gamma_sf(&with(d), x) <= outage;
     let search = |ok: &dyn Fn(f64) -> bool| -> Option<f64> {
@@ -92,7 +92,7 @@ pub fn max_density(field: &Field, budget_dbm: f64, outage: f64) -> PlanAnswer {
 /// The smallest guard radius (m) with P(I > budget) ≤ outage at the field's density.
 pub fn min_guard(field: &Field, budget_dbm: f64, outage: f64) -> PlanAnswer {
     let x = dbm_to_mw(budget_dbm);
-    let with = |g: f64| Field { guard_m: g, ..*field };
+    let with = |g: f64| Field { guard_m: g, ..field.clone() };
     let exact_ok = |g: f64| Exact::new(&with(g)).sf(x) <= outage;
     let gamma_ok = |g: f64| gamma_sf(&with(g), x) <= outage;
     let r = field.radius_m;

@@ -1,22 +1,35 @@
-//! Path-loss models: free space, close-in free-space reference, plain power law, with
-//! optional gaseous absorption and a minimum-distance clamp.
+//! Path-loss models: one distance law per file (free space, close-in, power law) behind the
+//! [`DistanceLaw`] trait, with gaseous absorption and a minimum-distance clamp in
+//! [`PathLoss`].
 //!
-//! Every model has the form L(d) = K · d^n · exp(β d) (linear), d in metres clamped below at
-//! `min_distance_m`, which is what the engine's kernels evaluate.
+//! Every law lowers to L(d) = K · d^n (linear; K the loss at 1 m, n the exponent), and
+//! [`PathLoss`] adds exp(β d) for absorption, d in metres clamped below at `min_distance_m`:
+//! that is the form the engine's kernels, the random field's closed-form cumulants and the
+//! Monte Carlo evaluate. A new law is a new file with a type implementing [`DistanceLaw`] and
+//! an [`Entry`], plus one line in [`LAWS`].
 //!
 //! # Units
 //! Distances in metres, frequencies in GHz, losses in dB at the interface.
 //!
 //! # References
-//! - ITU-R P.525-4, "Calculation of free-space attenuation": L = 20 log10(4π d / λ). We use the
-//!   exact constant 20 log10(4π·10⁹/c) = 32.4478 dB (d in km, f in MHz) rather than the
-//!   rounded 32.44 / 32.4; the difference to 32.44 is 0.008 dB.
-//! - S. Sun et al., "Investigation of prediction accuracy, sensitivity, and parameter
-//!   stability of large-scale propagation path loss models for 5G wireless communications",
-//!   IEEE Trans. Veh. Technol. 65(5), 2016 (close-in model; from memory).
+//! - ITU-R P.525-4 (free space; see [`free_space`]).
 //! - ITU-R P.676 for gaseous absorption (user-supplied dB/km).
 
-use crate::error::Problem;
+use crate::error::ModelError;
+use std::fmt;
+use std::sync::Arc;
+
+mod close_in;
+mod free_space;
+mod power_law;
+
+pub use close_in::CloseIn;
+pub use free_space::FreeSpace;
+pub use power_law::PowerLaw;
+
+/// Every distance law, by name: scenario files (`[propagation] model`) and the command line
+/// (`--model`) look laws up here.
+pub const LAWS: &[Entry] = &[free_space::ENTRY, close_in::ENTRY, power_law::ENTRY];
 
 /// Speed of light in vacuum, m/s (SI definition).
 pub const SPEED_OF_LIGHT: f64 = 299_792_458.0;
@@ -26,88 +39,154 @@ pub fn fspl_1m_db(frequency_ghz: f64) -> f64 {
     20.0 * (4.0 * std::f64::consts::PI * frequency_ghz * 1e9 / SPEED_OF_LIGHT).log10()
 }
 
-/// Which distance law the model follows.
-#[derive(Debug, Clone, Copy, PartialEq)]
-pub enum Law {
-    /// Free space (ITU-R P.525): exponent 2 with the free-space constant.
-    FreeSpace,
-    /// Close-in free-space reference: FSPL(f, 1 m) + 10 n log10(d / 1 m).
-    CloseIn {
-        /// Path-loss exponent n.
-        exponent: f64,
-    },
-    /// Plain power law: loss_at_1m_db + 10 n log10(d / 1 m).
-    PowerLaw {
-        /// Path-loss exponent n.
-        exponent: f64,
-        /// Loss at 1 m, dB.
-        loss_at_1m_db: f64,
-    },
+/// A distance law L(d) = L(1 m) + 10 n log10(d / 1 m).
+pub trait DistanceLaw: fmt::Debug + Send + Sync {
+    /// The law's name in scenario files and on the command line.
+    fn name(&self) -> &'static str;
+    /// Loss at the 1 m reference distance at `frequency_ghz`, dB.
+    fn loss_at_1m_db(&self, frequency_ghz: f64) -> f64;
+    /// The exponent n.
+    fn exponent(&self) -> f64;
+    /// The parameters the law was built from (to echo them and to rebuild it).
+    fn params(&self) -> LawParams;
 }
 
-/// A validated path-loss model.
-#[derive(Debug, Clone, Copy, PartialEq)]
-pub struct PathLoss {
-    law: Law,
-    frequency_ghz: f64,
-    absorption_db_per_km: f64,
-    min_distance_m: f64,
+/// A law's parameters as given; each law says which it takes ([`Entry::takes`]).
+#[derive(Debug, Clone, Copy, Default, PartialEq)]
+pub struct LawParams {
+    /// Path-loss exponent n.
+    pub exponent: Option<f64>,
+    /// Loss at 1 m, dB.
+    pub loss_at_1m_db: Option<f64>,
+}
+
+/// What a law's builder returns.
+pub type Built = Result<Arc<dyn DistanceLaw>, Vec<ModelError>>;
+
+/// A law in the registry: its name, the parameters it takes, and its validating builder.
+#[derive(Clone, Copy)]
+pub struct Entry {
+    /// Name in files and on the command line.
+    pub name: &'static str,
+    /// Keys of [`LawParams`] the law takes.
+    pub takes: &'static [&'static str],
+    /// Builds the law, checking its parameters.
+    pub build: fn(&LawParams) -> Built,
+}
+
+/// The law named `name`, built from `params` (key `model` for an unknown name).
+pub fn law_by_name(name: &str, params: &LawParams) -> Built {
+    match LAWS.iter().find(|e| e.name == name) {
+        Some(e) => (e.build)(params),
+        None => Err(vec![ModelError {
+            key: "model",
+            message: format!(
+                "value `{name}` is not one of {}",
+                LAWS.iter().map(|e| format!("`{}`", e.name)).collect::<Vec<_>>().join(", ")
+            ),
+        }]),
+    }
 }
 
 /// Allowed range of path-loss exponents.
 pub const EXPONENT_RANGE: (f64, f64) = (1.0, 8.0);
 
+pub(crate) fn check_exponent(n: f64) -> Result<(), ModelError> {
+    if n.is_finite() && n >= EXPONENT_RANGE.0 && n <= EXPONENT_RANGE.1 {
+        Ok(())
+    } else {
+        Err(ModelError::out_of_range("exponent", n, "[1, 8]"))
+    }
+}
+
+pub(crate) fn loss_at_1m_not_used() -> ModelError {
+    ModelError {
+        key: "loss_at_1m_db",
+        message: "only used by `power-law`; the other models derive it from the frequency".into(),
+    }
+}
+
+/// A validated path-loss model: a distance law at a carrier frequency, with absorption and
+/// a minimum distance.
+#[derive(Debug, Clone)]
+pub struct PathLoss {
+    law: Arc<dyn DistanceLaw>,
+    frequency_ghz: f64,
+    loss_at_1m_db: f64,
+    absorption_db_per_km: f64,
+    min_distance_m: f64,
+}
+
 impl PathLoss {
-    /// Builds a model, checking every parameter; problems name `file` and the `[propagation]`
-    /// field.
+    /// Builds a model, checking the frequency ([0.1, 300] GHz), the absorption ([0, 100]
+    /// dB/km) and the minimum distance ((0, 1000] m).
+    ///
+    /// ```
+    /// use lobemap::model::pathloss::{FreeSpace, PathLoss};
+    /// let pl = PathLoss::new(FreeSpace, 28.0, 0.0, 1.0).unwrap();
+    /// assert!((pl.loss_db(1000.0) - 121.391).abs() < 1e-3); // ITU-R P.525
+    /// ```
     pub fn new(
-        law: Law,
+        law: impl DistanceLaw + 'static,
         frequency_ghz: f64,
         absorption_db_per_km: f64,
         min_distance_m: f64,
-        file: &str,
-    ) -> Result<Self, Vec<Problem>> {
-        let mut probs = Vec::new();
-        let mut bad = |field: &str, v: f64, range: &str| {
-            probs.push(Problem::new(
-                file,
-                Some("[propagation]".into()),
-                field,
-                format!("value {v} is outside the allowed range {range}"),
-            ))
-        };
-        if !(frequency_ghz.is_finite() && (0.1..=300.0).contains(&frequency_ghz)) {
-            bad("frequency_ghz", frequency_ghz, "[0.1, 300] GHz");
-        }
-        if !(absorption_db_per_km.is_finite() && (0.0..=100.0).contains(&absorption_db_per_km)) {
-            bad("absorption_db_per_km", absorption_db_per_km, "[0, 100] dB/km");
-        }
-        if !(min_distance_m.is_finite() && min_distance_m > 0.0 && min_distance_m <= 1000.0) {
-            bad("min_distance_m", min_distance_m, "(0, 1000] m");
-        }
-        match law {
-            Law::FreeSpace => {}
-            Law::CloseIn { exponent } | Law::PowerLaw { exponent, .. } => {
-                if !(exponent.is_finite() && exponent >= EXPONENT_RANGE.0 && exponent <= EXPONENT_RANGE.1) {
-                    bad("exponent", exponent, "[1, 8]");
-                }
-            }
-        }
-        if let Law::PowerLaw { loss_at_1m_db, .. } = law
-            && !(loss_at_1m_db.is_finite() && (0.0..=200.0).contains(&loss_at_1m_db))
-        {
-            bad("loss_at_1m_db", loss_at_1m_db, "[0, 200] dB");
-        }
-        if probs.is_empty() {
-            Ok(PathLoss { law, frequency_ghz, absorption_db_per_km, min_distance_m })
-        } else {
-            Err(probs)
+    ) -> Result<Self, Vec<ModelError>> {
+        Self::with_law(Arc::new(law), frequency_ghz, absorption_db_per_km, min_distance_m)
+    }
+
+    /// Like [`Self::new`] with the law looked up by name; every problem is reported.
+    pub fn from_name(
+        name: &str,
+        params: &LawParams,
+        frequency_ghz: f64,
+        absorption_db_per_km: f64,
+        min_distance_m: f64,
+    ) -> Result<Self, Vec<ModelError>> {
+        let common = Self::check_common(frequency_ghz, absorption_db_per_km, min_distance_m);
+        match (law_by_name(name, params), common.is_empty()) {
+            (Ok(law), true) => Self::with_law(law, frequency_ghz, absorption_db_per_km, min_distance_m),
+            (Ok(_), false) => Err(common),
+            (Err(e), _) => Err(common.into_iter().chain(e).collect()),
         }
     }
 
+    fn check_common(frequency_ghz: f64, absorption_db_per_km: f64, min_distance_m: f64) -> Vec<ModelError> {
+        let mut errs = Vec::new();
+        if !(frequency_ghz.is_finite() && (0.1..=300.0).contains(&frequency_ghz)) {
+            errs.push(ModelError::out_of_range("frequency_ghz", frequency_ghz, "[0.1, 300] GHz"));
+        }
+        if !(absorption_db_per_km.is_finite() && (0.0..=100.0).contains(&absorption_db_per_km)) {
+            errs.push(ModelError::out_of_range("absorption_db_per_km", absorption_db_per_km, "[0, 100] dB/km"));
+        }
+        if !(min_distance_m.is_finite() && min_distance_m > 0.0 && min_distance_m <= 1000.0) {
+            errs.push(ModelError::out_of_range("min_distance_m", min_distance_m, "(0, 1000] m"));
+        }
+        errs
+    }
+
+    fn with_law(
+        law: Arc<dyn DistanceLaw>,
+        frequency_ghz: f64,
+        absorption_db_per_km: f64,
+        min_distance_m: f64,
+    ) -> Result<Self, Vec<ModelError>> {
+        let errs = Self::check_common(frequency_ghz, absorption_db_per_km, min_distance_m);
+        if !errs.is_empty() {
+            return Err(errs);
+        }
+        let loss_at_1m_db = law.loss_at_1m_db(frequency_ghz);
+        Ok(PathLoss { law, frequency_ghz, loss_at_1m_db, absorption_db_per_km, min_distance_m })
+    }
+
+    /// The same model with the minimum distance changed (checked as in [`Self::new`]).
+    pub fn with_min_distance(&self, min_distance_m: f64) -> Result<Self, Vec<ModelError>> {
+        Self::with_law(self.law.clone(), self.frequency_ghz, self.absorption_db_per_km, min_distance_m)
+    }
+
     /// The distance law.
-    pub fn law(&self) -> Law {
-        self.law
+    pub fn law(&self) -> &dyn DistanceLaw {
+        self.law.as_ref()
     }
     /// Minimum distance (clamp) in metres.
     pub fn min_distance_m(&self) -> f64 {
@@ -124,18 +203,12 @@ impl PathLoss {
 
     /// Path-loss exponent n.
     pub fn exponent(&self) -> f64 {
-        match self.law {
-            Law::FreeSpace => 2.0,
-            Law::CloseIn { exponent } | Law::PowerLaw { exponent, .. } => exponent,
-        }
+        self.law.exponent()
     }
 
     /// Loss at the 1 m reference distance without absorption, dB.
     pub fn loss_at_1m_db(&self) -> f64 {
-        match self.law {
-            Law::FreeSpace | Law::CloseIn { .. } => fspl_1m_db(self.frequency_ghz),
-            Law::PowerLaw { loss_at_1m_db, .. } => loss_at_1m_db,
-        }
+        self.loss_at_1m_db
     }
 
     /// Absorption coefficient β in 1/m such that the linear loss factor is exp(β d).
@@ -160,7 +233,7 @@ mod tests {
     use super::*;
 
     fn fs(f: f64) -> PathLoss {
-        PathLoss::new(Law::FreeSpace, f, 0.0, 0.1, "t").unwrap()
+        PathLoss::new(FreeSpace, f, 0.0, 0.1).unwrap()
     }
 
     // ITU-R P.525 free-space values computed with the constant 32.44 (shared model notes,
@@ -178,7 +251,7 @@ mod tests {
     // Close-in model definition (Sun et al. 2016): FSPL(f, 1 m) + 10 n log10(d).
     #[test]
     fn close_in_adds_10n_per_decade() {
-        let m = PathLoss::new(Law::CloseIn { exponent: 2.9 }, 28.0, 0.0, 1.0, "t").unwrap();
+        let m = PathLoss::new(CloseIn::new(2.9).unwrap(), 28.0, 0.0, 1.0).unwrap();
         assert!((m.loss_db(1.0) - fspl_1m_db(28.0)).abs() < 1e-12);
         assert!((m.loss_db(100.0) - m.loss_db(10.0) - 29.0).abs() < 1e-9);
     }
@@ -186,7 +259,7 @@ mod tests {
     // Absorption adds a * d_km (ITU-R P.676 usage; 15 dB/km near 60 GHz from memory).
     #[test]
     fn absorption_and_clamp() {
-        let m = PathLoss::new(Law::PowerLaw { exponent: 3.0, loss_at_1m_db: 40.0 }, 60.0, 15.0, 2.0, "t").unwrap();
+        let m = PathLoss::new(PowerLaw::new(3.0, 40.0).unwrap(), 60.0, 15.0, 2.0).unwrap();
         assert!((m.loss_db(500.0) - (40.0 + 30.0 * 500f64.log10() + 7.5)).abs() < 1e-9);
         assert_eq!(m.loss_db(0.5), m.loss_db(2.0));
         // exp(beta d) equals the dB absorption.
@@ -195,8 +268,8 @@ mod tests {
 
     #[test]
     fn rejects_out_of_range() {
-        let e = PathLoss::new(Law::CloseIn { exponent: f64::NAN }, 500.0, -1.0, 0.0, "s.toml").unwrap_err();
+        let e = PathLoss::from_name("close-in", &LawParams::default(), 500.0, -1.0, 0.0).unwrap_err();
         assert_eq!(e.len(), 4);
-        assert!(e.iter().any(|p| p.field == "exponent"));
+        assert!(e.iter().any(|p| p.key == "exponent"));
     }
 }
