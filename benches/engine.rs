@@ -7,10 +7,10 @@
 use lobemap::engine::{Engine, LayerSet, Options};
 use lobemap::geometry::frame::LocalFrame;
 use lobemap::geometry::grid::{BBox, Grid};
-use lobemap::model::antenna::Pattern;
+use lobemap::model::antenna::{Pattern, Sector};
 use lobemap::model::node::Node;
 use lobemap::model::pathloss::{CloseIn, FreeSpace, PathLoss};
-use lobemap::model::scenario::{Radio, Receiver, Scenario, Thresholds};
+use lobemap::model::scenario::{Radio, Receiver, ReceiverAntenna, Scenario, Thresholds};
 use rand::{RngExt, SeedableRng};
 use std::time::Instant;
 
@@ -18,7 +18,7 @@ fn layout(nodes: usize, cells_side: usize, exponent: f64, aimed: bool) -> Scenar
     let frame = LocalFrame::new(45.0, 7.0);
     let half = 2000.0;
     let mut rng = rand_pcg::Pcg64::seed_from_u64(1);
-    let pattern = Pattern::Sector { beamwidth_deg: 30.0, gain_dbi: 20.0, sidelobe_dbi: -5.0 };
+    let pattern = Pattern::sector(30.0, 20.0, -5.0).unwrap();
     let nodes = (0..nodes)
         .map(|k| {
             let (lon, lat) = frame.to_geo(rng.random_range(-half..half), rng.random_range(-half..half));
@@ -40,9 +40,9 @@ fn layout(nodes: usize, cells_side: usize, exponent: f64, aimed: bool) -> Scenar
     let (e, n) = frame.to_geo(half, half);
     let grid = Grid::new(BBox { west: w, south: s, east: e, north: n }, 2.0 * half / cells_side as f64).unwrap();
     let rx = if aimed {
-        Pattern::Sector { beamwidth_deg: 30.0, gain_dbi: 15.0, sidelobe_dbi: -5.0 }
+        ReceiverAntenna::Aimed(Sector::new(30.0, 15.0, -5.0).unwrap())
     } else {
-        Pattern::Omni { gain_dbi: 0.0 }
+        ReceiverAntenna::Omni { gain_dbi: 0.0 }
     };
     Scenario::from_parts(
         nodes,
@@ -52,7 +52,7 @@ fn layout(nodes: usize, cells_side: usize, exponent: f64, aimed: bool) -> Scenar
         } else {
             PathLoss::new(CloseIn::new(exponent).unwrap(), 28.0, 0.0, 1.0).unwrap()
         },
-        Receiver { height_m: 1.5, pattern: rx, aimed },
+        Receiver { height_m: 1.5, antenna: rx },
         grid,
         Thresholds { sinr_db: 5.0, hotspot_i_over_n_db: 0.0, coverage_target: 0.9 },
     )

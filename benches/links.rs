@@ -8,7 +8,7 @@ use lobemap::model::fading::Fading;
 use lobemap::model::fading::FadingSpec;
 use lobemap::model::node::Node;
 use lobemap::model::pathloss::{CloseIn, PathLoss};
-use lobemap::model::scenario::{Radio, Receiver, Scenario, Thresholds};
+use lobemap::model::scenario::{Radio, Receiver, ReceiverAntenna, Scenario, Thresholds};
 use rand::{RngExt, SeedableRng};
 use std::time::Instant;
 
@@ -16,7 +16,7 @@ fn main() {
     let frame = LocalFrame::new(52.0, 5.0);
     let mut rng = rand_pcg::Pcg64::seed_from_u64(3);
     let half = 3000.0;
-    let pattern = Pattern::Parabolic { beamwidth_deg: 3.0, gain_dbi: 34.0, floor_dbi: -5.0 };
+    let pattern = Pattern::parabolic(3.0, 34.0, -5.0).unwrap();
     let mut nodes: Vec<Node> = (0..5000)
         .map(|k| {
             let (lon, lat) = frame.to_geo(rng.random_range(-half..half), rng.random_range(-half..half));
@@ -43,7 +43,7 @@ fn main() {
         nodes,
         Radio { bandwidth_mhz: 2160.0, noise_figure_db: 8.0 },
         PathLoss::new(CloseIn::new(2.1).unwrap(), 60.0, 15.0, 1.0).unwrap(),
-        Receiver { height_m: 5.0, pattern: Pattern::Omni { gain_dbi: 0.0 }, aimed: false },
+        Receiver { height_m: 5.0, antenna: ReceiverAntenna::Omni { gain_dbi: 0.0 } },
         Grid::new(BBox { west: w, south: s, east: e, north: n }, 50.0).unwrap(),
         Thresholds { sinr_db: 6.0, hotspot_i_over_n_db: 0.0, coverage_target: 0.9 },
     );

@@ -2,10 +2,11 @@
 //! Carlo (cumulants, gamma, exact CDF table and quantiles), and drawing a million points
 //! with a hard core. `cargo bench --bench random`.
 
+use lobemap::model::antenna::GainLaw;
 use lobemap::model::fading::Fading;
 use lobemap::model::pathloss::{PathLoss, PowerLaw};
 use lobemap::random::characterise::{Request, characterise};
-use lobemap::random::field::{Field, SectorGain};
+use lobemap::random::field::Field;
 use lobemap::random::montecarlo::simulate;
 use lobemap::random::points::{Window, poisson, thin_matern_ii};
 use rand::SeedableRng;
@@ -21,8 +22,8 @@ fn main() {
         guard_m: 10.0,
         radius_m: 1000.0,
         power_mw: 1.0,
-        tx: SectorGain::from_db(30.0, 10.0, -10.0),
-        rx: SectorGain::from_db(30.0, 10.0, -10.0),
+        tx: GainLaw::two_level(30.0 / 360.0, 10.0, -10.0),
+        rx: GainLaw::two_level(30.0 / 360.0, 10.0, -10.0),
         fading: Fading::RAYLEIGH,
         pathloss: PathLoss::new(PowerLaw::new(3.0, 40.0).unwrap(), 28.0, 0.0, 1.0).unwrap(),
     };

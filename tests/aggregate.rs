@@ -1,10 +1,11 @@
 //! Checks of the random-field characterisation against published results and reference
 //! libraries.
 
+use lobemap::model::antenna::GainLaw;
 use lobemap::model::fading::Fading;
 use lobemap::model::pathloss::{PathLoss, PowerLaw};
 use lobemap::random::characterise::{GammaFit, Request, characterise};
-use lobemap::random::field::{Field, SectorGain};
+use lobemap::random::field::Field;
 use lobemap::random::montecarlo::simulate;
 use lobemap::random::planning::{max_density, min_guard};
 use num_complex::Complex64;
@@ -17,8 +18,8 @@ fn field(fading: Fading, bw: f64, main: f64, side: f64) -> Field {
         guard_m: 10.0,
         radius_m: 1000.0,
         power_mw: 1.0,
-        tx: SectorGain::from_db(bw, main, side),
-        rx: SectorGain::from_db(bw, main, side),
+        tx: GainLaw::two_level(bw / 360.0, main, side),
+        rx: GainLaw::two_level(bw / 360.0, main, side),
         fading,
         pathloss: PathLoss::new(PowerLaw::new(3.0, 40.0).unwrap(), 28.0, 0.0, 1.0).unwrap(),
     }
@@ -90,8 +91,8 @@ fn directional_success_probability_matches_closed_form() {
         density_per_m2: lambda,
         guard_m: 0.0,
         radius_m: 20_000.0,
-        tx: SectorGain::from_db(30.0, 10.0, -10.0),
-        rx: SectorGain::from_db(360.0, 0.0, 0.0),
+        tx: GainLaw::two_level(30.0 / 360.0, 10.0, -10.0),
+        rx: GainLaw::two_level(1.0, 0.0, 0.0),
         pathloss: PathLoss::new(PowerLaw::new(alpha, 0.0).unwrap(), 28.0, 0.0, 1e-3).unwrap(),
         ..field(Fading::RAYLEIGH, 360.0, 0.0, 0.0)
     };

@@ -8,7 +8,7 @@ use lobemap::model::fading::Fading;
 use lobemap::model::fading::FadingSpec;
 use lobemap::model::node::Node;
 use lobemap::model::pathloss::{PathLoss, PowerLaw};
-use lobemap::model::scenario::{Radio, Receiver, Scenario, Thresholds};
+use lobemap::model::scenario::{Radio, Receiver, ReceiverAntenna, Scenario, Thresholds};
 use rand::{RngExt, SeedableRng};
 use rand_distr::{Distribution, Poisson};
 
@@ -24,7 +24,7 @@ fn scenario(
         nodes,
         Radio { bandwidth_mhz, noise_figure_db: 0.0 },
         PathLoss::new(PowerLaw::new(4.0, 0.0).unwrap(), 3.5, 0.0, 1.0).unwrap(),
-        Receiver { height_m: 10.0, pattern: Pattern::Omni { gain_dbi: 0.0 }, aimed: false },
+        Receiver { height_m: 10.0, antenna: ReceiverAntenna::Omni { gain_dbi: 0.0 } },
         Grid::new(bbox, cell_m).unwrap(),
         Thresholds { sinr_db, hotspot_i_over_n_db: 0.0, coverage_target: 0.9 },
     );
@@ -47,7 +47,7 @@ fn andrews_baccelli_ganti_coverage() {
     let bbox = BBox { west: w, south: s, east: e, north: n };
     let lambda = 1e-5;
     let radius: f64 = 5000.0;
-    let omni = Pattern::Omni { gain_dbi: 0.0 };
+    let omni = Pattern::omni(0.0);
     let fading = FadingSpec { signal: Fading::RAYLEIGH, interferer: Fading::RAYLEIGH, shadowing_db: 0.0 };
     let layers = LayerSet { coverage: true, total: false, ..LayerSet::TOTAL };
     for (t_db, want) in [(0.0, 0.56010), (5.0, 0.34694)] {

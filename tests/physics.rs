@@ -8,7 +8,7 @@ use lobemap::jobs::probe::probe;
 use lobemap::model::antenna::Pattern;
 use lobemap::model::node::Node;
 use lobemap::model::pathloss::{FreeSpace, PathLoss, PowerLaw};
-use lobemap::model::scenario::{Radio, Receiver, Scenario, Thresholds};
+use lobemap::model::scenario::{Radio, Receiver, ReceiverAntenna, Scenario, Thresholds};
 use rand::{RngExt, SeedableRng};
 use rand_distr::{Distribution, Poisson};
 
@@ -32,7 +32,7 @@ fn scenario(nodes: Vec<Node>, pathloss: PathLoss, bbox: BBox, cell_m: f64, rx_he
         nodes,
         Radio { bandwidth_mhz: 100.0, noise_figure_db: 7.0 },
         pathloss,
-        Receiver { height_m: rx_height, pattern: Pattern::Omni { gain_dbi: 0.0 }, aimed: false },
+        Receiver { height_m: rx_height, antenna: ReceiverAntenna::Omni { gain_dbi: 0.0 } },
         Grid::new(bbox, cell_m).unwrap(),
         Thresholds { sinr_db: 5.0, hotspot_i_over_n_db: 0.0, coverage_target: 0.9 },
     )
@@ -53,7 +53,7 @@ fn probe_matches_hand_calculation() {
     let p = Point::new(8.0, 50.0);
     let a = Geodesic.destination(p, 90.0, 1000.0);
     let b = Geodesic.destination(p, 0.0, 500.0);
-    let sector = Pattern::Sector { beamwidth_deg: 30.0, gain_dbi: 20.0, sidelobe_dbi: -5.0 };
+    let sector = Pattern::sector(30.0, 20.0, -5.0).unwrap();
     let nodes =
         vec![node("A", a.x(), a.y(), 270.0, sector, 20.0, 10.0), node("B", b.x(), b.y(), 90.0, sector, 20.0, 10.0)];
     let pl = PathLoss::new(FreeSpace, 28.0, 0.0, 1.0).unwrap();
@@ -117,7 +117,7 @@ fn campbell_mean_of_total_over_poisson_field() {
     let radius = 1200.0;
     let d0 = 20.0;
     let (gm, gs, bw) = (8.0, -2.0, 120.0);
-    let pattern = Pattern::Sector { beamwidth_deg: bw, gain_dbi: gm, sidelobe_dbi: gs };
+    let pattern = Pattern::sector(bw, gm, gs).unwrap();
     let q = bw / 360.0;
     let (gml, gsl) = (10f64.powf(gm / 10.0), 10f64.powf(gs / 10.0));
     let (eg, eg2) = (q * gml + (1.0 - q) * gsl, q * gml * gml + (1.0 - q) * gsl * gsl);
@@ -151,7 +151,7 @@ fn campbell_mean_of_total_over_poisson_field() {
         (g.lon_of_col(g.cols() / 2), g.lat_of_row(g.rows() / 2)),
         (g.lon_of_col(g.cols() / 2) - g.dlon() / 2.0, g.lat_of_row(g.rows() / 2) + g.dlat() / 2.0),
     ] {
-        let one = vec![node("x", lon, lat, 0.0, Pattern::Omni { gain_dbi: 0.0 }, 0.0, 2.0)];
+        let one = vec![node("x", lon, lat, 0.0, Pattern::omni(0.0), 0.0, 2.0)];
         let sc1 = scenario(one, pl.clone(), bbox, 20.0, 2.0);
         let t1 = Engine::new(&sc1).run(&Options { layers: only_total, cutoff_m: None, progress: false }).total.unwrap();
         sup_phi = sup_phi.max(t1.iter().map(|v| 10f64.powf(*v as f64 / 10.0)).sum::<f64>() / cells);

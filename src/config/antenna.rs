@@ -1,5 +1,6 @@
 //! The `[antenna]` table and the per-node antenna keys: merged, then resolved into a pattern.
 
+use crate::config::range::Range;
 use crate::model::antenna::Pattern;
 use serde::Deserialize;
 
@@ -41,24 +42,19 @@ impl AntennaDefaults {
                 bad("pattern", "missing; one of `sector`, `parabolic`, `omni` in [antenna] or the node".into());
                 None
             }
-            Some("omni") => need(self.gain_dbi, "gain_dbi", bad).map(|g| Pattern::Omni { gain_dbi: g }),
+            Some("omni") => need(self.gain_dbi, "gain_dbi", bad).map(Pattern::omni),
             Some(k @ ("sector" | "parabolic")) => {
                 let bw = need(self.beamwidth_deg, "beamwidth_deg", bad);
                 let g = need(self.gain_dbi, "gain_dbi", bad);
                 let s = need(self.sidelobe_dbi, "sidelobe_dbi", bad);
                 match (bw, g, s) {
-                    (Some(bw), Some(g), Some(s)) => {
-                        if s > g {
-                            bad(
-                                "sidelobe_dbi",
-                                format!("value {s} is above the main-lobe gain {g} dBi; it must not exceed it"),
-                            );
-                            None
-                        } else if k == "sector" {
-                            Some(Pattern::Sector { beamwidth_deg: bw, gain_dbi: g, sidelobe_dbi: s })
-                        } else {
-                            Some(Pattern::Parabolic { beamwidth_deg: bw, gain_dbi: g, floor_dbi: s })
-                        }
+                    // Values outside their ranges were reported where they were read.
+                    (Some(bw), Some(g), Some(s))
+                        if Range::BEAMWIDTH.contains(bw) && Range::GAIN.contains(g) && Range::SIDELOBE.contains(s) =>
+                    {
+                        let built =
+                            if k == "sector" { Pattern::sector(bw, g, s) } else { Pattern::parabolic(bw, g, s) };
+                        built.map_err(|errs| errs.into_iter().for_each(|e| bad(e.key, e.message))).ok()
                     }
                     _ => None,
                 }

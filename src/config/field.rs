@@ -1,6 +1,7 @@
 //! The random field's parameters as given on the command line or taken from a scenario,
 //! validated into a [`Field`].
 
+use crate::model::antenna::GainLaw;
 use crate::model::units::dbm_to_mw;
 use crate::random::field::Field;
 
@@ -127,8 +128,8 @@ impl FieldSpec {
             guard_m: self.guard_m,
             radius_m: self.radius_m,
             power_mw: dbm_to_mw(self.power_dbm),
-            tx: crate::random::field::SectorGain::from_db(self.tx.0, self.tx.1, self.tx.2),
-            rx: crate::random::field::SectorGain::from_db(self.rx.0, self.rx.1, self.rx.2),
+            tx: GainLaw::two_level(self.tx.0 / 360.0, self.tx.1, self.tx.2),
+            rx: GainLaw::two_level(self.rx.0 / 360.0, self.rx.1, self.rx.2),
             fading,
             pathloss,
         })
@@ -240,23 +241,15 @@ impl FieldSpec {
         use crate::model::antenna::Pattern;
         use crate::model::fading::FadingKind;
         let node0 = sc.and_then(|s| s.nodes.first());
-        let (sc_bw, sc_g, sc_s, sc_p) = match node0.map(|n| (n.pattern, n.power_dbm)) {
-            Some((Pattern::Sector { beamwidth_deg, gain_dbi, sidelobe_dbi }, p)) => {
-                (Some(beamwidth_deg), Some(gain_dbi), Some(sidelobe_dbi), Some(p))
-            }
-            Some((Pattern::Parabolic { beamwidth_deg, gain_dbi, floor_dbi }, p)) => {
-                (Some(beamwidth_deg), Some(gain_dbi), Some(floor_dbi), Some(p))
-            }
-            Some((Pattern::Omni { gain_dbi }, p)) => (Some(360.0), Some(gain_dbi), Some(gain_dbi), Some(p)),
-            None => (None, None, None, None),
+        // A pattern enters as the sector of its beamwidth, gain and side lobe (or floor).
+        let lobes = |p: &Pattern| (Some(p.beamwidth_deg()), Some(p.max_gain_dbi()), Some(p.floor_dbi()));
+        let ((sc_bw, sc_g, sc_s), sc_p) = match node0 {
+            Some(n) => (lobes(&n.pattern), Some(n.power_dbm)),
+            None => ((None, None, None), None),
         };
-        let rx = sc.map(|s| s.receiver.pattern);
-        let (rx_bw, rx_g, rx_s) = match rx {
-            Some(Pattern::Sector { beamwidth_deg, gain_dbi, sidelobe_dbi }) => {
-                (Some(beamwidth_deg), Some(gain_dbi), Some(sidelobe_dbi))
-            }
-            Some(Pattern::Omni { gain_dbi }) => (Some(360.0), Some(gain_dbi), Some(gain_dbi)),
-            _ => (None, None, None),
+        let (rx_bw, rx_g, rx_s) = match sc {
+            Some(s) => lobes(&s.receiver.pattern()),
+            None => (None, None, None),
         };
         let pl = sc.map(|s| &s.pathloss);
         let (model, exponent, l1) = match pl.map(|p| p.law()) {

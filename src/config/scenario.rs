@@ -9,10 +9,10 @@ use crate::config::raw::RawScenario;
 use crate::error::{Error, Problem, Problems};
 use crate::geometry::frame::LocalFrame;
 use crate::geometry::grid::{BBox, Grid};
-use crate::model::antenna::Pattern;
+use crate::model::antenna::Sector;
 use crate::model::fading::FadingSpec;
 use crate::model::pathloss::{LawParams, PathLoss};
-use crate::model::scenario::{InstallSettings, LinkSettings, Radio, Receiver, Scenario, Thresholds};
+use crate::model::scenario::{InstallSettings, LinkSettings, Radio, Receiver, ReceiverAntenna, Scenario, Thresholds};
 use std::path::Path;
 
 fn toml_problem(file: &str, e: &toml::de::Error) -> Problem {
@@ -106,14 +106,15 @@ impl Scenario {
         if let Some(m) = raw.grid.margin_m {
             bad("grid", "margin_m", m, Range::closed(0.0, 100_000.0, "m"));
         }
-        let (receiver_pattern, aimed) = match rx.antenna.as_deref().unwrap_or("omni") {
-            "omni" => (Some(Pattern::Omni { gain_dbi: rx_gain }), false),
+        let receiver_antenna = match rx.antenna.as_deref().unwrap_or("omni") {
+            "omni" => Some(ReceiverAntenna::Omni { gain_dbi: rx_gain }),
             "aimed" => {
                 let bw = rx.beamwidth_deg.unwrap_or(f64::NAN);
                 let sl = rx.sidelobe_dbi.unwrap_or(f64::NAN);
                 bad("receiver", "beamwidth_deg", bw, Range::BEAMWIDTH);
                 bad("receiver", "sidelobe_dbi", sl, Range::closed(-60.0, rx_gain, "dBi (not above gain_dbi)"));
-                (Some(Pattern::Sector { beamwidth_deg: bw, gain_dbi: rx_gain, sidelobe_dbi: sl }), true)
+                // Out-of-range values were reported just above.
+                Sector::new(bw, rx_gain, sl).ok().map(ReceiverAntenna::Aimed)
             }
             other => {
                 probs.push(Problem::new(
@@ -122,7 +123,7 @@ impl Scenario {
                     "antenna",
                     format!("value `{other}` is not one of `omni`, `aimed`"),
                 ));
-                (None, false)
+                None
             }
         };
         if raw.name.trim().is_empty() || !raw.name.chars().all(|c| c.is_ascii_alphanumeric() || "-_. ".contains(c)) {
@@ -232,7 +233,7 @@ impl Scenario {
             .ok()
         });
         probs.into_result()?;
-        let (pathloss, nodes, bbox, receiver_pattern) = match (pathloss, nodes, bbox, receiver_pattern) {
+        let (pathloss, nodes, bbox, receiver_antenna) = match (pathloss, nodes, bbox, receiver_antenna) {
             (Some(a), Some(b), Some(c), Some(d)) => (a, b, c, d),
             _ => unreachable!("every None above recorded a problem"),
         };
@@ -246,7 +247,7 @@ impl Scenario {
             nodes,
             radio: Radio { bandwidth_mhz: r.bandwidth_mhz, noise_figure_db: r.noise_figure_db },
             pathloss,
-            receiver: Receiver { height_m: rx_height, pattern: receiver_pattern, aimed },
+            receiver: Receiver { height_m: rx_height, antenna: receiver_antenna },
             grid,
             frame: LocalFrame::new(clat, clon),
             thresholds: thr,

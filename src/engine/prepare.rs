@@ -3,8 +3,8 @@
 
 use crate::engine::Engine;
 use crate::engine::kernels::{LUT_LEN, NodeK};
-use crate::model::antenna::Pattern;
-use crate::model::scenario::Scenario;
+use crate::model::antenna::{AntennaPattern, GainForm, Pattern, signed_cos_sq_half_beam};
+use crate::model::scenario::{ReceiverAntenna, Scenario};
 use crate::model::units::{db_to_lin, dbm_to_mw};
 use rstar::{RTree, primitives::GeomWithData};
 
@@ -23,12 +23,9 @@ impl<'s> Engine<'s> {
                 let (x, y) = sc.frame.to_local(n.lon, n.lat);
                 let az = n.azimuth_deg.to_radians();
                 let p = dbm_to_mw(n.power_dbm) * k_inv;
-                let (p_main, p_side, lut) = match n.pattern {
-                    Pattern::Sector { gain_dbi, sidelobe_dbi, .. } => {
-                        (p * db_to_lin(gain_dbi), p * db_to_lin(sidelobe_dbi), None)
-                    }
-                    Pattern::Omni { gain_dbi } => (p * db_to_lin(gain_dbi), p * db_to_lin(gain_dbi), None),
-                    Pattern::Parabolic { .. } => {
+                let (p_main, p_side, lut) = match n.pattern.kernel() {
+                    GainForm::Flat { main_dbi, side_dbi } => (p * db_to_lin(main_dbi), p * db_to_lin(side_dbi), None),
+                    GainForm::Table => {
                         let pos = luts.iter().position(|(q, _)| *q == n.pattern).unwrap_or_else(|| {
                             luts.push((n.pattern, n.pattern.gain_table_over_half_angle_sine(LUT_LEN)));
                             luts.len() - 1
@@ -58,13 +55,14 @@ impl<'s> Engine<'s> {
         let g = &sc.grid;
         let (sin_dlon, cos_dlon) =
             (0..g.cols()).map(|c| (g.lon_of_col(c) - sc.frame.lon0()).to_radians().sin_cos()).unzip();
-        let rxp = sc.receiver.pattern;
-        let rx_aim = sc.receiver.aimed.then(|| match rxp {
-            Pattern::Sector { gain_dbi, sidelobe_dbi, .. } => {
-                (rxp.signed_cos_sq_half_beam() as f32, db_to_lin(gain_dbi) as f32, db_to_lin(sidelobe_dbi) as f32)
-            }
-            _ => unreachable!("an aimed receiver is a sector"),
-        });
+        let rx_aim = match sc.receiver.antenna {
+            ReceiverAntenna::Omni { .. } => None,
+            ReceiverAntenna::Aimed(s) => Some((
+                signed_cos_sq_half_beam(s.beamwidth_deg()) as f32,
+                db_to_lin(s.max_gain_dbi()) as f32,
+                db_to_lin(s.floor_dbi()) as f32,
+            )),
+        };
         Engine {
             sc,
             nodes,
@@ -75,7 +73,7 @@ impl<'s> Engine<'s> {
             noise_mw: dbm_to_mw(sc.noise_dbm()),
             g_omni: db_to_lin(sc.receiver.omni_gain_dbi()) as f32,
             rx_aim,
-            g_signal: db_to_lin(rxp.max_gain_dbi()) as f32,
+            g_signal: db_to_lin(sc.receiver.max_gain_dbi()) as f32,
             cov: crate::model::coverage::CoverageModel::new(sc.fading, sc.thresholds.sinr_db, sc.noise_dbm()),
         }
     }

@@ -1,6 +1,5 @@
 //! `layout.geojson`: the nodes with every default resolved.
 
-use crate::model::antenna::Pattern;
 use crate::model::node::Node;
 
 /// Writes nodes as a GeoJSON FeatureCollection with every default resolved, plus `index`
@@ -20,14 +19,8 @@ pub fn layout_geojson(nodes: &[Node]) -> geojson::FeatureCollection {
             p.insert("pattern".into(), n.pattern.kind().into());
             p.insert("beamwidth_deg".into(), n.pattern.beamwidth_deg().into());
             p.insert("gain_dbi".into(), n.pattern.max_gain_dbi().into());
-            match n.pattern {
-                Pattern::Sector { sidelobe_dbi, .. } => {
-                    p.insert("sidelobe_dbi".into(), sidelobe_dbi.into());
-                }
-                Pattern::Parabolic { floor_dbi, .. } => {
-                    p.insert("sidelobe_dbi".into(), floor_dbi.into());
-                }
-                Pattern::Omni { .. } => {}
+            if !n.pattern.is_omni() {
+                p.insert("sidelobe_dbi".into(), n.pattern.floor_dbi().into());
             }
             p.insert("power_dbm".into(), n.power_dbm.into());
             p.insert("eirp_dbm".into(), n.eirp_dbm().into());

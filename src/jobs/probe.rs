@@ -106,8 +106,8 @@ pub fn probe_with(sc: &Scenario, lat: f64, lon: f64, mc: Option<(usize, u64)>) -
             let n = &sc.nodes[i];
             let bearing = b.geometry.bearing_from_rx_deg();
             let rx_gain =
-                if rx.aimed { rx.pattern.gain_dbi(bearing - server_bearing) } else { rx.pattern.max_gain_dbi() };
-            let rx_gain = if i == server { rx.pattern.max_gain_dbi() } else { rx_gain };
+                if rx.is_aimed() { rx.pattern().gain_dbi(bearing - server_bearing) } else { rx.max_gain_dbi() };
+            let rx_gain = if i == server { rx.max_gain_dbi() } else { rx_gain };
             Contribution {
                 id: n.id.clone(),
                 index: i,

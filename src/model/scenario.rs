@@ -4,7 +4,7 @@
 
 use crate::geometry::frame::LocalFrame;
 use crate::geometry::grid::Grid;
-use crate::model::antenna::Pattern;
+use crate::model::antenna::{AntennaPattern, Pattern, Sector};
 use crate::model::draw::DrawSpec;
 use crate::model::fading::FadingSpec;
 use crate::model::node::Node;
@@ -21,22 +21,53 @@ pub struct Radio {
     pub noise_figure_db: f64,
 }
 
-/// `[receiver]`: the antenna of a hypothetical receiver at each cell.
+/// The antenna of the hypothetical receiver at each cell.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub enum ReceiverAntenna {
+    /// The same gain in every direction.
+    Omni {
+        /// Gain, dBi.
+        gain_dbi: f64,
+    },
+    /// A sector pointed at the cell's best server.
+    Aimed(Sector),
+}
+
+/// `[receiver]`: the hypothetical receiver at each cell.
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub struct Receiver {
     /// Height above ground, m (default 1.5).
     pub height_m: f64,
-    /// The receiving antenna. For `aimed`, a sector pattern pointed at the cell's best server.
-    pub pattern: Pattern,
-    /// Whether the pattern is aimed at the best server (otherwise omni).
-    pub aimed: bool,
+    /// The receiving antenna.
+    pub antenna: ReceiverAntenna,
 }
 
 impl Receiver {
     /// Gain used for the `total` layer (what any new receiver would pick up): the omni gain,
     /// or 0 dBi when the receiver is aimed.
     pub fn omni_gain_dbi(&self) -> f64 {
-        if self.aimed { 0.0 } else { self.pattern.max_gain_dbi() }
+        match self.antenna {
+            ReceiverAntenna::Omni { gain_dbi } => gain_dbi,
+            ReceiverAntenna::Aimed(_) => 0.0,
+        }
+    }
+    /// Largest gain (toward the server), dBi.
+    pub fn max_gain_dbi(&self) -> f64 {
+        match self.antenna {
+            ReceiverAntenna::Omni { gain_dbi } => gain_dbi,
+            ReceiverAntenna::Aimed(s) => s.max_gain_dbi(),
+        }
+    }
+    /// Whether the antenna is aimed at the server.
+    pub fn is_aimed(&self) -> bool {
+        matches!(self.antenna, ReceiverAntenna::Aimed(_))
+    }
+    /// The receiving pattern (a sector when aimed).
+    pub fn pattern(&self) -> Pattern {
+        match self.antenna {
+            ReceiverAntenna::Omni { gain_dbi } => Pattern::omni(gain_dbi),
+            ReceiverAntenna::Aimed(s) => Pattern::Sector(s),
+        }
     }
 }
 

@@ -22,34 +22,13 @@
 //! - F. Baccelli, B. Błaszczyszyn and P. Mühlethaler, "An Aloha protocol for multihop mobile
 //!   wireless networks", IEEE Trans. Inf. Theory 52(2), 2006.
 
+use crate::model::antenna::GainLaw;
 use crate::model::fading::Fading;
 use crate::model::pathloss::PathLoss;
 use crate::model::units::db_to_lin;
 use crate::random::points::matern_ii_density;
 use num_complex::Complex64;
 use std::f64::consts::PI;
-
-/// A two-level (sector) gain seen from a random orientation.
-#[derive(Debug, Clone, Copy, PartialEq)]
-pub struct SectorGain {
-    /// Probability of the main lobe, HPBW/360°.
-    pub q: f64,
-    /// Main-lobe gain, linear.
-    pub main: f64,
-    /// Side gain, linear.
-    pub side: f64,
-}
-
-impl SectorGain {
-    /// From beamwidth and gains in dBi.
-    pub fn from_db(beamwidth_deg: f64, main_dbi: f64, side_dbi: f64) -> SectorGain {
-        SectorGain { q: (beamwidth_deg / 360.0).clamp(0.0, 1.0), main: db_to_lin(main_dbi), side: db_to_lin(side_dbi) }
-    }
-    /// E[Gⁿ] (any real n).
-    pub fn moment(&self, n: f64) -> f64 {
-        self.q * self.main.powf(n) + (1.0 - self.q) * self.side.powf(n)
-    }
-}
 
 /// The random-field model.
 #[derive(Debug, Clone)]
@@ -66,10 +45,11 @@ pub struct Field {
     pub radius_m: f64,
     /// Interferer transmit power, mW.
     pub power_mw: f64,
-    /// Interferer transmit antenna.
-    pub tx: SectorGain,
-    /// Receiver antenna.
-    pub rx: SectorGain,
+    /// Gain law of the interferers' transmit antennas toward the receiver (uniform
+    /// orientation; any pattern through [`crate::model::antenna::Pattern::orientation_law`]).
+    pub tx: GainLaw,
+    /// Gain law of the receiver's antenna toward an interferer.
+    pub rx: GainLaw,
     /// Fading of each interfering link.
     pub fading: Fading,
     /// Path-loss model.
@@ -179,12 +159,12 @@ impl Field {
 
     /// ln L_I(s) = −λ ∫_A (1 − E[e^{−s P G_t G_r h ℓ}]) dA for complex s (Re s > 0).
     pub fn log_laplace(&self, s: Complex64, rad: &Radial) -> Complex64 {
-        let combos = [
-            (self.tx.q * self.rx.q, self.tx.main * self.rx.main),
-            (self.tx.q * (1.0 - self.rx.q), self.tx.main * self.rx.side),
-            ((1.0 - self.tx.q) * self.rx.q, self.tx.side * self.rx.main),
-            ((1.0 - self.tx.q) * (1.0 - self.rx.q), self.tx.side * self.rx.side),
-        ];
+        let combos: Vec<(f64, f64)> = self
+            .tx
+            .levels()
+            .iter()
+            .flat_map(|&(pt, gt)| self.rx.levels().iter().map(move |&(pr, gr)| (pt * pr, gt * gr)))
+            .collect();
         let one_minus = |g: f64| -> Complex64 {
             let mut acc = Complex64::new(0.0, 0.0);
             for &(w, gain) in &combos {
@@ -223,8 +203,8 @@ mod tests {
             guard_m: guard,
             radius_m: radius,
             power_mw: 1.0,
-            tx: SectorGain::from_db(360.0, 0.0, 0.0),
-            rx: SectorGain::from_db(360.0, 0.0, 0.0),
+            tx: GainLaw::two_level(1.0, 0.0, 0.0),
+            rx: GainLaw::two_level(1.0, 0.0, 0.0),
             fading: Fading::RAYLEIGH,
             pathloss: PathLoss::new(PowerLaw::new(alpha, 0.0).unwrap(), 2.0, 0.0, 1e-3).unwrap(),
         }

@@ -4,6 +4,7 @@
 
 use crate::engine::simd::multiversion;
 use crate::engine::{fast_exp2, fast_log2};
+use crate::model::antenna::GainLaw;
 use crate::random::field::Field;
 use rand::{Rng, RngExt, SeedableRng};
 use rand_distr::{Distribution, Poisson};
@@ -56,9 +57,79 @@ struct Consts {
     half_alpha: f32,
     beta_log2e: f32,
     d2min: f32,
-    tx: (f32, f32, f32),
-    rx: (f32, f32, f32),
     power: f64,
+}
+
+/// Picks an antenna gain from a uniform u in [0, 1) by the gain law's levels.
+trait Pick: Copy {
+    fn pick(self, u: f32) -> f32;
+}
+
+/// Two levels (a sector): branch-free select.
+#[derive(Clone, Copy)]
+struct Two {
+    q: f32,
+    main: f32,
+    side: f32,
+}
+impl Pick for Two {
+    #[inline(always)]
+    fn pick(self, u: f32) -> f32 {
+        if u < self.q { self.main } else { self.side }
+    }
+}
+
+/// Any number of levels: the first level whose cumulative probability exceeds u.
+#[derive(Clone, Copy)]
+struct Many<'a> {
+    cum: &'a [f32],
+    gain: &'a [f32],
+}
+impl Pick for Many<'_> {
+    #[inline(always)]
+    fn pick(self, u: f32) -> f32 {
+        let last = self.gain.len() - 1;
+        let mut g = self.gain[last];
+        for i in (0..last).rev() {
+            g = if u < self.cum[i] { self.gain[i] } else { g };
+        }
+        g
+    }
+}
+
+/// A gain law in the form the loop picks from.
+enum Picker {
+    Two(Two),
+    Many(Vec<f32>, Vec<f32>),
+}
+
+fn picker(law: &GainLaw) -> Picker {
+    match law.levels() {
+        [(q, main), (_, side)] => Picker::Two(Two { q: *q as f32, main: *main as f32, side: *side as f32 }),
+        levels => {
+            let mut acc = 0.0;
+            let cum = levels
+                .iter()
+                .map(|(p, _)| {
+                    acc += p;
+                    acc as f32
+                })
+                .collect();
+            Picker::Many(cum, levels.iter().map(|(_, g)| *g as f32).collect())
+        }
+    }
+}
+
+/// Σ P G_t G_r h ℓ over the buffers with the laws' pickers.
+fn sum_all(c: &Consts, tx: &Picker, rx: &Picker, b: &Buf) -> f64 {
+    match (tx, rx) {
+        (Picker::Two(t), Picker::Two(r)) => sum_powers(c, *t, *r, b),
+        (Picker::Two(t), Picker::Many(rc, rg)) => sum_powers(c, *t, Many { cum: rc, gain: rg }, b),
+        (Picker::Many(tc, tg), Picker::Two(r)) => sum_powers(c, Many { cum: tc, gain: tg }, *r, b),
+        (Picker::Many(tc, tg), Picker::Many(rc, rg)) => {
+            sum_powers(c, Many { cum: tc, gain: tg }, Many { cum: rc, gain: rg }, b)
+        }
+    }
 }
 
 fn consts(f: &Field) -> Consts {
@@ -68,8 +139,6 @@ fn consts(f: &Field) -> Consts {
         half_alpha: (pl.exponent() / 2.0) as f32,
         beta_log2e: (pl.beta_per_m() * std::f64::consts::LOG2_E) as f32,
         d2min: (pl.min_distance_m() * pl.min_distance_m()) as f32,
-        tx: (f.tx.q as f32, f.tx.main as f32, f.tx.side as f32),
-        rx: (f.rx.q as f32, f.rx.main as f32, f.rx.side as f32),
         power: f.power_mw,
     }
 }
@@ -93,11 +162,11 @@ impl Buf {
 }
 
 #[inline(always)]
-fn one_power(c: &Consts, r2: f32, ut: f32, ur: f32, h: f32) -> f32 {
+fn one_power<T: Pick, R: Pick>(c: &Consts, t: T, r: R, r2: f32, ut: f32, ur: f32, h: f32) -> f32 {
     let d2 = r2.max(c.d2min);
     let gain = fast_exp2(c.log2_kinv - c.half_alpha * fast_log2(d2) - c.beta_log2e * d2.sqrt());
-    let gt = if ut < c.tx.0 { c.tx.1 } else { c.tx.2 };
-    let gr = if ur < c.rx.0 { c.rx.1 } else { c.rx.2 };
+    let gt = t.pick(ut);
+    let gr = r.pick(ur);
     gt * gr * gain * h
 }
 
@@ -105,7 +174,7 @@ fn one_power(c: &Consts, r2: f32, ut: f32, ur: f32, h: f32) -> f32 {
 /// summed in eight fixed float64 lanes plus the tail (the order never depends on threads or
 /// on the instruction set chosen).
 #[inline(always)]
-fn sum_body(c: &Consts, b: &Buf) -> f64 {
+fn sum_body<T: Pick, R: Pick>(c: &Consts, t: T, r: R, b: &Buf) -> f64 {
     let n = b.r2.len();
     let n8 = n / 8 * 8;
     let mut lanes = [0f64; 8];
@@ -115,22 +184,22 @@ fn sum_body(c: &Consts, b: &Buf) -> f64 {
         .zip(b.ur[..n8].chunks_exact(8))
         .zip(b.h[..n8].chunks_exact(8));
     for (((r2, ut), ur), h) in blocks {
-        let mut t = [0f32; 8];
+        let mut p = [0f32; 8];
         for j in 0..8 {
-            t[j] = one_power(c, r2[j], ut[j], ur[j], h[j]);
+            p[j] = one_power(c, t, r, r2[j], ut[j], ur[j], h[j]);
         }
         for j in 0..8 {
-            lanes[j] += t[j] as f64;
+            lanes[j] += p[j] as f64;
         }
     }
     let mut tail = 0f64;
     for k in n8..n {
-        tail += one_power(c, b.r2[k], b.ut[k], b.ur[k], b.h[k]) as f64;
+        tail += one_power(c, t, r, b.r2[k], b.ut[k], b.ur[k], b.h[k]) as f64;
     }
     c.power * (lanes.iter().sum::<f64>() + tail)
 }
 
-multiversion!(fn sum_powers(c: &Consts, b: &Buf) -> f64 => sum_body);
+multiversion!(fn sum_powers<T: Pick, R: Pick>(c: &Consts, t: T, r: R, b: &Buf) -> f64 => sum_body);
 
 fn one_poisson(f: &Field, rng: &mut Pcg64Mcg, buf: &mut Buf) -> (f64, u64) {
     let c = consts(f);
@@ -146,7 +215,7 @@ fn one_poisson(f: &Field, rng: &mut Pcg64Mcg, buf: &mut Buf) -> (f64, u64) {
         buf.ur[k] = (u & 0xfffff) as f32 * (1.0 / 1_048_576.0);
     }
     f.fading.fill_f32(rng, &mut buf.h);
-    (sum_powers(&c, buf), n as u64)
+    (sum_all(&c, &picker(&f.tx), &picker(&f.rx), buf), n as u64)
 }
 
 fn one_hard_core(f: &Field, rng: &mut Pcg64Mcg, buf: &mut Buf) -> (f64, u64) {
@@ -182,5 +251,5 @@ fn one_hard_core(f: &Field, rng: &mut Pcg64Mcg, buf: &mut Buf) -> (f64, u64) {
         buf.ur[k] = rng.random::<f32>();
     }
     f.fading.fill_f32(rng, &mut buf.h);
-    (sum_powers(&c, buf), n as u64)
+    (sum_all(&c, &picker(&f.tx), &picker(&f.rx), buf), n as u64)
 }

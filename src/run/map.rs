@@ -226,7 +226,7 @@ pub fn run_map(sc: &Scenario, opts: &MapOptions) -> Result<MapResult, Error> {
         cell_m: grid.cell_m(),
         bbox: [b.west, b.south, b.east, b.north],
         noise_dbm: round2(noise_dbm),
-        receiver: if sc.receiver.aimed { "aimed" } else { "omni" }.into(),
+        receiver: if sc.receiver.is_aimed() { "aimed" } else { "omni" }.into(),
         layers: names,
         total_dbm: layers.total.as_deref().map(|t| Spread::of(&Histogram::of(t), true)),
         interference_dbm: layers.interference.as_deref().map(|t| Spread::of(&Histogram::of(t), true)),
