@@ -70,8 +70,8 @@ fn measure(label: &str, sc: &Scenario, layers: LayerSet, reps: usize) {
     let dt = t0.elapsed().as_secs_f64();
     println!(
         "{label:<44} {:>6} nodes x {:>8} cells: {:>8.3} s/run, {:>8.3e} pair evaluations/s",
-        sc.nodes.len(),
-        sc.grid.cells(),
+        sc.nodes().len(),
+        sc.grid().cells(),
         dt / reps as f64,
         pairs as f64 / dt
     );
@@ -90,27 +90,25 @@ fn main() {
     measure("sinr (server + interference), omni rx", &sc, sinr, reps);
     let sc_aim = layout(1000, 1000, 2.0, true);
     measure("sinr, aimed rx (two passes)", &sc_aim, sinr, reps);
-    let mut sc_ray = layout(1000, 1000, 2.0, true);
-    sc_ray.fading = lobemap::model::fading::FadingSpec {
+    let sc_ray = layout(1000, 1000, 2.0, true).with_fading(lobemap::model::fading::FadingSpec {
         signal: lobemap::model::fading::Fading::RAYLEIGH,
         interferer: lobemap::model::fading::Fading::RAYLEIGH,
         shadowing_db: 0.0,
-    };
+    });
     measure("coverage exact (Rayleigh), aimed rx", &sc_ray, coverage, reps);
-    let mut sc_ric = layout(1000, 1000, 2.0, true);
-    sc_ric.fading = lobemap::model::fading::FadingSpec {
+    let sc_ric = layout(1000, 1000, 2.0, true).with_fading(lobemap::model::fading::FadingSpec {
         signal: lobemap::model::fading::Fading::rician_db(10.0 * 4f64.log10()).unwrap(),
         interferer: lobemap::model::fading::Fading::RAYLEIGH,
         shadowing_db: 0.0,
-    };
+    });
     measure("coverage moment (Rician signal), aimed rx", &sc_ric, coverage, reps);
     let sc3 = layout(1000, 1000, 3.0, false);
     measure("total, sector, exponent 3", &sc3, total, reps);
     let sc35 = layout(1000, 500, 3.5, false);
     measure("total, sector, exponent 3.5 (log2/exp2 path)", &sc35, total, reps);
-    let cells = sc.grid.cells() as f64;
+    let cells = sc.grid().cells() as f64;
     println!(
         "memory estimate for 4 layers: {:.1} bytes per cell (layers at 4 bytes each plus row buffers)",
-        sc.grid.estimate_bytes(4, threads) as f64 / cells
+        sc.grid().estimate_bytes(4, threads) as f64 / cells
     );
 }

@@ -39,7 +39,7 @@ fn main() {
     }
     let (w, s) = frame.to_geo(-half, -half);
     let (e, n) = frame.to_geo(half, half);
-    let mut sc = Scenario::from_parts(
+    let sc = Scenario::from_parts(
         nodes,
         Radio { bandwidth_mhz: 2160.0, noise_figure_db: 8.0 },
         PathLoss::new(CloseIn::new(2.1).unwrap(), 60.0, 15.0, 1.0).unwrap(),
@@ -54,14 +54,14 @@ fn main() {
             FadingSpec { signal: Fading::rician_db(9.0).unwrap(), interferer: Fading::RAYLEIGH, shadowing_db: 0.0 },
         ),
     ] {
-        sc.fading = f;
+        let sc = sc.clone().with_fading(f);
         let _ = lobemap::jobs::links::links(&sc, None);
         let t0 = Instant::now();
         let rows = lobemap::jobs::links::links(&sc, None);
         println!(
             "links, {label}: {} links among {} nodes in {:.3} s",
             rows.len(),
-            sc.nodes.len(),
+            sc.nodes().len(),
             t0.elapsed().as_secs_f64()
         );
     }

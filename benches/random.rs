@@ -15,25 +15,16 @@ use std::time::Instant;
 fn main() {
     let threads = rayon::current_num_threads();
     println!("lobemap random-field benchmark, {threads} threads");
-    let base = Field {
-        density_per_m2: 1e-3,
-        keep: 1.0,
-        hard_core_m: 0.0,
-        guard_m: 10.0,
-        radius_m: 1000.0,
-        power_mw: 1.0,
-        tx: GainLaw::two_level(30.0 / 360.0, 10.0, -10.0),
-        rx: GainLaw::two_level(30.0 / 360.0, 10.0, -10.0),
-        fading: Fading::RAYLEIGH,
-        pathloss: PathLoss::new(PowerLaw::new(3.0, 40.0).unwrap(), 28.0, 0.0, 1.0).unwrap(),
-    };
+    let pl = PathLoss::new(PowerLaw::new(3.0, 40.0).unwrap(), 28.0, 0.0, 1.0).unwrap();
+    let sector = GainLaw::two_level(30.0 / 360.0, 10.0, -10.0);
+    let base = Field::new(1e-3, 10.0, 1000.0, pl).unwrap().with_antennas(sector.clone(), sector);
     for (name, fading) in [
         ("none", Fading::NONE),
         ("rayleigh", Fading::RAYLEIGH),
         ("rician 6 dB", Fading::rician_db(6.0).unwrap()),
         ("nakagami 2", Fading::nakagami(2.0).unwrap()),
     ] {
-        let f = Field { fading, ..base.clone() };
+        let f = base.clone().with_fading(fading);
         let _ = simulate(&f, 2000, 1);
         let t0 = Instant::now();
         let (_, draws) = simulate(&f, 40_000, 2);

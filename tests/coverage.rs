@@ -20,16 +20,15 @@ fn scenario(
     bandwidth_mhz: f64,
     fading: FadingSpec,
 ) -> Scenario {
-    let mut sc = Scenario::from_parts(
+    Scenario::from_parts(
         nodes,
         Radio { bandwidth_mhz, noise_figure_db: 0.0 },
         PathLoss::new(PowerLaw::new(4.0, 0.0).unwrap(), 3.5, 0.0, 1.0).unwrap(),
         Receiver { height_m: 10.0, antenna: ReceiverAntenna::Omni { gain_dbi: 0.0 } },
         Grid::new(bbox, cell_m).unwrap(),
         Thresholds { sinr_db, hotspot_i_over_n_db: 0.0, coverage_target: 0.9 },
-    );
-    sc.fading = fading;
-    sc
+    )
+    .with_fading(fading)
 }
 
 /// Andrews, Baccelli and Ganti (IEEE Trans. Commun. 2011), Theorem 2 with α = 4 and no
@@ -91,15 +90,15 @@ fn andrews_baccelli_ganti_coverage() {
 /// 40 000 trials give a standard error below 0.0025; allowed 4 SE plus 0.003 for float32.
 #[test]
 fn exact_coverage_layer_matches_monte_carlo_on_demo() {
-    let mut sc = Scenario::load(std::path::Path::new("sites/harbourlight/scenario.toml")).unwrap();
-    sc.fading = FadingSpec {
-        signal: Fading::RAYLEIGH,
-        interferer: Fading::rician_db(10.0 * 2f64.log10()).unwrap(),
-        shadowing_db: 0.0,
-    };
+    let sc =
+        Scenario::load(std::path::Path::new("sites/harbourlight/scenario.toml")).unwrap().with_fading(FadingSpec {
+            signal: Fading::RAYLEIGH,
+            interferer: Fading::rician_db(10.0 * 2f64.log10()).unwrap(),
+            shadowing_db: 0.0,
+        });
     let layers = LayerSet { coverage: true, total: false, ..LayerSet::TOTAL };
     let cov = Engine::new(&sc).run(&Options { layers, cutoff_m: None, progress: false }).coverage.unwrap();
-    let g = &sc.grid;
+    let g = &sc.grid();
     let mut checked = 0;
     for (k, v) in cov.iter().enumerate().step_by(97) {
         if *v < 0.15 || *v > 0.85 || checked >= 6 {

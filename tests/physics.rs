@@ -84,7 +84,7 @@ fn engine_agrees_with_probe_on_demo() {
     let eng = Engine::new(&sc);
     let l = eng.run(&Options { layers: LayerSet::ALL, cutoff_m: None, progress: false });
     let (t, i, s) = (l.total.unwrap(), l.interference.unwrap(), l.sinr.unwrap());
-    let g = &sc.grid;
+    let g = &sc.grid();
     let mut rng = rand_pcg::Pcg64::seed_from_u64(7);
     let mut checked = 0;
     for _ in 0..300 {
@@ -145,7 +145,7 @@ fn campbell_mean_of_total_over_poisson_field() {
     let mean: f64 = tot.iter().map(|v| 10f64.powf(*v as f64 / 10.0)).sum::<f64>() / cells;
     let expect = lambda * 2.0 * std::f64::consts::PI * eg / (d0 * d0);
     // sup φ: one omni 0 dBi node at a cell centre, then at a cell corner.
-    let g = &sc.grid;
+    let g = &sc.grid();
     let mut sup_phi: f64 = 0.0;
     for (lon, lat) in [
         (g.lon_of_col(g.cols() / 2), g.lat_of_row(g.rows() / 2)),
@@ -186,5 +186,5 @@ fn cutoff_bound_holds() {
         worst <= bound_mw * 1.0001 + 1e-4 * full.iter().map(|a| 10f64.powf(*a as f64 / 10.0)).fold(0.0, f64::max),
         "dropped {worst:e} mW > bound {bound_mw:e} mW"
     );
-    assert!(cut.pair_evaluations < (sc.grid.cells() * sc.nodes.len()) as u64);
+    assert!(cut.pair_evaluations < (sc.grid().cells() * sc.nodes().len()) as u64);
 }

@@ -309,7 +309,7 @@ pub fn run(cli: Cli) -> anyhow::Result<ExitCode> {
         }
         Cmd::Draw { scenario, out, seed } => {
             let sc = Scenario::load(&scenario)?;
-            let spec = sc.draw.as_ref().ok_or_else(|| {
+            let spec = sc.draw().ok_or_else(|| {
                 anyhow::Error::from(Error::input(Problem::new(
                     scenario.display().to_string(),
                     None,
@@ -325,7 +325,7 @@ pub fn run(cli: Cli) -> anyhow::Result<ExitCode> {
                 .file_name()
                 .and_then(|n| n.to_str())
                 .ok_or_else(|| bad_flag("--out", "needs a file name".into()))?;
-            let mut st = lobemap::io::staging::Staging::new(dir, &[&sc.path, &sc.nodes_path])?;
+            let mut st = lobemap::io::staging::Staging::new(dir, &[&sc.path(), &sc.nodes_path()])?;
             st.write(name, lobemap::io::layout::layout_geojson(&nodes).to_string().as_bytes())?;
             st.commit()?;
             if !cli.quiet {
@@ -344,10 +344,10 @@ pub fn run(cli: Cli) -> anyhow::Result<ExitCode> {
                 println!(
                     "{}: ok: {} nodes, grid {} x {} cells of {} m, noise {:.2} dBm",
                     scenario.display(),
-                    sc.nodes.len(),
-                    sc.grid.cols(),
-                    sc.grid.rows(),
-                    sc.grid.cell_m(),
+                    sc.nodes().len(),
+                    sc.grid().cols(),
+                    sc.grid().rows(),
+                    sc.grid().cell_m(),
                     sc.noise_dbm()
                 );
                 Ok(ExitCode::SUCCESS)
@@ -402,15 +402,16 @@ fn map_cmd(sc: &Scenario, a: MapArgs, quiet: bool, default_out: Option<&str>) ->
     {
         return Err(bad_flag("--cutoff-m", format!("value {c} is outside the allowed range (0, inf) m")));
     }
-    let out =
-        a.out.unwrap_or_else(|| PathBuf::from(default_out.map(String::from).unwrap_or(format!("outputs/{}", sc.name))));
+    let out = a
+        .out
+        .unwrap_or_else(|| PathBuf::from(default_out.map(String::from).unwrap_or(format!("outputs/{}", sc.name()))));
     if a.realizations == 0 || a.realizations > 10_000 {
         return Err(bad_flag(
             "--realizations",
             format!("value {} is outside the allowed range [1, 10000]", a.realizations),
         ));
     }
-    if a.realizations > 1 && sc.draw.is_none() {
+    if a.realizations > 1 && sc.draw().is_none() {
         return Err(bad_flag(
             "--realizations",
             "averaging needs random layouts: add a [draw] table to the scenario".into(),
@@ -493,7 +494,7 @@ fn links_cmd(
     max_memory_mib: u64,
     quiet: bool,
 ) -> anyhow::Result<ExitCode> {
-    let out = out.unwrap_or_else(|| PathBuf::from(format!("outputs/{}", sc.name)));
+    let out = out.unwrap_or_else(|| PathBuf::from(format!("outputs/{}", sc.name())));
     let res = lobemap::run::links::run_links(
         sc,
         &lobemap::run::links::LinksOptions { out: out.clone(), monte_carlo, maps, max_memory_mib },
@@ -501,7 +502,7 @@ fn links_cmd(
     if json {
         println!("{}", serde_json::to_string_pretty(&res.rows)?);
     } else if !quiet {
-        print!("{}", lobemap::jobs::links::table(&res.rows, sc.thresholds.sinr_db, sc.thresholds.coverage_target));
+        print!("{}", lobemap::jobs::links::table(&res.rows, sc.thresholds().sinr_db, sc.thresholds().coverage_target));
     }
     if !quiet {
         eprintln!("wrote {} files to {}", res.files.len(), out.display());

@@ -98,40 +98,106 @@ pub struct InstallSettings {
     pub declination_date: (i32, u16),
 }
 
-/// A validated scenario with its nodes loaded.
+/// A validated scenario with its nodes loaded. Its fields are read through the accessors;
+/// it is built by [`crate::config`] from files or by [`Scenario::from_parts`] and the `with_`
+/// builders, so a scenario is always consistent.
 #[derive(Debug, Clone)]
 pub struct Scenario {
     /// Scenario name (used for the default output folder).
-    pub name: String,
+    pub(crate) name: String,
     /// The scenario file.
-    pub path: PathBuf,
+    pub(crate) path: PathBuf,
     /// The node file.
-    pub nodes_path: PathBuf,
+    pub(crate) nodes_path: PathBuf,
     /// Nodes, in file order.
-    pub nodes: Vec<Node>,
+    pub(crate) nodes: Vec<Node>,
     /// Radio parameters.
-    pub radio: Radio,
+    pub(crate) radio: Radio,
     /// Path-loss model.
-    pub pathloss: PathLoss,
+    pub(crate) pathloss: PathLoss,
     /// Receiver model.
-    pub receiver: Receiver,
+    pub(crate) receiver: Receiver,
     /// Map grid.
-    pub grid: Grid,
+    pub(crate) grid: Grid,
     /// Local tangent plane at the grid centre.
-    pub frame: LocalFrame,
+    pub(crate) frame: LocalFrame,
     /// Decision thresholds.
-    pub thresholds: Thresholds,
+    pub(crate) thresholds: Thresholds,
     /// Random layout drawn around (or instead of) the fixed nodes.
-    pub draw: Option<DrawSpec>,
+    pub(crate) draw: Option<DrawSpec>,
     /// Fading and shadowing.
-    pub fading: FadingSpec,
+    pub(crate) fading: FadingSpec,
     /// Link-table settings.
-    pub links: LinkSettings,
+    pub(crate) links: LinkSettings,
     /// Installer-sheet settings.
-    pub install: InstallSettings,
+    pub(crate) install: InstallSettings,
 }
 
 impl Scenario {
+    /// Scenario name (used for the default output folder).
+    pub fn name(&self) -> &str {
+        &self.name
+    }
+    /// The scenario file.
+    pub fn path(&self) -> &std::path::Path {
+        &self.path
+    }
+    /// The node file.
+    pub fn nodes_path(&self) -> &std::path::Path {
+        &self.nodes_path
+    }
+    /// Nodes, in file order.
+    pub fn nodes(&self) -> &[Node] {
+        &self.nodes
+    }
+    /// Radio parameters.
+    pub fn radio(&self) -> &Radio {
+        &self.radio
+    }
+    /// Path-loss model (and the carrier frequency).
+    pub fn pathloss(&self) -> &PathLoss {
+        &self.pathloss
+    }
+    /// Receiver model.
+    pub fn receiver(&self) -> &Receiver {
+        &self.receiver
+    }
+    /// Map grid.
+    pub fn grid(&self) -> &Grid {
+        &self.grid
+    }
+    /// Local tangent plane at the grid centre.
+    pub fn frame(&self) -> &LocalFrame {
+        &self.frame
+    }
+    /// Decision thresholds.
+    pub fn thresholds(&self) -> &Thresholds {
+        &self.thresholds
+    }
+    /// Random layout drawn around (or instead of) the fixed nodes.
+    pub fn draw(&self) -> Option<&DrawSpec> {
+        self.draw.as_ref()
+    }
+    /// Fading and shadowing.
+    pub fn fading(&self) -> &FadingSpec {
+        &self.fading
+    }
+    /// Link-table settings.
+    pub fn links(&self) -> &LinkSettings {
+        &self.links
+    }
+    /// Installer-sheet settings.
+    pub fn install(&self) -> &InstallSettings {
+        &self.install
+    }
+    /// The same scenario with other fading and shadowing.
+    pub fn with_fading(self, fading: FadingSpec) -> Scenario {
+        Scenario { fading, ..self }
+    }
+    /// The same scenario with another layout (the grid and frame stay).
+    pub fn with_nodes(self, nodes: Vec<Node>) -> Scenario {
+        Scenario { nodes, ..self }
+    }
     /// A scenario built in code (tests, benchmarks, library users): the frame is placed at the
     /// grid centre; no `[draw]`, no fading, default link and installer settings.
     pub fn from_parts(

@@ -22,6 +22,7 @@
 //! - F. Baccelli, B. Błaszczyszyn and P. Mühlethaler, "An Aloha protocol for multihop mobile
 //!   wireless networks", IEEE Trans. Inf. Theory 52(2), 2006.
 
+use crate::error::ModelError;
 use crate::model::antenna::GainLaw;
 use crate::model::fading::Fading;
 use crate::model::pathloss::PathLoss;
@@ -30,30 +31,31 @@ use crate::random::points::matern_ii_density;
 use num_complex::Complex64;
 use std::f64::consts::PI;
 
-/// The random-field model.
+/// The random-field model, built by [`Field::new`] and the `with_` builders (each checks its
+/// value), or from command-line values by [`crate::config::field::FieldSpec::build`].
 #[derive(Debug, Clone)]
 pub struct Field {
     /// Parent density, per m².
-    pub density_per_m2: f64,
+    pub(crate) density_per_m2: f64,
     /// Independent retention probability.
-    pub keep: f64,
+    pub(crate) keep: f64,
     /// Matérn II hard-core distance, m (0: none).
-    pub hard_core_m: f64,
+    pub(crate) hard_core_m: f64,
     /// Guard radius (no interferer closer), m.
-    pub guard_m: f64,
+    pub(crate) guard_m: f64,
     /// Outer radius, m.
-    pub radius_m: f64,
+    pub(crate) radius_m: f64,
     /// Interferer transmit power, mW.
-    pub power_mw: f64,
+    pub(crate) power_mw: f64,
     /// Gain law of the interferers' transmit antennas toward the receiver (uniform
     /// orientation; any pattern through [`crate::model::antenna::Pattern::orientation_law`]).
-    pub tx: GainLaw,
+    pub(crate) tx: GainLaw,
     /// Gain law of the receiver's antenna toward an interferer.
-    pub rx: GainLaw,
+    pub(crate) rx: GainLaw,
     /// Fading of each interfering link.
-    pub fading: Fading,
+    pub(crate) fading: Fading,
     /// Path-loss model.
-    pub pathloss: PathLoss,
+    pub(crate) pathloss: PathLoss,
 }
 
 pub use crate::math::quadrature::gauss_legendre;
@@ -71,6 +73,125 @@ pub struct Radial {
 }
 
 impl Field {
+    /// A Poisson field of interferers of `density_per_m2` ((0, 10] per m²) on the annulus
+    /// `guard_m` ≤ r ≤ `radius_m` (0 ≤ guard < radius ≤ 1e6 m) with `pathloss`; 1 mW
+    /// interferers, omni 0 dBi at both ends, Rayleigh fading, no thinning, no hard core.
+    ///
+    /// ```
+    /// use lobemap::model::pathloss::{PathLoss, PowerLaw};
+    /// use lobemap::random::field::Field;
+    /// let pl = PathLoss::new(PowerLaw::new(4.0, 0.0).unwrap(), 2.0, 0.0, 1e-3).unwrap();
+    /// let f = Field::new(1e-4, 0.0, 2000.0, pl).unwrap();
+    /// assert!(Field::new(1e-4, 10.0, 5.0, f.pathloss().clone()).is_err());
+    /// ```
+    pub fn new(density_per_m2: f64, guard_m: f64, radius_m: f64, pathloss: PathLoss) -> Result<Field, Vec<ModelError>> {
+        let f = Field {
+            density_per_m2,
+            keep: 1.0,
+            hard_core_m: 0.0,
+            guard_m,
+            radius_m,
+            power_mw: 1.0,
+            tx: GainLaw::two_level(1.0, 0.0, 0.0),
+            rx: GainLaw::two_level(1.0, 0.0, 0.0),
+            fading: Fading::RAYLEIGH,
+            pathloss,
+        };
+        f.checked()
+    }
+
+    fn checked(self) -> Result<Field, Vec<ModelError>> {
+        let mut e = Vec::new();
+        if !(self.density_per_m2.is_finite() && self.density_per_m2 > 0.0 && self.density_per_m2 <= 10.0) {
+            e.push(ModelError::out_of_range("density_per_m2", self.density_per_m2, "(0, 10] per m²"));
+        }
+        if !(self.radius_m.is_finite() && self.radius_m > 0.0 && self.radius_m <= 1e6) {
+            e.push(ModelError::out_of_range("radius_m", self.radius_m, "(0, 1e6] m"));
+        }
+        if !(self.guard_m.is_finite() && self.guard_m >= 0.0 && self.guard_m < self.radius_m) {
+            e.push(ModelError::out_of_range("guard_m", self.guard_m, "[0, radius_m) m"));
+        }
+        if !(self.keep > 0.0 && self.keep <= 1.0) {
+            e.push(ModelError::out_of_range("keep", self.keep, "(0, 1]"));
+        }
+        if !(self.hard_core_m.is_finite() && (0.0..=10_000.0).contains(&self.hard_core_m)) {
+            e.push(ModelError::out_of_range("hard_core_m", self.hard_core_m, "[0, 10000] m"));
+        }
+        if !(self.power_mw.is_finite() && self.power_mw > 0.0) {
+            e.push(ModelError::out_of_range("power_mw", self.power_mw, "(0, inf) mW"));
+        }
+        if e.is_empty() { Ok(self) } else { Err(e) }
+    }
+
+    /// The same field with another parent density, per m².
+    pub fn with_density_per_m2(self, density_per_m2: f64) -> Result<Field, Vec<ModelError>> {
+        Field { density_per_m2, ..self }.checked()
+    }
+    /// The same field with independent thinning: each interferer kept with probability `keep`.
+    pub fn with_keep(self, keep: f64) -> Result<Field, Vec<ModelError>> {
+        Field { keep, ..self }.checked()
+    }
+    /// The same field with Matérn II hard-core thinning at `hard_core_m` (0: none).
+    pub fn with_hard_core_m(self, hard_core_m: f64) -> Result<Field, Vec<ModelError>> {
+        Field { hard_core_m, ..self }.checked()
+    }
+    /// The same field on another annulus.
+    pub fn with_annulus(self, guard_m: f64, radius_m: f64) -> Result<Field, Vec<ModelError>> {
+        Field { guard_m, radius_m, ..self }.checked()
+    }
+    /// The same field with another interferer power, mW.
+    pub fn with_power_mw(self, power_mw: f64) -> Result<Field, Vec<ModelError>> {
+        Field { power_mw, ..self }.checked()
+    }
+    /// The same field with the interferers' and the receiver's gain laws (any pattern, via
+    /// [`crate::model::antenna::Pattern::orientation_law`]).
+    pub fn with_antennas(self, tx: GainLaw, rx: GainLaw) -> Field {
+        Field { tx, rx, ..self }
+    }
+    /// The same field with another fading law on every interfering link.
+    pub fn with_fading(self, fading: Fading) -> Field {
+        Field { fading, ..self }
+    }
+    /// Parent density, per m².
+    pub fn density_per_m2(&self) -> f64 {
+        self.density_per_m2
+    }
+    /// Independent retention probability.
+    pub fn keep(&self) -> f64 {
+        self.keep
+    }
+    /// Matérn II hard-core distance, m (0: none).
+    pub fn hard_core_m(&self) -> f64 {
+        self.hard_core_m
+    }
+    /// Guard radius, m.
+    pub fn guard_m(&self) -> f64 {
+        self.guard_m
+    }
+    /// Outer radius, m.
+    pub fn radius_m(&self) -> f64 {
+        self.radius_m
+    }
+    /// Interferer transmit power, mW.
+    pub fn power_mw(&self) -> f64 {
+        self.power_mw
+    }
+    /// The interferers' transmit gain law.
+    pub fn tx(&self) -> &GainLaw {
+        &self.tx
+    }
+    /// The receiver's gain law.
+    pub fn rx(&self) -> &GainLaw {
+        &self.rx
+    }
+    /// Fading of each interfering link.
+    pub fn fading(&self) -> Fading {
+        self.fading
+    }
+    /// Path-loss model.
+    pub fn pathloss(&self) -> &PathLoss {
+        &self.pathloss
+    }
     /// Density of the analytic (Poisson) field: λ·keep, then the Matérn II retained density.
     pub fn effective_density(&self) -> f64 {
         let l = self.density_per_m2 * self.keep;
