@@ -325,7 +325,7 @@ pub fn run(cli: Cli) -> anyhow::Result<ExitCode> {
                 .file_name()
                 .and_then(|n| n.to_str())
                 .ok_or_else(|| bad_flag("--out", "needs a file name".into()))?;
-            let mut st = lobemap::io::staging::Staging::new(dir, &[&sc.path(), &sc.nodes_path()])?;
+            let mut st = lobemap::io::staging::Staging::new(dir, &[sc.path(), sc.nodes_path()])?;
             st.write(name, lobemap::io::layout::layout_geojson(&nodes).to_string().as_bytes())?;
             st.commit()?;
             if !cli.quiet {
