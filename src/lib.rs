@@ -1,10 +1,12 @@
 //! lobemap: aggregate interference, SINR and coverage maps for directional wireless nodes.
 //!
 //! Data flows one way: a scenario file and its node layout are parsed and validated
-//! ([`scenario`], [`nodes`]) into a [`scenario::Scenario`]; the [`engine`] computes raster
-//! layers on a [`grid::Grid`]; writers ([`raster`], [`render`], [`hotspots`], [`summary`])
-//! turn layers into files. The physics lives in small value types: [`pathloss::PathLoss`],
-//! [`antenna::Pattern`] and [`noise`].
+//! ([`config`]) into a [`model::scenario::Scenario`]; the [`engine`] computes raster layers on
+//! a [`geometry::grid::Grid`]; [`jobs`] compute link tables, probes and the installer sheet
+//! with the one double-precision link budget ([`model::link`]); [`random`] characterises
+//! random fields; the commands in [`run`] stage and write everything. The physics lives in
+//! small value types, one law or pattern per file: [`model::pathloss`], [`model::antenna`],
+//! [`model::fading`], [`model::noise`].
 #![deny(missing_docs)]
 
 pub mod config;
@@ -13,7 +15,7 @@ pub mod error;
 pub mod geometry;
 pub mod io;
 pub mod jobs;
-pub mod math;
+pub(crate) mod math;
 pub mod model;
 pub mod random;
 pub mod run;

@@ -309,29 +309,13 @@ pub fn run(cli: Cli) -> anyhow::Result<ExitCode> {
         }
         Cmd::Draw { scenario, out, seed } => {
             let sc = Scenario::load(&scenario)?;
-            let spec = sc.draw().ok_or_else(|| {
-                anyhow::Error::from(Error::input(Problem::new(
-                    scenario.display().to_string(),
-                    None,
-                    "draw",
-                    "missing: add a [draw] table (density_per_km2, ...)",
-                )))
-            })?;
             let t0 = std::time::Instant::now();
-            let nodes = lobemap::random::layout::layout(&sc, spec, seed.unwrap_or(spec.seed));
-            let drawn = nodes.iter().filter(|n| n.id.starts_with("draw-")).count();
-            let dir = out.parent().filter(|p| !p.as_os_str().is_empty()).unwrap_or(Path::new("."));
-            let name = out
-                .file_name()
-                .and_then(|n| n.to_str())
-                .ok_or_else(|| bad_flag("--out", "needs a file name".into()))?;
-            let mut st = lobemap::io::staging::Staging::new(dir, &[sc.path(), sc.nodes_path()])?;
-            st.write(name, lobemap::io::layout::layout_geojson(&nodes).to_string().as_bytes())?;
-            st.commit()?;
+            let res = lobemap::run::draw::run_draw(&sc, &out, seed)?;
             if !cli.quiet {
                 eprintln!(
-                    "drew {drawn} nodes ({} in the layout) in {:.2} s; wrote {}",
-                    nodes.len(),
+                    "drew {} nodes ({} in the layout) in {:.2} s; wrote {}",
+                    res.drawn,
+                    res.nodes.len(),
                     t0.elapsed().as_secs_f64(),
                     out.display()
                 );

@@ -256,7 +256,7 @@ pub(crate) fn pass_aimed<D: Decay, G: TxGain, A: PairFactor, C: RxCoupling>(
     }
 }
 
-/// The interferers' Laplace transform E[e^{−t h}] in the vectorisable form.
+/// The interferers' Laplace transform E\[e^{−t h}\] in the vectorisable form.
 pub(crate) trait Lt: Copy {
     fn l(self, t: f32) -> f32;
 }

@@ -6,7 +6,7 @@
 //! independent lane. The main-lobe test uses dot products (no trigonometry in the pair
 //! loop); the distance law is specialised for exponents 2, 3 and 4, and any other exponent or
 //! absorption uses vectorisable log2/exp2 approximations. The row kernel is compiled for
-//! several instruction sets and chosen at run time ([`crate::engine::simd`]). The order of summation
+//! several instruction sets and chosen at run time (`engine::simd`). The order of summation
 //! is fixed (node index order), so results are bit-identical for any thread count.
 //!
 //! # Definitions (per cell, receiver at `[receiver] height_m`)
@@ -23,13 +23,11 @@ use crate::model::units::lin_to_db;
 use rayon::prelude::*;
 use rstar::{RTree, primitives::GeomWithData};
 
-pub mod fastmath;
+pub(crate) mod fastmath;
 pub(crate) mod kernels;
 mod prepare;
 mod row;
-pub mod simd;
-
-pub use fastmath::{fast_exp2, fast_log2};
+pub(crate) mod simd;
 
 /// Which layers to compute and write.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
@@ -42,7 +40,7 @@ pub struct LayerSet {
     pub sinr: bool,
     /// Best server index.
     pub server: bool,
-    /// Coverage probability P[SINR ≥ T] with fading.
+    /// Coverage probability P\[SINR ≥ T\] with fading.
     pub coverage: bool,
 }
 
@@ -98,7 +96,7 @@ pub struct Options {
     pub progress: bool,
 }
 
-/// Computed layers (row-major, north row first), in dBm / dB / index, [`NODATA`] where
+/// Computed layers (row-major, north row first), in dBm / dB / index, [`crate::NODATA`] where
 /// undefined.
 #[derive(Debug, Clone, Default)]
 pub struct Layers {

@@ -62,8 +62,6 @@ pub struct Rendered {
     pub png: Vec<u8>,
     /// `.pgw` world file content.
     pub world: String,
-    /// Colour-scale limits used (low, high).
-    pub range: (f32, f32),
 }
 
 const PANEL_W: u32 = 190;
@@ -246,5 +244,5 @@ pub fn render(spec: &MapSpec) -> Result<Rendered, String> {
     img.write_to(&mut std::io::Cursor::new(&mut png), image::ImageFormat::Png).map_err(|e| e.to_string())?;
     let (pw, ph) = ((b.east - b.west) / mw as f64, (b.north - b.south) / mh as f64);
     let world = format!("{pw:.12}\n0.0\n0.0\n{:.12}\n{:.12}\n{:.12}\n", -ph, b.west + pw / 2.0, b.north - ph / 2.0);
-    Ok(Rendered { png, world, range: (lo, hi) })
+    Ok(Rendered { png, world })
 }

@@ -1,22 +1,12 @@
 //! Writers: staged output, rasters, heatmaps, polygons, tables, the report.
 
-/// CDF plots.
-pub mod cdfplot;
-/// The colour map.
-pub mod colormap;
-/// Float32 GeoTIFF.
-pub mod geotiff;
-/// PNG heatmaps.
-pub mod heatmap;
-/// Hot-spot polygons.
-pub mod hotspots;
-/// `layout.geojson`.
-pub mod layout;
-/// The HTML report.
-pub mod report;
-/// All-or-nothing output staging.
-pub mod staging;
-/// summary.json.
-pub mod summary;
-/// Text tables and CSV.
+pub(crate) mod cdfplot;
+pub(crate) mod colormap;
+pub(crate) mod geotiff;
+pub(crate) mod heatmap;
+pub(crate) mod hotspots;
+pub(crate) mod layout;
+pub(crate) mod report;
+pub(crate) mod staging;
+pub(crate) mod summary;
 pub mod tables;

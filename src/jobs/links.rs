@@ -66,7 +66,7 @@ pub struct LinkRow {
     pub noise_dbm: f64,
     /// Mean SINR, dB.
     pub sinr_db: f64,
-    /// P[SINR ≥ T] with fading.
+    /// P\[SINR ≥ T\] with fading.
     pub coverage: f64,
     /// Mean SINR minus the threshold, dB.
     pub margin_db: f64,

@@ -47,7 +47,7 @@ pub struct Probe {
     pub sinr_db: f64,
     /// Id of the best server.
     pub server: String,
-    /// P[SINR ≥ T] with the scenario's fading (T = `[thresholds] sinr_db`).
+    /// P\[SINR ≥ T\] with the scenario's fading (T = `[thresholds] sinr_db`).
     pub coverage: f64,
     /// SINR threshold T, dB.
     pub sinr_threshold_db: f64,

@@ -2,11 +2,8 @@
 //!
 //! # References
 //! - M. Abramowitz and I. A. Stegun, Handbook of Mathematical Functions, 25.4.29 (Legendre)
-//!   and 25.4.45 (Laguerre).
-//! - W. H. Press et al., Numerical Recipes, 2nd ed., §4.5 (Newton iteration with asymptotic
-//!   starting values for the generalised Laguerre rule).
+//!   and 25.4.46 (Hermite).
 
-use statrs::function::gamma::ln_gamma;
 use std::f64::consts::PI;
 
 /// Gauss–Legendre nodes and weights on [−1, 1] (Newton on the Legendre recurrence).
@@ -34,49 +31,7 @@ pub fn gauss_legendre(n: usize) -> Vec<(f64, f64)> {
     out
 }
 
-/// Generalised Gauss–Laguerre rule normalised to the gamma law: nodes x_j and weights w_j
-/// with Σ w_j f(x_j) ≈ E[f(X)] for X ~ Gamma(shape, 1), shape = α + 1 > 0.
-pub fn gamma_expectation_rule(n: usize, shape: f64) -> Vec<(f64, f64)> {
-    let alf = shape - 1.0;
-    let nf = n as f64;
-    let mut x: Vec<f64> = Vec::with_capacity(n);
-    let mut out = Vec::with_capacity(n);
-    let mut z = 0.0;
-    for i in 0..n {
-        if i == 0 {
-            z = (1.0 + alf) * (3.0 + 0.92 * alf) / (1.0 + 2.4 * nf + 1.8 * alf);
-        } else if i == 1 {
-            z += (15.0 + 6.25 * alf) / (1.0 + 0.9 * alf + 2.5 * nf);
-        } else {
-            let ai = (i - 1) as f64;
-            z += ((1.0 + 2.55 * ai) / (1.9 * ai) + 1.26 * ai * alf / (1.0 + 3.5 * ai)) * (z - x[i - 2])
-                / (1.0 + 0.3 * alf);
-        }
-        let (mut pp, mut p2) = (0.0, 0.0);
-        for _ in 0..200 {
-            let (mut p1, mut q2) = (1.0, 0.0);
-            for j in 1..=n {
-                let p3 = q2;
-                q2 = p1;
-                p1 = ((2.0 * j as f64 - 1.0 + alf - z) * q2 - (j as f64 - 1.0 + alf) * p3) / j as f64;
-            }
-            p2 = q2;
-            pp = (nf * p1 - (nf + alf) * p2) / z;
-            let z1 = z;
-            z = z1 - p1 / pp;
-            if (z - z1).abs() <= 1e-14 * z.abs().max(1.0) {
-                break;
-            }
-        }
-        x.push(z);
-        // w = −Γ(α+n)/(Γ(n) pp n p2), divided by Γ(α+1) to normalise.
-        let lw = ln_gamma(alf + nf) - ln_gamma(nf) - ln_gamma(alf + 1.0);
-        out.push((z, -lw.exp() / (pp * nf * p2)));
-    }
-    out
-}
-
-/// Gauss–Hermite rule normalised to the standard normal law: Σ w_j f(z_j) ≈ E[f(Z)],
+/// Gauss–Hermite rule normalised to the standard normal law: Σ w_j f(z_j) ≈ E\[f(Z)\],
 /// Z ~ N(0, 1) (Newton on the orthonormal Hermite recurrence, Numerical Recipes §4.5).
 pub fn normal_expectation_rule(n: usize) -> Vec<(f64, f64)> {
     let pim4 = PI.powf(-0.25);
@@ -140,20 +95,6 @@ mod tests {
                 dfact *= (2 * k - 1) as f64;
                 let got: f64 = r.iter().map(|(z, w)| w * z.powi(2 * k as i32)).sum();
                 assert!((got / dfact - 1.0).abs() < 1e-10, "n {n} k {k}: {got}");
-            }
-        }
-    }
-
-    // Gamma moments E[X^k] = Γ(a+k)/Γ(a) (standard result), exact for k ≤ 2n − 1.
-    #[test]
-    fn gamma_rule_reproduces_moments() {
-        for a in [0.6, 1.0, 2.77, 11.0] {
-            let r = gamma_expectation_rule(20, a);
-            assert!((r.iter().map(|p| p.1).sum::<f64>() - 1.0).abs() < 1e-12, "a {a}");
-            for k in 1..6 {
-                let want = (ln_gamma(a + k as f64) - ln_gamma(a)).exp();
-                let got: f64 = r.iter().map(|(x, w)| w * x.powi(k)).sum();
-                assert!((got / want - 1.0).abs() < 1e-10, "a {a} k {k}: {got} vs {want}");
             }
         }
     }

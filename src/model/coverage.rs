@@ -1,17 +1,17 @@
-//! Coverage probability P[SINR ≥ T] for a receiver served by a given signal, with fading and
+//! Coverage probability P\[SINR ≥ T\] for a receiver served by a given signal, with fading and
 //! shadowing: exact when the wanted signal is Rayleigh without shadowing, otherwise by
 //! matching the aggregate interference to a gamma law. Also a seeded Monte Carlo of the same
 //! model, for cross-checks.
 //!
 //! Model: S = S̄ h₀ X₀, I = Σ B_i P̄_i h_i X_i, with B_i ~ Bernoulli(a_i) (activity), h the
-//! normalised fading powers (E[h] = 1) and X = 10^(σZ/10) log-normal shadowing (Z standard
-//! normal; E[X] = exp((σ ln10/10)²/2), so shadowing raises the mean power).
+//! normalised fading powers (E\[h\] = 1) and X = 10^(σZ/10) log-normal shadowing (Z standard
+//! normal; E\[X\] = exp((σ ln10/10)²/2), so shadowing raises the mean power).
 //!
 //! - Exact (Rayleigh S, σ = 0): P = exp(−T N / S̄) Π_i (1 − a_i + a_i L_h(T P̄_i / S̄)), with the
-//!   interferers' Laplace transform L_h(t) = E[e^{−t h}]: (1 + t/m)^{−m} (Nakagami, m = 1 for
+//!   interferers' Laplace transform L_h(t) = E\[e^{−t h}\]: (1 + t/m)^{−m} (Nakagami, m = 1 for
 //!   Rayleigh), (1+K)/(1+K+t)·exp(−Kt/(1+K+t)) (Rician), e^{−t} (none).
-//! - Moment matching: μ = E[X] Σ a_i P̄_i, σ² = Σ (a_i E[h²]E[X²] − a_i² E[X]²) P̄_i²; I ≈ Gamma(μ²/σ²,
-//!   σ²/μ). The signal's fading is put in gamma form with shape 1/(E[h₀²] − 1) (for Rician h₀
+//! - Moment matching: μ = E\[X\] Σ a_i P̄_i, σ² = Σ (a_i E\[h²\]E\[X²\] − a_i² E\[X\]²) P̄_i²; I ≈ Gamma(μ²/σ²,
+//!   σ²/μ). The signal's fading is put in gamma form with shape 1/(E\[h₀²\] − 1) (for Rician h₀
 //!   this is (K+1)²/(2K+1), Nakagami 1960; shapes above 50 are taken as 50) and
 //!   P = E_{h₀,X₀}[F_I(S̄h₀X₀/T − N)]. For an integer signal shape m this has the closed
 //!   "Laplace form" Σ_{j<m} (−s)^j/j! L^{(j)}(s), s = mT/S̄, with L the transform of the gamma
@@ -35,7 +35,7 @@ use rand_distr::{Distribution, StandardNormal};
 use rayon::prelude::*;
 use statrs::function::gamma::gamma_lr;
 
-/// P[S ≥ T(I + N)] for S ~ Gamma(m, S̄/m) with integer m ≥ 1 and I ~ Gamma(k, θ) (or I = 0
+/// P\[S ≥ T(I + N)\] for S ~ Gamma(m, S̄/m) with integer m ≥ 1 and I ~ Gamma(k, θ) (or I = 0
 /// when k is infinite), from the Laplace transform L(s) = e^{−sN}(1 + θs)^{−k} of I + N:
 /// P = Σ_{j<m} (−s)^j/j! L^{(j)}(s) at s = mT/S̄, expanded by Leibniz's rule into
 /// e^{−sN}(1+θs)^{−k} Σ_j Σ_{i≤j} (sN)^{j−i}/(j−i)! · (k)_i/i! · (θs/(1+θs))^i (all terms positive).
@@ -96,9 +96,9 @@ pub struct CoverageModel {
     pub noise_mw: f64,
     /// Fading and shadowing.
     pub spec: FadingSpec,
-    /// E[X] of shadowing.
+    /// E\[X\] of shadowing.
     pub e1: f64,
-    /// E[h²]·E[X²] of an interferer.
+    /// E\[h²\]·E\[X²\] of an interferer.
     pub e2: f64,
     /// Gamma shape of the signal's fading (∞: none).
     pub signal_shape: f64,
@@ -141,7 +141,7 @@ impl CoverageModel {
         }
     }
 
-    /// The interferers' Laplace transform E[e^{−t h}].
+    /// The interferers' Laplace transform E\[e^{−t h}\].
     pub fn lt(&self, t: f64) -> f64 {
         self.spec.interferer.laplace(t)
     }
@@ -239,7 +239,7 @@ impl CoverageModel {
         acc
     }
 
-    /// P[SINR ≥ T] for mean signal `s_mw` and interferers (activity, mean power mW).
+    /// P\[SINR ≥ T\] for mean signal `s_mw` and interferers (activity, mean power mW).
     pub fn probability(&self, s_mw: f64, interferers: &[(f64, f64)]) -> f64 {
         match self.method {
             Method::Exact => {
@@ -257,7 +257,7 @@ impl CoverageModel {
         }
     }
 
-    /// Seeded Monte Carlo of P[SINR ≥ T]: (estimate, 95 % Wilson interval low, high).
+    /// Seeded Monte Carlo of P\[SINR ≥ T\]: (estimate, 95 % Wilson interval low, high).
     pub fn monte_carlo(&self, s_mw: f64, interferers: &[(f64, f64)], trials: usize, seed: u64) -> (f64, f64, f64) {
         const CHUNK: usize = 4096;
         let chunks = trials.div_ceil(CHUNK);

@@ -9,9 +9,9 @@
 //! link fades independently with normalised power h. Path gain ℓ(r) = 1/L(r) from the
 //! scenario's path-loss model (planar distance, heights ignored).
 //!
-//! - Cumulants (Campbell's theorem): κ_n = λ Pⁿ E[G_tⁿ] E[G_rⁿ] E[hⁿ] ∫_A ℓ(|x|)ⁿ dx.
+//! - Cumulants (Campbell's theorem): κ_n = λ Pⁿ E\[G_tⁿ\] E\[G_rⁿ\] E\[hⁿ\] ∫_A ℓ(|x|)ⁿ dx.
 //! - Laplace transform (probability generating functional of the Poisson process, i.e. the
-//!   law of total probability over the Poisson count): L_I(s) = exp(−λ ∫_A (1 − E[e^{−s P G h ℓ}]) dx).
+//!   law of total probability over the Poisson count): L_I(s) = exp(−λ ∫_A (1 − E\[e^{−s P G h ℓ}\]) dx).
 //!
 //! With a Matérn II hard core the analytic results use a Poisson field of the retained
 //! density (the pair correlation of the hard core is ignored); the Monte Carlo simulates the
@@ -273,12 +273,12 @@ impl Field {
             * integral
     }
 
-    /// E[e^{−t h}] for complex t with Re t ≥ 0.
+    /// E\[e^{−t h}\] for complex t with Re t ≥ 0.
     pub fn fading_transform(&self, t: Complex64) -> Complex64 {
         self.fading.laplace_complex(t)
     }
 
-    /// ln L_I(s) = −λ ∫_A (1 − E[e^{−s P G_t G_r h ℓ}]) dA for complex s (Re s > 0).
+    /// ln L_I(s) = −λ ∫_A (1 − E\[e^{−s P G_t G_r h ℓ}\]) dA for complex s (Re s > 0).
     pub fn log_laplace(&self, s: Complex64, rad: &Radial) -> Complex64 {
         let combos: Vec<(f64, f64)> = self
             .tx

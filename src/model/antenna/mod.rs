@@ -70,7 +70,7 @@ impl GainLaw {
     pub fn levels(&self) -> &[(f64, f64)] {
         &self.0
     }
-    /// E[Gⁿ] (any real n).
+    /// E\[Gⁿ\] (any real n).
     pub fn moment(&self, n: f64) -> f64 {
         self.0.iter().map(|&(p, g)| p * g.powf(n)).sum()
     }

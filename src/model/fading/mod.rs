@@ -1,7 +1,7 @@
-//! Small-scale fading of a normalised power gain h (E[h] = 1) and log-normal shadowing.
+//! Small-scale fading of a normalised power gain h (E\[h\] = 1) and log-normal shadowing.
 //!
 //! Each law lives in its own file with every formula the project needs of it: moments, the
-//! Laplace transform E[e^{−t h}] (real and complex), samplers (double precision, and float32
+//! Laplace transform E\[e^{−t h}\] (real and complex), samplers (double precision, and float32
 //! for the random-field Monte Carlo) and the float32 transform the engine's coverage kernel
 //! evaluates. [`Fading`] dispatches to them; adding a law is a file and one line per method
 //! here, plus its name in [`Fading::NAMES`].
@@ -139,7 +139,7 @@ impl Fading {
         }
     }
 
-    /// The n-th moment E[hⁿ] (n ≥ 0).
+    /// The n-th moment E\[hⁿ\] (n ≥ 0).
     pub fn moment(&self, n: u32) -> f64 {
         match self.0 {
             Law::None => none::moment(n),
@@ -149,7 +149,7 @@ impl Fading {
         }
     }
 
-    /// The Nakagami-m of the gamma law with the same first two moments: 1 / Var[h]
+    /// The Nakagami-m of the gamma law with the same first two moments: 1 / Var\[h\]
     /// (∞ for no fading). For Rician this is (K+1)²/(2K+1) (Nakagami 1960).
     pub fn gamma_shape(&self) -> f64 {
         match self.0 {
@@ -160,7 +160,7 @@ impl Fading {
         }
     }
 
-    /// The Laplace transform E[e^{−t h}] at real t ≥ 0.
+    /// The Laplace transform E\[e^{−t h}\] at real t ≥ 0.
     pub fn laplace(&self, t: f64) -> f64 {
         match self.0 {
             Law::None => none::laplace(t),
@@ -170,7 +170,7 @@ impl Fading {
         }
     }
 
-    /// The Laplace transform E[e^{−t h}] at complex t with Re t ≥ 0.
+    /// The Laplace transform E\[e^{−t h}\] at complex t with Re t ≥ 0.
     pub fn laplace_complex(&self, t: Complex64) -> Complex64 {
         match self.0 {
             Law::None => none::laplace_complex(t),

@@ -8,17 +8,17 @@ use rand::Rng;
 use rand_distr::{Distribution, Gamma};
 use statrs::function::gamma::ln_gamma;
 
-/// E[hⁿ] = Γ(m + n) / (Γ(m) mⁿ).
+/// E\[hⁿ\] = Γ(m + n) / (Γ(m) mⁿ).
 pub(super) fn moment(m: f64, n: u32) -> f64 {
     (ln_gamma(m + n as f64) - ln_gamma(m) - n as f64 * m.ln()).exp()
 }
 
-/// E[e^{−t h}] = (1 + t/m)^{−m}, real t.
+/// E\[e^{−t h}\] = (1 + t/m)^{−m}, real t.
 pub(super) fn laplace(m: f64, t: f64) -> f64 {
     (1.0 + t / m).powf(-m)
 }
 
-/// E[e^{−t h}] = exp(−m ln(1 + t/m)), complex t.
+/// E\[e^{−t h}\] = exp(−m ln(1 + t/m)), complex t.
 pub(super) fn laplace_complex(m: f64, t: num_complex::Complex64) -> num_complex::Complex64 {
     (-m * (1.0 + t / m).ln()).exp()
 }

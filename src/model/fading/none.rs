@@ -1,16 +1,16 @@
 //! No fading: h = 1 (a steady line-of-sight path).
 
-/// E[hⁿ] = 1.
+/// E\[hⁿ\] = 1.
 pub(super) fn moment(_n: u32) -> f64 {
     1.0
 }
 
-/// E[e^{−t h}] = e^{−t}, real t.
+/// E\[e^{−t h}\] = e^{−t}, real t.
 pub(super) fn laplace(t: f64) -> f64 {
     (-t).exp()
 }
 
-/// E[e^{−t h}] = e^{−t}, complex t.
+/// E\[e^{−t h}\] = e^{−t}, complex t.
 pub(super) fn laplace_complex(t: num_complex::Complex64) -> num_complex::Complex64 {
     (-t).exp()
 }

@@ -3,17 +3,17 @@
 use rand::Rng;
 use rand_distr::{Distribution, Exp1};
 
-/// E[hⁿ] = n! (moments of Exp(1)).
+/// E\[hⁿ\] = n! (moments of Exp(1)).
 pub(super) fn moment(n: u32) -> f64 {
     (1..=n).map(f64::from).product()
 }
 
-/// E[e^{−t h}] = 1 / (1 + t), real t.
+/// E\[e^{−t h}\] = 1 / (1 + t), real t.
 pub(super) fn laplace(t: f64) -> f64 {
     1.0 / (1.0 + t)
 }
 
-/// E[e^{−t h}] = 1 / (1 + t), complex t.
+/// E\[e^{−t h}\] = 1 / (1 + t), complex t.
 pub(super) fn laplace_complex(t: num_complex::Complex64) -> num_complex::Complex64 {
     1.0 / (1.0 + t)
 }

@@ -1,8 +1,8 @@
 //! Rician amplitude with K-factor K (linear): h = |√(K/(K+1)) + CN(0, 1/(K+1))|², mean 1.
 //!
 //! # References
-//! - Moments from the non-central χ² with two degrees of freedom: E[Xⁿ] = n! Σ_j C(n, j)
-//!   K^j / j! for X = |√K + CN(0, 1)|² (Laguerre form), h = X/(K+1); E[h²] =
+//! - Moments from the non-central χ² with two degrees of freedom: E\[Xⁿ\] = n! Σ_j C(n, j)
+//!   K^j / j! for X = |√K + CN(0, 1)|² (Laguerre form), h = X/(K+1); E\[h²\] =
 //!   (2 + 4K + K²)/(1 + K)² (values checked against scipy.stats.rice, docs/reference-values.md).
 //! - Laplace transform (1+K)/(1+K+t)·exp(−Kt/(1+K+t)) (common practice; the moment generating
 //!   function of the non-central χ²).
@@ -10,7 +10,7 @@
 use rand::Rng;
 use rand_distr::{Distribution, StandardNormal};
 
-/// E[hⁿ].
+/// E\[hⁿ\].
 pub(super) fn moment(k: f64, n: u32) -> f64 {
     let mut s = 0.0;
     let mut binom = 1.0;
@@ -26,12 +26,12 @@ pub(super) fn moment(k: f64, n: u32) -> f64 {
     nfact * s / (k + 1.0).powi(n as i32)
 }
 
-/// E[e^{−t h}], real t.
+/// E\[e^{−t h}\], real t.
 pub(super) fn laplace(k: f64, t: f64) -> f64 {
     (1.0 + k) / (1.0 + k + t) * (-k * t / (1.0 + k + t)).exp()
 }
 
-/// E[e^{−t h}], complex t.
+/// E\[e^{−t h}\], complex t.
 pub(super) fn laplace_complex(k: f64, t: num_complex::Complex64) -> num_complex::Complex64 {
     let d = 1.0 + k + t;
     (1.0 + k) / d * (-k * t / d).exp()

@@ -12,7 +12,7 @@
 //! Distances in metres, frequencies in GHz, losses in dB at the interface.
 //!
 //! # References
-//! - ITU-R P.525-4 (free space; see [`free_space`]).
+//! - ITU-R P.525-4 (free space; see [`FreeSpace`]).
 //! - ITU-R P.676 for gaseous absorption (user-supplied dB/km).
 
 use crate::error::ModelError;
