@@ -10,3 +10,4 @@ pub(crate) mod report;
 pub(crate) mod staging;
 pub(crate) mod summary;
 pub mod tables;
+pub(crate) mod writer;

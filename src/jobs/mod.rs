@@ -4,3 +4,4 @@ pub mod install;
 pub mod links;
 
 pub mod probe;
+pub(crate) mod zones;

@@ -3,13 +3,13 @@
 
 use crate::engine::{Engine, LayerSet, Layers, Options};
 use crate::error::{Error, Problem};
-use crate::io::geotiff::write_geotiff;
-use crate::io::heatmap::{MapSpec, Marker, render};
-use crate::io::hotspots::regions;
+use crate::io::heatmap::{Marker, PROBABILITY};
+use crate::io::hotspots::{outlines, zones_geojson};
 use crate::io::layout::layout_geojson;
 use crate::io::staging::Staging;
 use crate::io::summary::{Spread, Summary};
-use crate::jobs::probe::probe;
+use crate::io::writer::{Context, LayerOut, write_layer};
+use crate::jobs::zones::{hotspots, outage_zones};
 use crate::math::stats::Histogram;
 use crate::model::scenario::Scenario;
 use crate::model::units::{dbm_to_mw, mw_to_dbm};
@@ -103,105 +103,45 @@ pub fn run_map(sc: &Scenario, opts: &MapOptions) -> Result<MapResult, Error> {
     let noise_dbm = sc.noise_dbm();
     let grid = &sc.grid;
     let (markers, links) = markers_and_links(sc);
-    let mut files = Vec::new();
-    let tif = |st: &mut Staging, name: &str, data: &[f32]| {
-        st.write_with(name, |w| write_geotiff(w, grid, data).map_err(std::io::Error::other))
+    let cx = Context { grid, markers: &markers, links: &links };
+    let mut files: Vec<String> = Vec::new();
+    let hot = layers.interference.as_deref().map(|i| hotspots(sc, i));
+    let low = layers.coverage.as_deref().map(|c| outage_zones(sc, c));
+    let layer = |name, title: &str, unit, data, outlines| LayerOut {
+        name,
+        title: title.to_string(),
+        unit,
+        data,
+        outlines,
+        picture: name != "server",
     };
-    let png = |st: &mut Staging, name: &str, title: &str, unit: &str, data: &[f32], outlines: &[Vec<(f64, f64)>]| {
-        let r = render(&MapSpec { grid, data, title, unit, markers: &markers, links: &links, outlines })
-            .map_err(|e| Error::Output { path: st.dir().join(name), source: std::io::Error::other(e) })?;
-        st.write(&format!("{name}.png"), &r.png)?;
-        st.write(&format!("{name}.pgw"), r.world.as_bytes())
-    };
-    let mut hotspots = None;
-    let mut hotspot_features = Vec::new();
     if let Some(t) = &layers.total {
-        tif(&mut st, "total.tif", t)?;
-        png(&mut st, "total", "Total received", "dBm", t, &[])?;
-        files.extend(["total.tif", "total.png", "total.pgw"]);
+        files.extend(write_layer(&mut st, &cx, &layer("total", "Total received", "dBm", t, Vec::new()))?);
     }
-    if let Some(i) = &layers.interference {
-        tif(&mut st, "interference.tif", i)?;
-        let level = (noise_dbm + sc.thresholds.hotspot_i_over_n_db) as f32;
-        let regs = regions(grid, i, level, false);
-        let outlines = crate::io::hotspots::outlines(&regs);
-        png(&mut st, "interference", "Interference", "dBm", i, &outlines)?;
-        files.extend(["interference.tif", "interference.png", "interference.pgw"]);
-        let features: Vec<geojson::Feature> = regs
-            .iter()
-            .map(|r| {
-                let (lat, lon) = (grid.lat_of_row(r.peak_cell.0), grid.lon_of_col(r.peak_cell.1));
-                let pr = probe(sc, lat, lon);
-                let server_idx = sc.nodes.iter().position(|n| n.id == pr.server);
-                let mut contrib: Vec<_> = pr.contributions.iter().filter(|c| Some(c.index) != server_idx).collect();
-                let weighted =
-                    |c: &&crate::jobs::probe::Contribution| c.power_dbm + crate::model::units::lin_to_db(c.activity);
-                contrib.sort_by(|a, b| weighted(b).total_cmp(&weighted(a)));
-                let dominant: Vec<String> = contrib.iter().take(3).map(|c| c.id.clone()).collect();
-                let mut p = serde_json::Map::new();
-                p.insert("kind".into(), "interference".into());
-                p.insert("peak_i_over_n_db".into(), round2(r.peak_value as f64 - noise_dbm).into());
-                p.insert("peak_interference_dbm".into(), round2(r.peak_value as f64).into());
-                p.insert("peak_lon".into(), lon.into());
-                p.insert("peak_lat".into(), lat.into());
-                p.insert("area_m2".into(), round2(r.area_m2).into());
-                p.insert("dominant".into(), dominant.into());
-                geojson::Feature {
-                    bbox: None,
-                    geometry: Some(geojson::Geometry::from(&r.polygon)),
-                    id: None,
-                    properties: Some(p),
-                    foreign_members: None,
-                }
-            })
-            .collect();
-        hotspots = Some(features.len());
-        hotspot_features = features;
+    if let (Some(i), Some(h)) = (&layers.interference, &hot) {
+        let outlines = h.iter().map(|h| h.region.exterior_lon_lat()).collect();
+        files.extend(write_layer(&mut st, &cx, &layer("interference", "Interference", "dBm", i, outlines))?);
     }
-    let mut outage = None;
-    if let Some(cv) = &layers.coverage {
-        tif(&mut st, "coverage.tif", cv)?;
-        let target = sc.thresholds.coverage_target as f32;
-        let regs = regions(grid, cv, target, true);
-        let outlines = crate::io::hotspots::outlines(&regs);
+    if let (Some(cv), Some(z)) = (&layers.coverage, &low) {
         let title = format!("Coverage T={} dB", sc.thresholds.sinr_db);
-        png(&mut st, "coverage", &title, crate::io::heatmap::PROBABILITY, cv, &outlines)?;
-        files.extend(["coverage.tif", "coverage.png", "coverage.pgw"]);
-        outage = Some(regs.len());
-        for r in &regs {
-            let (lat, lon) = (grid.lat_of_row(r.peak_cell.0), grid.lon_of_col(r.peak_cell.1));
-            let mut p = serde_json::Map::new();
-            p.insert("kind".into(), "outage".into());
-            p.insert("min_coverage".into(), ((r.peak_value as f64 * 1e4).round() / 1e4).into());
-            p.insert("coverage_target".into(), sc.thresholds.coverage_target.into());
-            p.insert("worst_lon".into(), lon.into());
-            p.insert("worst_lat".into(), lat.into());
-            p.insert("area_m2".into(), round2(r.area_m2).into());
-            hotspot_features.push(geojson::Feature {
-                bbox: None,
-                geometry: Some(geojson::Geometry::from(&r.polygon)),
-                id: None,
-                properties: Some(p),
-                foreign_members: None,
-            });
-        }
+        files.extend(write_layer(&mut st, &cx, &layer("coverage", &title, PROBABILITY, cv, outlines(z)))?);
     }
-    if layers.interference.is_some() || layers.coverage.is_some() {
-        let fc = geojson::FeatureCollection { bbox: None, features: hotspot_features, foreign_members: None };
+    if hot.is_some() || low.is_some() {
+        let (h, z) = (hot.as_deref().unwrap_or_default(), low.as_deref().unwrap_or_default());
+        let fc = zones_geojson(grid, noise_dbm, sc.thresholds.coverage_target, h, z);
         st.write("hotspots.geojson", fc.to_string().as_bytes())?;
-        files.push("hotspots.geojson");
+        files.push("hotspots.geojson".into());
     }
+    let hotspots = hot.as_ref().map(Vec::len);
+    let outage = low.as_ref().map(Vec::len);
     if let Some(s) = &layers.sinr {
-        tif(&mut st, "sinr.tif", s)?;
-        png(&mut st, "sinr", "Mean SINR", "dB", s, &[])?;
-        files.extend(["sinr.tif", "sinr.png", "sinr.pgw"]);
+        files.extend(write_layer(&mut st, &cx, &layer("sinr", "Mean SINR", "dB", s, Vec::new()))?);
     }
     if let Some(v) = layers.server.as_ref().filter(|_| opts.realizations <= 1) {
-        tif(&mut st, "server.tif", v)?;
-        files.push("server.tif");
+        files.extend(write_layer(&mut st, &cx, &layer("server", "Best server", "", v, Vec::new()))?);
     }
     st.write("layout.geojson", layout_geojson(&sc.nodes).to_string().as_bytes())?;
-    files.push("layout.geojson");
+    files.push("layout.geojson".into());
     let b = grid.bbox();
     let sinr_hist = layers.sinr.as_deref().map(Histogram::of);
     let cov_hist = layers.coverage.as_deref().map(|c| Histogram::of_scaled(c, 100.0));
@@ -216,7 +156,7 @@ pub fn run_map(sc: &Scenario, opts: &MapOptions) -> Result<MapResult, Error> {
             names.push(n.to_string());
         }
     }
-    files.push("summary.json");
+    files.push("summary.json".into());
     let summary = Summary {
         scenario: sc.name.clone(),
         cells: grid.cells(),
@@ -242,7 +182,7 @@ pub fn run_map(sc: &Scenario, opts: &MapOptions) -> Result<MapResult, Error> {
         neglected_db: layers.neglected_db.map(round2),
         pair_evaluations: layers.pair_evaluations,
         elapsed_s: (elapsed_s * 1000.0).round() / 1000.0,
-        files: files.iter().map(|s| s.to_string()).collect(),
+        files,
         coverage: cov_hist.as_ref().map(|h| {
             let r = |x: Option<f64>| x.map(|v| (v / 100.0 * 1e4).round() / 1e4);
             Spread { p10: r(h.quantile(0.1)), p50: r(h.quantile(0.5)), p90: r(h.quantile(0.9)), max: None }
