@@ -6,39 +6,21 @@
 
 use lobemap::engine::{Engine, LayerSet, Options};
 use lobemap::geometry::frame::LocalFrame;
-use lobemap::geometry::grid::{BBox, Grid};
+use lobemap::geometry::grid::Grid;
 use lobemap::model::antenna::{Pattern, Sector};
-use lobemap::model::node::Node;
 use lobemap::model::pathloss::{CloseIn, FreeSpace, PathLoss};
 use lobemap::model::scenario::{Radio, Receiver, ReceiverAntenna, Scenario, Thresholds};
-use rand::{RngExt, SeedableRng};
 use std::time::Instant;
+
+#[path = "../tests/util/fixtures.rs"]
+mod fixtures;
 
 fn layout(nodes: usize, cells_side: usize, exponent: f64, aimed: bool) -> Scenario {
     let frame = LocalFrame::new(45.0, 7.0);
     let half = 2000.0;
-    let mut rng = rand_pcg::Pcg64::seed_from_u64(1);
     let pattern = Pattern::sector(30.0, 20.0, -5.0).unwrap();
-    let nodes = (0..nodes)
-        .map(|k| {
-            let (lon, lat) = frame.to_geo(rng.random_range(-half..half), rng.random_range(-half..half));
-            Node {
-                id: k.to_string(),
-                lon,
-                lat,
-                azimuth_deg: rng.random_range(0.0..360.0),
-                pattern,
-                power_dbm: 20.0,
-                height_m: 6.0,
-                activity: 1.0,
-                peer: None,
-                name: None,
-            }
-        })
-        .collect();
-    let (w, s) = frame.to_geo(-half, -half);
-    let (e, n) = frame.to_geo(half, half);
-    let grid = Grid::new(BBox { west: w, south: s, east: e, north: n }, 2.0 * half / cells_side as f64).unwrap();
+    let nodes = fixtures::random_nodes(&frame, nodes, half, 1, "", pattern, 20.0, 6.0, 1.0);
+    let grid = Grid::new(fixtures::square(&frame, half), 2.0 * half / cells_side as f64).unwrap();
     let rx = if aimed {
         ReceiverAntenna::Aimed(Sector::new(30.0, 15.0, -5.0).unwrap())
     } else {

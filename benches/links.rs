@@ -2,49 +2,31 @@
 //! interferer of every link), with and without a Rician coverage model. `cargo bench --bench links`.
 
 use lobemap::geometry::frame::LocalFrame;
-use lobemap::geometry::grid::{BBox, Grid};
+use lobemap::geometry::grid::Grid;
 use lobemap::model::antenna::Pattern;
 use lobemap::model::fading::Fading;
 use lobemap::model::fading::FadingSpec;
-use lobemap::model::node::Node;
 use lobemap::model::pathloss::{CloseIn, PathLoss};
 use lobemap::model::scenario::{Radio, Receiver, ReceiverAntenna, Scenario, Thresholds};
-use rand::{RngExt, SeedableRng};
 use std::time::Instant;
+
+#[path = "../tests/util/fixtures.rs"]
+mod fixtures;
 
 fn main() {
     let frame = LocalFrame::new(52.0, 5.0);
-    let mut rng = rand_pcg::Pcg64::seed_from_u64(3);
     let half = 3000.0;
     let pattern = Pattern::parabolic(3.0, 34.0, -5.0).unwrap();
-    let mut nodes: Vec<Node> = (0..5000)
-        .map(|k| {
-            let (lon, lat) = frame.to_geo(rng.random_range(-half..half), rng.random_range(-half..half));
-            Node {
-                id: format!("n{k}"),
-                lon,
-                lat,
-                azimuth_deg: rng.random_range(0.0..360.0),
-                pattern,
-                power_dbm: 10.0,
-                height_m: 8.0,
-                activity: 0.5,
-                peer: None,
-                name: None,
-            }
-        })
-        .collect();
+    let mut nodes = fixtures::random_nodes(&frame, 5000, half, 3, "n", pattern, 10.0, 8.0, 0.5);
     for (k, n) in nodes.iter_mut().take(1000).enumerate() {
         n.peer = Some(format!("n{}", k + 1000));
     }
-    let (w, s) = frame.to_geo(-half, -half);
-    let (e, n) = frame.to_geo(half, half);
     let sc = Scenario::from_parts(
         nodes,
         Radio { bandwidth_mhz: 2160.0, noise_figure_db: 8.0 },
         PathLoss::new(CloseIn::new(2.1).unwrap(), 60.0, 15.0, 1.0).unwrap(),
         Receiver { height_m: 5.0, antenna: ReceiverAntenna::Omni { gain_dbi: 0.0 } },
-        Grid::new(BBox { west: w, south: s, east: e, north: n }, 50.0).unwrap(),
+        Grid::new(fixtures::square(&frame, half), 50.0).unwrap(),
         Thresholds { sinr_db: 6.0, hotspot_i_over_n_db: 0.0, coverage_target: 0.9 },
     );
     for (label, f) in [

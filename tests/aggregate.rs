@@ -10,6 +10,8 @@ use lobemap::random::montecarlo::simulate;
 use lobemap::random::planning::{max_density, min_guard};
 use num_complex::Complex64;
 
+use crate::util::tol;
+
 fn field(fading: Fading, bw: f64, main: f64, side: f64) -> Field {
     let pl = PathLoss::new(PowerLaw::new(3.0, 40.0).unwrap(), 28.0, 0.0, 1.0).unwrap();
     Field::new(1e-3, 10.0, 1000.0, pl)
@@ -35,10 +37,10 @@ fn campbell_mean_and_variance_against_monte_carlo() {
         let n = 20_000;
         let (v, _) = simulate(&f, n, 11);
         let (m, var) = mean_var(&v);
-        assert!((m - k1).abs() < 4.0 * (k2 / n as f64).sqrt(), "mean {m:e} vs κ1 {k1:e}");
+        assert!((m - k1).abs() < tol::SIGMAS * (k2 / n as f64).sqrt(), "mean {m:e} vs κ1 {k1:e}");
         // Sample variance: relative standard error √((κ4/κ2² + 2)/N); 5 of them.
         let rse = ((f.cumulant(4, &rad) / (k2 * k2) + 2.0) / n as f64).sqrt();
-        assert!((var / k2 - 1.0).abs() < 5.0 * rse, "var {var:e} vs κ2 {k2:e} (rse {rse})");
+        assert!((var / k2 - 1.0).abs() < tol::VARIANCE_SIGMAS * rse, "var {var:e} vs κ2 {k2:e} (rse {rse})");
     }
 }
 
@@ -56,8 +58,8 @@ fn gamma_fit_against_scipy_and_statrs() {
     ];
     for (k, th, x, want) in scipy {
         let g = GammaFit { shape: k, scale_mw: th };
-        assert!((g.cdf(x) - want).abs() < 1e-10, "cdf({k},{th},{x}) = {}", g.cdf(x));
-        assert!((g.sf(x) - (1.0 - want)).abs() < 1e-10);
+        assert!((g.cdf(x) - want).abs() < tol::LIBRARY_VALUE, "cdf({k},{th},{x}) = {}", g.cdf(x));
+        assert!((g.sf(x) - (1.0 - want)).abs() < tol::LIBRARY_VALUE);
     }
     for (k, th, p, want) in [
         (0.5, 2.0, 0.9, 2.705543454095404),
@@ -65,11 +67,13 @@ fn gamma_fit_against_scipy_and_statrs() {
         (0.02, 1e-6, 0.999, 2.0063208017766133e-06),
     ] {
         let g = GammaFit { shape: k, scale_mw: th };
-        assert!((g.quantile(p) / want - 1.0).abs() < 1e-6, "ppf {k} {th} {p}: {}", g.quantile(p));
+        assert!((g.quantile(p) / want - 1.0).abs() < tol::QUANTILE_RELATIVE, "ppf {k} {th} {p}: {}", g.quantile(p));
     }
     // Moment matching: the fit's mean and variance equal the cumulants.
     let g = GammaFit::from_cumulants(3.0, 2.0);
-    assert!((g.shape * g.scale_mw - 3.0).abs() < 1e-12 && (g.shape * g.scale_mw * g.scale_mw - 2.0).abs() < 1e-12);
+    assert!(
+        (g.shape * g.scale_mw - 3.0).abs() < tol::EXACT && (g.shape * g.scale_mw * g.scale_mw - 2.0).abs() < tol::EXACT
+    );
 }
 
 /// Haenggi (2012, §5.1) / Baccelli, Błaszczyszyn and Mühlethaler (2006) with directional
@@ -90,7 +94,7 @@ fn directional_success_probability_matches_closed_form() {
     let g = statrs::function::gamma::gamma;
     let closed =
         (-lambda * std::f64::consts::PI * r * r * g(1.0 + delta) * g(1.0 - delta) * f.tx().moment(delta)).exp();
-    assert!((p - closed).abs() < 1e-5, "{p} vs {closed}");
+    assert!((p - closed).abs() < tol::DISC_TRUNCATION, "{p} vs {closed}");
 }
 
 /// Kolmogorov–Smirnov: by the Dvoretzky–Kiefer–Wolfowitz inequality (Massart 1990) the
@@ -131,7 +135,7 @@ fn hard_core_mean_matches_retained_intensity() {
     let k1 = f.cumulant(1, &f.radial());
     let (v, _) = simulate(&f, 4000, 5);
     let (m, var) = mean_var(&v);
-    assert!((m - k1).abs() < 4.0 * (var / 4000.0).sqrt(), "{m:e} vs {k1:e}");
+    assert!((m - k1).abs() < tol::SIGMAS * (var / 4000.0).sqrt(), "{m:e} vs {k1:e}");
 }
 
 /// Planning answers are consistent: at the density found, the exact exceedance equals the
@@ -145,7 +149,7 @@ fn planning_answers_meet_the_target() {
         let g = f.clone().with_density_per_m2(dens / 1e6).unwrap();
         lobemap::random::characterise::Exact::new(&g).sf(lobemap::model::units::dbm_to_mw(-65.0))
     };
-    assert!((at(d) - 0.05).abs() < 2e-3 && at(d * 1.05) > 0.05, "{} {}", at(d), at(d * 1.05));
+    assert!((at(d) - 0.05).abs() < tol::PLANNING_EXCEEDANCE && at(d * 1.05) > 0.05, "{} {}", at(d), at(d * 1.05));
     assert!(p.gamma.is_some());
     // At 3000 per km² a guard is needed (at 10 m the exceedance is above 5 %).
     let dense = f.clone().with_density_per_m2(3e-3).unwrap();
@@ -175,7 +179,7 @@ fn parabolic_interferers_through_their_gain_law() {
     let (m, _) = mean_var(&v);
     let rad = f.radial();
     let (k1, k2) = (f.cumulant(1, &rad), f.cumulant(2, &rad));
-    assert!((m - k1).abs() < 4.0 * (k2 / n as f64).sqrt(), "{m:e} vs {k1:e}");
+    assert!((m - k1).abs() < tol::SIGMAS * (k2 / n as f64).sqrt(), "{m:e} vs {k1:e}");
     let r = characterise(&f, &Request { thresholds_dbm: vec![], realizations: n, seed: 17, table_points: 80 });
     let dkw = ((2.0f64 / 0.001).ln() / (2.0 * n as f64)).sqrt();
     assert!(r.ks.as_ref().unwrap().exact_vs_mc < dkw, "{:?} vs {dkw}", r.ks);

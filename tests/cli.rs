@@ -1,8 +1,6 @@
 //! End-to-end tests of the `lobemap` binary: outputs, determinism and bad input.
 
-mod common;
-
-use common::{run, stderr};
+use crate::util::{run, stderr, tol};
 use std::path::PathBuf;
 
 const GOOD_TOML: &str = r#"name = "tiny"
@@ -98,9 +96,9 @@ fn geotiff_reads_back_with_georeferencing() {
     let tie = dec.get_tag_f64_vec(Tag::ModelTiepointTag).unwrap();
     let keys = dec.get_tag_u16_vec(Tag::GeoKeyDirectoryTag).unwrap();
     let bbox: Vec<f64> = summary["bbox"].as_array().unwrap().iter().map(|v| v.as_f64().unwrap()).collect();
-    assert!((tie[3] - bbox[0]).abs() < 1e-12 && (tie[4] - bbox[3]).abs() < 1e-12);
-    assert!((bbox[2] - (bbox[0] + w as f64 * scale[0])).abs() < 1e-9);
-    assert!((bbox[1] - (bbox[3] - h as f64 * scale[1])).abs() < 1e-9);
+    assert!((tie[3] - bbox[0]).abs() < tol::EXACT && (tie[4] - bbox[3]).abs() < tol::EXACT);
+    assert!((bbox[2] - (bbox[0] + w as f64 * scale[0])).abs() < tol::ROUNDING);
+    assert!((bbox[1] - (bbox[3] - h as f64 * scale[1])).abs() < tol::ROUNDING);
     assert!(keys.windows(4).any(|k| k == [2048, 0, 1, 4326]));
     assert!(keys.windows(4).any(|k| k == [1024, 0, 1, 2]));
     let nodata = dec.get_tag_ascii_string(Tag::GdalNodata).unwrap();

@@ -12,6 +12,8 @@ use lobemap::model::scenario::{Radio, Receiver, ReceiverAntenna, Scenario, Thres
 use rand::{RngExt, SeedableRng};
 use rand_distr::{Distribution, Poisson};
 
+use crate::util::tol;
+
 fn scenario(
     nodes: Vec<Node>,
     bbox: BBox,
@@ -34,7 +36,7 @@ fn scenario(
 /// Andrews, Baccelli and Ganti (IEEE Trans. Commun. 2011), Theorem 2 with α = 4 and no
 /// noise: over a Poisson layout of omni stations with nearest-station service and Rayleigh
 /// fading, P[SINR ≥ T] = 1 / (1 + √T (π/2 − arctan(1/√T))), independent of density; T = 0 dB
-/// gives 0.56010 and T = 5 dB 0.34694 (shared model notes, numpy). With equal powers and omni
+/// gives 0.56010 and T = 5 dB 0.34694 (docs/reference-values.md, numpy). With equal powers and omni
 /// antennas the strongest mean server is the nearest. Eight seeded layouts (λ = 10 per km² on
 /// a 5 km disc, cells within 1 km of the centre, noise at −264 dBm); the mean of the spatial
 /// averages must be within 4 standard errors (their sample spread / √8) of the formula.
@@ -80,7 +82,7 @@ fn andrews_baccelli_ganti_coverage() {
         }
         let m = means.iter().sum::<f64>() / 8.0;
         let sd = (means.iter().map(|x| (x - m).powi(2)).sum::<f64>() / 7.0).sqrt();
-        assert!((m - want).abs() < 4.0 * sd / 8f64.sqrt(), "T {t_db} dB: {m} vs {want} (sd {sd})");
+        assert!((m - want).abs() < tol::SIGMAS * sd / 8f64.sqrt(), "T {t_db} dB: {m} vs {want} (sd {sd})");
         assert!(sd / 8f64.sqrt() < 0.02, "tolerance too loose: {sd}");
     }
 }
@@ -108,9 +110,9 @@ fn exact_coverage_layer_matches_monte_carlo_on_demo() {
         let p = lobemap::jobs::probe::probe_with(&sc, g.lat_of_row(r), g.lon_of_col(c), Some((40_000, k as u64)));
         let mc = p.monte_carlo.unwrap();
         let se = (mc.estimate * (1.0 - mc.estimate) / 40_000.0).sqrt();
-        assert!((p.coverage - *v as f64).abs() < 0.003, "engine {v} vs probe {}", p.coverage);
+        assert!((p.coverage - *v as f64).abs() < tol::ENGINE_F32_PROBABILITY, "engine {v} vs probe {}", p.coverage);
         assert!(
-            (mc.estimate - p.coverage).abs() < 4.0 * se + 0.003,
+            (mc.estimate - p.coverage).abs() < tol::SIGMAS * se + tol::ENGINE_F32_PROBABILITY,
             "cell {r},{c}: MC {} vs {}",
             mc.estimate,
             p.coverage

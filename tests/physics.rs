@@ -12,20 +12,8 @@ use lobemap::model::scenario::{Radio, Receiver, ReceiverAntenna, Scenario, Thres
 use rand::{RngExt, SeedableRng};
 use rand_distr::{Distribution, Poisson};
 
-fn node(id: &str, lon: f64, lat: f64, az: f64, pattern: Pattern, power_dbm: f64, height_m: f64) -> Node {
-    Node {
-        id: id.into(),
-        lon,
-        lat,
-        azimuth_deg: az,
-        pattern,
-        power_dbm,
-        height_m,
-        activity: 1.0,
-        peer: None,
-        name: None,
-    }
-}
+use crate::util::fixtures::{self, node};
+use crate::util::tol;
 
 fn scenario(nodes: Vec<Node>, pathloss: PathLoss, bbox: BBox, cell_m: f64, rx_height: f64) -> Scenario {
     Scenario::from_parts(
@@ -61,16 +49,16 @@ fn probe_matches_hand_calculation() {
     let r = probe(&sc, 50.0, 8.0);
     // 1e-4 relative distance error (plane vs geodesic) is below 0.001 dB; 0.005 dB tolerance.
     assert_eq!(r.server, "A");
-    assert!((r.total_dbm + 81.3364).abs() < 0.005, "{}", r.total_dbm);
-    assert!((r.interference_dbm.unwrap() + 100.3703).abs() < 0.005);
-    assert!((r.noise_dbm + 86.975).abs() < 0.001);
-    assert!((r.sinr_db - 5.3897).abs() < 0.005, "{}", r.sinr_db);
+    assert!((r.total_dbm + 81.3364).abs() < tol::HAND_DB, "{}", r.total_dbm);
+    assert!((r.interference_dbm.unwrap() + 100.3703).abs() < tol::HAND_DB);
+    assert!((r.noise_dbm + 86.975).abs() < tol::HAND_MILLI_DB);
+    assert!((r.sinr_db - 5.3897).abs() < tol::HAND_DB, "{}", r.sinr_db);
     let ca = r.contributions.iter().find(|c| c.id == "A").unwrap();
-    assert!((ca.distance_m - 1000.0).abs() < 0.1 && (ca.bearing_deg - 90.0).abs() < 0.01);
+    assert!((ca.distance_m - 1000.0).abs() < tol::PLANE_DISTANCE_M && (ca.bearing_deg - 90.0).abs() < tol::BEARING_DEG);
     assert_eq!(ca.tx_gain_dbi, 20.0);
     let cb = r.contributions.iter().find(|c| c.id == "B").unwrap();
     assert_eq!(cb.tx_gain_dbi, -5.0);
-    assert!((cb.path_loss_db - 115.3703).abs() < 0.005);
+    assert!((cb.path_loss_db - 115.3703).abs() < tol::HAND_DB);
 }
 
 /// The engine's float32 kernels against the double-precision probe at cell centres of the
@@ -96,9 +84,14 @@ fn engine_agrees_with_probe_on_demo() {
             continue;
         }
         let k = r * g.cols() + c;
-        assert!((t[k] as f64 - pr.total_dbm).abs() < 0.02, "total at {r},{c}: {} vs {}", t[k], pr.total_dbm);
-        assert!((i[k] as f64 - pr.interference_dbm.unwrap()).abs() < 0.02, "interference at {r},{c}");
-        assert!((s[k] as f64 - pr.sinr_db).abs() < 0.02, "sinr at {r},{c}: {} vs {}", s[k], pr.sinr_db);
+        assert!(
+            (t[k] as f64 - pr.total_dbm).abs() < tol::ENGINE_F32_DB,
+            "total at {r},{c}: {} vs {}",
+            t[k],
+            pr.total_dbm
+        );
+        assert!((i[k] as f64 - pr.interference_dbm.unwrap()).abs() < tol::ENGINE_F32_DB, "interference at {r},{c}");
+        assert!((s[k] as f64 - pr.sinr_db).abs() < tol::ENGINE_F32_DB, "sinr at {r},{c}: {} vs {}", s[k], pr.sinr_db);
         checked += 1;
     }
     assert!(checked > 250);
@@ -125,9 +118,7 @@ fn campbell_mean_of_total_over_poisson_field() {
     let centre = (10.0, 40.0);
     let frame = LocalFrame::new(centre.1, centre.0);
     let half = 500.0;
-    let (w, s) = frame.to_geo(-half, -half);
-    let (e, n) = frame.to_geo(half, half);
-    let bbox = BBox { west: w, south: s, east: e, north: n };
+    let bbox = fixtures::square(&frame, half);
     let mut rng = rand_pcg::Pcg64::seed_from_u64(2024);
     let count = Poisson::new(lambda * std::f64::consts::PI * radius * radius).unwrap().sample(&mut rng) as usize;
     let nodes: Vec<Node> = (0..count)
@@ -159,7 +150,7 @@ fn campbell_mean_of_total_over_poisson_field() {
     let sd = ((eg2 / eg) * 1.1 * sup_phi * expect).sqrt();
     // The field stops at 1200 m; the integral beyond 493 m (nearest disc edge to a cell) is
     // at most 2π · 493^−2 / 2 per unit λ P E[G], below 0.1 % of the mean: covered by the 4 σ.
-    assert!((mean - expect).abs() < 4.0 * sd, "mean {mean:e}, Campbell {expect:e}, sd {sd:e}");
+    assert!((mean - expect).abs() < tol::SIGMAS * sd, "mean {mean:e}, Campbell {expect:e}, sd {sd:e}");
     assert!(sd / expect < 0.05, "tolerance too loose to mean anything: {}", sd / expect);
 }
 

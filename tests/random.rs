@@ -1,9 +1,7 @@
 //! End-to-end tests of random layouts (`draw`, `[draw]`, `map --realizations`) and of
 //! `aggregate` on the command line.
 
-mod common;
-
-use common::{run, stderr};
+use crate::util::{run, stderr, tol};
 
 const TOML: &str = r#"name = "estate"
 nodes = "nodes.geojson"
@@ -81,7 +79,7 @@ fn draw_respects_areas_hard_core_and_orientation() {
         assert!(p.0 > 11.992 && p.0 < 12.008 && p.1 > 47.9964 && p.1 < 48.0036, "outside the yard");
         assert!(!(p.0 > 11.998 && p.0 < 12.002 && p.1 > 47.9986 && p.1 < 48.0014), "inside the depot");
         let brg = lobemap::geometry::frame::bearing_deg(-local[k].0, -local[k].1);
-        assert!(((p.2 - brg + 540.0) % 360.0 - 180.0).abs() < 0.01, "not pointed at the hub");
+        assert!(((p.2 - brg + 540.0) % 360.0 - 180.0).abs() < tol::BEARING_DEG, "not pointed at the hub");
     }
     for i in 0..local.len() {
         for j in 0..i {
@@ -97,7 +95,7 @@ fn draw_respects_areas_hard_core_and_orientation() {
     );
     let area_km2 = ((e.0 - w.0) * (e.1 - w.1) - (n.0 - s.0) * (n.1 - s.1)) / 1e6;
     let expect = lobemap::random::points::matern_ii_density(300e-6, 25.0) * 1e6 * area_km2;
-    assert!((pts.len() as f64 - expect).abs() < 4.0 * expect.sqrt(), "{} vs {expect}", pts.len());
+    assert!((pts.len() as f64 - expect).abs() < tol::SIGMAS * expect.sqrt(), "{} vs {expect}", pts.len());
     // Same seed, same bytes.
     let out2 = d.path().join("again.geojson");
     assert!(run(&["draw", &p, "--out", out2.to_str().unwrap(), "--quiet"]).status.success());

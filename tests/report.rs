@@ -1,8 +1,6 @@
 //! The links job, the installer sheet and the HTML report, end to end on the demo site.
 
-mod common;
-
-use common::{run, stderr};
+use crate::util::{run, stderr, tol};
 use std::path::Path;
 use std::process::Command;
 
@@ -49,7 +47,7 @@ fn links_tables_and_installer_sheet() {
     assert_eq!(bb["properties"]["misaligned_to"], true);
     let should = bb["properties"]["azimuth_to_should_deg"].as_f64().unwrap();
     let back = (bb["properties"]["bearing_deg"].as_f64().unwrap() + 180.0) % 360.0;
-    assert!((should - back).abs() < 0.02);
+    assert!((should - back).abs() < tol::TWO_DECIMALS);
     let csv = std::fs::read_to_string(out.join("install.csv")).unwrap();
     let lines: Vec<&str> = csv.lines().collect();
     assert!(lines[0].starts_with('#') && lines[0].contains("W/m2") && lines[0].contains("local exposure rules"));

@@ -11,7 +11,7 @@
 //!   whole-body average; from memory), f/200 W/m² with f in MHz for 400–2000 MHz (ICNIRP 2020;
 //!   from memory), 2 W/m² below 400 MHz (ICNIRP 2020, 10–400 MHz; from memory). The US limit
 //!   for the general population is the same 1 mW/cm² = 10 W/m² for 1.5–100 GHz
-//!   (47 CFR 1.1310, confirmed in the model notes).
+//!   (47 CFR 1.1310, confirmed; docs/reference-values.md).
 
 use crate::jobs::links::angle_diff;
 use crate::model::link::{Budget, Geometry};
@@ -181,7 +181,7 @@ mod tests {
     use super::*;
 
     // Hand calculation: EIRP 40 dBm = 10 W; d = √(10 / (4π·10)) = 0.2821 m; 60 dBm = 1000 W
-    // gives 2.821 m (shared model notes).
+    // gives 2.821 m (docs/reference-values.md).
     #[test]
     fn keepout_hand_calculation() {
         assert!((keepout_m(40.0, 10.0) - 0.28209).abs() < 1e-4);

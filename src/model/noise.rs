@@ -24,7 +24,7 @@ mod tests {
     use super::*;
 
     // kT₀ = −173.975 dBm/Hz with the exact SI Boltzmann constant; NF 7 dB gives −86.975 dBm
-    // in 100 MHz and −80.955 dBm in 400 MHz (shared model notes, numpy).
+    // in 100 MHz and −80.955 dBm in 400 MHz (docs/reference-values.md, numpy).
     #[test]
     fn thermal_noise_reference_values() {
         assert!((kt0_dbm_per_hz() + 173.975).abs() < 1e-3);

@@ -349,7 +349,7 @@ mod tests {
     // Haenggi 2012 (§5.1) / Baccelli, Błaszczyszyn and Mühlethaler 2006: Rayleigh success
     // probability at distance r with threshold T, no noise, equals L_I(T r^α / G₀); on a
     // 2 km disc with λ = 1e−4 m⁻², r = 20 m, T = 0 dB: 0.820879 (α = 4) and 0.739788 (α = 3);
-    // on the infinite plane 0.820869 and 0.737931 (shared model notes, numpy).
+    // on the infinite plane 0.820869 and 0.737931 (docs/reference-values.md, numpy).
     #[test]
     fn rayleigh_success_probability_haenggi() {
         for (alpha, disc, plane) in [(4.0, 0.820879, 0.820869), (3.0, 0.739788, 0.737931)] {

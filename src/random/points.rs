@@ -90,7 +90,7 @@ mod tests {
     use rand::SeedableRng;
 
     // Matérn II retained intensity (Matérn 1986; Stoyan, Kendall and Mecke): λ = 1e-3 m⁻²,
-    // h = 10, 20, 50 m give 8.5815e-4, 5.6929e-4, 1.2727e-4 m⁻² (shared model notes, numpy).
+    // h = 10, 20, 50 m give 8.5815e-4, 5.6929e-4, 1.2727e-4 m⁻² (docs/reference-values.md, numpy).
     #[test]
     fn matern_ii_density_reference_values() {
         for (h, want) in [(10.0, 8.5815e-4), (20.0, 5.6929e-4), (50.0, 1.2727e-4)] {

@@ -214,7 +214,7 @@ mod tests {
 
     // 3GPP TR 38.901 Table 7.3-1 element: 65° HPBW, 8 dBi, A_max 30 dB (floor −22 dBi).
     // Reference values G(φ) = 8, 5, −4, −15.006, −22 dBi at φ = 0, 32.5, 65, 90, 180°
-    // (shared model notes, computed independently with numpy).
+    // (docs/reference-values.md, computed independently with numpy).
     #[test]
     fn tr38901_element_cut() {
         let p = Pattern::parabolic(65.0, 8.0, -22.0).unwrap();

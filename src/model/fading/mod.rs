@@ -272,7 +272,7 @@ mod tests {
     use super::*;
 
     // Rician K = 3, 6, 10 dB: m = 1.7977, 2.7684, 5.7619 and E[h²] = 1.55626, 1.36122, 1.17355
-    // (shared model notes, checked there against scipy.stats.rice); the gamma match of a
+    // (docs/reference-values.md, checked against scipy.stats.rice); the gamma match of a
     // Rician power has m = 1/Var[h] (Nakagami 1960).
     #[test]
     fn rician_to_nakagami_mapping() {
@@ -309,5 +309,58 @@ mod tests {
         assert!((lognormal_moment(8.0, 2) - 885.745).abs() < 1e-2);
         assert!((s - 1.842068).abs() < 1e-6);
         assert_eq!(lognormal_mean(0.0), 1.0);
+    }
+
+    /// Every law against its own formulas (a statrs-style self-check): seeded samples of the
+    /// double-precision sampler and of the float32 filler, N = 200 000 each, must have mean,
+    /// second moment and E[e^{−t h}] within 4 standard errors of [`Fading::moment`] and
+    /// [`Fading::laplace`], the standard errors computed from the law's own higher moments
+    /// (Var h = E h² − 1, Var h² = E h⁴ − (E h²)², Var e^{−th} = L(2t) − L(t)²); the complex
+    /// transform on the real axis and the engine's float32 form agree with the real one.
+    #[test]
+    fn every_law_matches_its_formulas() {
+        use rand::SeedableRng;
+        let laws = [
+            Fading::NONE,
+            Fading::RAYLEIGH,
+            Fading::nakagami(0.7).unwrap(),
+            Fading::nakagami(3.0).unwrap(),
+            Fading::rician_db(-3.0).unwrap(),
+            Fading::rician_db(6.0).unwrap(),
+            Fading::rician_db(15.0).unwrap(),
+        ];
+        let n = 200_000usize;
+        for (k, f) in laws.iter().enumerate() {
+            let mut rng = rand_pcg::Pcg64::seed_from_u64(40 + k as u64);
+            let s = f.sampler();
+            let d: Vec<f64> = (0..n).map(|_| s.sample(&mut rng)).collect();
+            let mut h32 = vec![0f32; n];
+            f.fill_f32(&mut rng, &mut h32);
+            let f32s: Vec<f64> = h32.iter().map(|&x| x as f64).collect();
+            for (label, v) in [("f64", &d), ("f32", &f32s)] {
+                let mean = |g: &dyn Fn(f64) -> f64| v.iter().map(|&x| g(x)).sum::<f64>() / n as f64;
+                // Plus the rounding of a 200 000-term sum (n·ε ≈ 2e-11).
+                let se = |var: f64| 4.0 * (var.max(0.0) / n as f64).sqrt() + 1e-10;
+                let (m1, m2, m4) = (f.moment(1), f.moment(2), f.moment(4));
+                assert!((mean(&|x| x) - m1).abs() < se(m2 - m1 * m1), "{f:?} {label} mean");
+                assert!((mean(&|x| x * x) - m2).abs() < se(m4 - m2 * m2), "{f:?} {label} second moment");
+                for t in [0.3, 1.0, 3.0] {
+                    let l = f.laplace(t);
+                    let got = mean(&|x| (-t * x).exp());
+                    assert!((got - l).abs() < se(f.laplace(2.0 * t) - l * l), "{f:?} {label} L({t}): {got} vs {l}");
+                }
+            }
+            for t in [0.0, 0.01, 0.5, 2.0, 40.0] {
+                let l = f.laplace(t);
+                assert!((f.laplace_complex(Complex64::new(t, 0.0)).re - l).abs() < 1e-12 * l.max(1e-300).max(1.0));
+                let k32 = match f.kernel_form() {
+                    KernelForm::Unit => none_laplace_f32(t as f32),
+                    KernelForm::Rayleigh => rayleigh_laplace_f32(t as f32),
+                    KernelForm::Nakagami(m) => nakagami_laplace_f32(m, t as f32),
+                    KernelForm::Rician(kk) => rician_laplace_f32(kk, t as f32),
+                } as f64;
+                assert!((k32 - l).abs() < 1e-5 * l + 1e-30, "{f:?} kernel L({t}): {k32} vs {l}");
+            }
+        }
     }
 }

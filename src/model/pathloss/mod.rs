@@ -236,8 +236,8 @@ mod tests {
         PathLoss::new(FreeSpace, f, 0.0, 0.1).unwrap()
     }
 
-    // ITU-R P.525 free-space values computed with the constant 32.44 (shared model notes,
-    // reference values from numpy); our exact constant is 32.4478, i.e. +0.0078 dB, so the
+    // ITU-R P.525 free-space values computed with the constant 32.44 (docs/reference-values.md,
+    // values from numpy); our exact constant is 32.4478, i.e. +0.0078 dB, so the
     // tolerance is 0.01 dB.
     #[test]
     fn free_space_itu_r_p525() {

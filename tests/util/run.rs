@@ -1,5 +1,4 @@
-//! Helpers shared by the end-to-end test targets.
-#![allow(dead_code)]
+//! Running the `lobemap` binary from the tests.
 
 use std::process::{Command, Output};
 

@@ -1,0 +1,12 @@
+//! The integration tests, one target: each module checks one part of the job against an
+//! outside reference named beside the check; `util` holds the shared fixtures, the
+//! binary runner and the named tolerances.
+
+mod util;
+
+mod aggregate;
+mod cli;
+mod coverage;
+mod physics;
+mod random;
+mod report;
