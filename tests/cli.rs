@@ -306,3 +306,22 @@ fn demo_runs_from_the_repository() {
     let ring = f["geometry"]["coordinates"][0].as_array().unwrap();
     assert_eq!(ring.first(), ring.last());
 }
+
+/// Regression (check sized 4 layers while map computes 5): at every memory limit, `check`
+/// refuses exactly when `map` with its default layers does.
+#[test]
+fn check_sizes_memory_like_map() {
+    let (d, p) = site(&GOOD_TOML.replace("cell_m = 10", "cell_m = 2"), GOOD_NODES);
+    let mut verdicts = Vec::new();
+    for mib in 1..=6 {
+        let limit = mib.to_string();
+        let c = run(&["check", p.to_str().unwrap(), "--max-memory-mib", &limit]);
+        let out = d.path().join(format!("out{mib}"));
+        let m =
+            run(&["map", p.to_str().unwrap(), "--out", out.to_str().unwrap(), "--quiet", "--max-memory-mib", &limit]);
+        assert_eq!(c.status.code(), m.status.code(), "limit {mib} MiB: check {} / map {}", stderr(&c), stderr(&m));
+        verdicts.push(c.status.success());
+    }
+    // The limits straddle the grid's need: some refused, some accepted.
+    assert!(verdicts.contains(&true) && verdicts.contains(&false), "{verdicts:?}");
+}

@@ -324,7 +324,7 @@ pub fn run(cli: Cli) -> anyhow::Result<ExitCode> {
         }
         Cmd::Check { scenario, max_memory_mib } => match Scenario::load(&scenario) {
             Ok(sc) => {
-                lobemap::run::map::check_memory(&sc, 4, max_memory_mib)?;
+                lobemap::run::map::check_memory(&sc, LayerSet::ALL.count(), max_memory_mib)?;
                 println!(
                     "{}: ok: {} nodes, grid {} x {} cells of {} m, noise {:.2} dBm",
                     scenario.display(),
