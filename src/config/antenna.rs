@@ -1,7 +1,7 @@
 //! The `[antenna]` table and the per-node antenna keys: merged, then resolved into a pattern.
 
 use crate::config::range::Range;
-use crate::model::antenna::Pattern;
+use crate::model::antenna::{PATTERNS, Pattern, PatternKeys};
 use serde::Deserialize;
 
 /// `[antenna]`: defaults for every node; each key may be overridden per node.
@@ -37,30 +37,39 @@ impl AntennaDefaults {
             }
             v
         };
-        let pattern = match self.pattern.as_deref() {
+        let names = PATTERNS.iter().map(|e| format!("`{}`", e.name)).collect::<Vec<_>>().join(", ");
+        let pattern = match self.pattern.as_deref().map(|n| (n, PATTERNS.iter().find(|e| e.name == n))) {
             None => {
-                bad("pattern", "missing; one of `sector`, `parabolic`, `omni` in [antenna] or the node".into());
+                bad("pattern", format!("missing; one of {names} in [antenna] or the node"));
                 None
             }
-            Some("omni") => need(self.gain_dbi, "gain_dbi", bad).map(Pattern::omni),
-            Some(k @ ("sector" | "parabolic")) => {
-                let bw = need(self.beamwidth_deg, "beamwidth_deg", bad);
-                let g = need(self.gain_dbi, "gain_dbi", bad);
-                let s = need(self.sidelobe_dbi, "sidelobe_dbi", bad);
-                match (bw, g, s) {
-                    // Values outside their ranges were reported where they were read.
-                    (Some(bw), Some(g), Some(s))
-                        if Range::BEAMWIDTH.contains(bw) && Range::GAIN.contains(g) && Range::SIDELOBE.contains(s) =>
-                    {
-                        let built =
-                            if k == "sector" { Pattern::sector(bw, g, s) } else { Pattern::parabolic(bw, g, s) };
-                        built.map_err(|errs| errs.into_iter().for_each(|e| bad(e.key, e.message))).ok()
-                    }
-                    _ => None,
+            Some((_, Some(entry))) => {
+                let keys = PatternKeys {
+                    beamwidth_deg: self.beamwidth_deg,
+                    gain_dbi: self.gain_dbi,
+                    sidelobe_dbi: self.sidelobe_dbi,
+                };
+                let mut complete = true;
+                for key in entry.needs {
+                    complete &= need(keys.get(key), key, bad).is_some();
+                }
+                // Values outside their ranges were reported where they were read.
+                let in_range = entry.needs.iter().all(|key| {
+                    let range = match *key {
+                        "beamwidth_deg" => Range::BEAMWIDTH,
+                        "gain_dbi" => Range::GAIN,
+                        _ => Range::SIDELOBE,
+                    };
+                    keys.get(key).is_some_and(|v| range.contains(v))
+                });
+                if complete && in_range {
+                    (entry.build)(&keys).map_err(|errs| errs.into_iter().for_each(|e| bad(e.key, e.message))).ok()
+                } else {
+                    None
                 }
             }
-            Some(other) => {
-                bad("pattern", format!("value `{other}` is not one of `sector`, `parabolic`, `omni`"));
+            Some((other, None)) => {
+                bad("pattern", format!("value `{other}` is not one of {names}"));
                 None
             }
         };

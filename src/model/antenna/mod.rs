@@ -23,6 +23,46 @@ pub use omni::Omni;
 pub use parabolic::Parabolic;
 pub use sector::Sector;
 
+/// Every pattern, by name: scenario files and node properties (`pattern = "…"`) look patterns
+/// up here. A new pattern is a file with a type implementing [`AntennaPattern`] and an
+/// [`Entry`], a variant of [`Pattern`] and its line in the dispatch below, and one line here.
+pub const PATTERNS: &[Entry] = &[sector::ENTRY, parabolic::ENTRY, omni::ENTRY];
+
+/// The keys a pattern is built from, as given (absent: `None`).
+#[derive(Debug, Clone, Copy, Default, PartialEq)]
+pub struct PatternKeys {
+    /// Main-lobe width or half-power beamwidth, degrees.
+    pub beamwidth_deg: Option<f64>,
+    /// Main-lobe gain, dBi.
+    pub gain_dbi: Option<f64>,
+    /// Side-lobe level or floor, dBi.
+    pub sidelobe_dbi: Option<f64>,
+}
+
+impl PatternKeys {
+    /// The value of key `key`.
+    pub fn get(&self, key: &str) -> Option<f64> {
+        match key {
+            "beamwidth_deg" => self.beamwidth_deg,
+            "gain_dbi" => self.gain_dbi,
+            "sidelobe_dbi" => self.sidelobe_dbi,
+            _ => None,
+        }
+    }
+}
+
+/// A pattern in the registry: its name, the keys it needs, and its validating builder (called
+/// with every needed key present).
+#[derive(Clone, Copy)]
+pub struct Entry {
+    /// Name in files.
+    pub name: &'static str,
+    /// Keys of [`PatternKeys`] the pattern needs.
+    pub needs: &'static [&'static str],
+    /// Builds the pattern, checking its values.
+    pub build: fn(&PatternKeys) -> Result<Pattern, Vec<ModelError>>,
+}
+
 /// What every pattern provides.
 pub trait AntennaPattern {
     /// Short name used in files: `sector`, `parabolic`, `omni`.

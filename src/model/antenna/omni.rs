@@ -38,3 +38,11 @@ impl AntennaPattern for Omni {
         GainLaw::two_level(1.0, self.gain_dbi, self.gain_dbi)
     }
 }
+
+fn build(k: &super::PatternKeys) -> Result<super::Pattern, Vec<crate::error::ModelError>> {
+    use super::Pattern;
+    Ok(Pattern::omni(k.gain_dbi.unwrap_or(f64::NAN)))
+}
+
+/// The registry entry.
+pub(super) const ENTRY: super::Entry = super::Entry { name: "omni", needs: &["gain_dbi"], build };

@@ -62,3 +62,16 @@ impl AntennaPattern for Parabolic {
         GainLaw(levels)
     }
 }
+
+fn build(k: &super::PatternKeys) -> Result<super::Pattern, Vec<crate::error::ModelError>> {
+    use super::Pattern;
+    Pattern::parabolic(
+        k.beamwidth_deg.unwrap_or(f64::NAN),
+        k.gain_dbi.unwrap_or(f64::NAN),
+        k.sidelobe_dbi.unwrap_or(f64::NAN),
+    )
+}
+
+/// The registry entry.
+pub(super) const ENTRY: super::Entry =
+    super::Entry { name: "parabolic", needs: &["beamwidth_deg", "gain_dbi", "sidelobe_dbi"], build };

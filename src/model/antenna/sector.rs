@@ -44,3 +44,16 @@ impl AntennaPattern for Sector {
         GainLaw::two_level(self.beamwidth_deg / 360.0, self.gain_dbi, self.sidelobe_dbi)
     }
 }
+
+fn build(k: &super::PatternKeys) -> Result<super::Pattern, Vec<crate::error::ModelError>> {
+    use super::Pattern;
+    Pattern::sector(
+        k.beamwidth_deg.unwrap_or(f64::NAN),
+        k.gain_dbi.unwrap_or(f64::NAN),
+        k.sidelobe_dbi.unwrap_or(f64::NAN),
+    )
+}
+
+/// The registry entry.
+pub(super) const ENTRY: super::Entry =
+    super::Entry { name: "sector", needs: &["beamwidth_deg", "gain_dbi", "sidelobe_dbi"], build };
