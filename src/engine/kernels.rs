@@ -4,7 +4,7 @@
 //! (`RxCoupling`) is a type parameter, so the loops are monomorphised and vectorised for each
 //! combination; the identities (`Unobstructed`, `CoChannel`) cost nothing.
 
-use crate::engine::fastmath::{fast_exp2, fast_log2};
+use crate::math::fastmath::{fast_exp2, fast_log2};
 
 /// Per node–cell attenuation on the mean power (obstruction by buildings or terrain): the
 /// seam through which a surface model enters every pair. `apply` returns `p` times the

@@ -6,7 +6,7 @@
 //! independent lane. The main-lobe test uses dot products (no trigonometry in the pair
 //! loop); the distance law is specialised for exponents 2, 3 and 4, and any other exponent or
 //! absorption uses vectorisable log2/exp2 approximations. The row kernel is compiled for
-//! several instruction sets and chosen at run time (`engine::simd`). The order of summation
+//! several instruction sets and chosen at run time (`math::simd`). The order of summation
 //! is fixed (node index order), so results are bit-identical for any thread count.
 //!
 //! # Definitions (per cell, receiver at `[receiver] height_m`)
@@ -23,11 +23,9 @@ use crate::model::units::lin_to_db;
 use rayon::prelude::*;
 use rstar::{RTree, primitives::GeomWithData};
 
-pub(crate) mod fastmath;
 pub(crate) mod kernels;
 mod prepare;
 mod row;
-pub(crate) mod simd;
 
 /// Which layers to compute and write.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]

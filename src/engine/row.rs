@@ -3,8 +3,8 @@
 
 use crate::NODATA;
 use crate::engine::kernels::*;
-use crate::engine::simd::multiversion;
 use crate::engine::{Engine, LayerSet};
+use crate::math::simd::multiversion;
 use crate::model::fading::KernelForm;
 use crate::model::units::db_to_lin;
 use rstar::AABB;

@@ -2,3 +2,4 @@
 
 pub mod frame;
 pub mod grid;
+pub mod regions;

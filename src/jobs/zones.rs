@@ -2,7 +2,7 @@
 //! hot-spot level) with their dominant interferers, and outage zones (coverage below the
 //! target). Computed from the layers; written by [`crate::io::hotspots`].
 
-use crate::io::hotspots::{Region, regions};
+use crate::geometry::regions::{Region, regions};
 use crate::jobs::probe::{Contribution, probe};
 use crate::model::scenario::Scenario;
 use crate::model::units::lin_to_db;

@@ -2,8 +2,8 @@
 //! and the same result for any thread count (realisations come in fixed chunks, each chunk
 //! with its own generator seeded from the run seed and the chunk index).
 
-use crate::engine::fastmath::{fast_exp2, fast_log2};
-use crate::engine::simd::multiversion;
+use crate::math::fastmath::{fast_exp2, fast_log2};
+use crate::math::simd::multiversion;
 use crate::model::antenna::GainLaw;
 use crate::random::field::Field;
 use rand::{Rng, RngExt, SeedableRng};

@@ -3,8 +3,8 @@
 
 use crate::engine::{Engine, LayerSet, Options};
 use crate::error::{Error, Problem};
+use crate::geometry::regions::{outlines, regions};
 use crate::io::heatmap::{MapSpec, render};
-use crate::io::hotspots::regions;
 use crate::io::staging::Staging;
 use crate::model::scenario::Scenario;
 use crate::run::map::{check_memory, markers_and_links};
@@ -74,7 +74,7 @@ pub fn run_links(sc: &Scenario, opts: &LinksOptions) -> Result<LinksResult, Erro
                 format!("Coverage T={} dB", sc.thresholds.sinr_db),
                 crate::io::heatmap::PROBABILITY,
                 c,
-                crate::io::hotspots::outlines(&regions(grid, c, target as f32, true)),
+                outlines(&regions(grid, c, target as f32, true)),
                 format!(
                     "Probability that a receiver at each spot, served by its best node, reaches the SINR threshold with fading; crimson outlines: below the {target} target."
                 ),
@@ -86,7 +86,7 @@ pub fn run_links(sc: &Scenario, opts: &LinksOptions) -> Result<LinksResult, Erro
                 "Interference".into(),
                 "dBm",
                 i,
-                crate::io::hotspots::outlines(&regions(grid, i, level as f32, false)),
+                outlines(&regions(grid, i, level as f32, false)),
                 format!(
                     "Aggregate interference at a receiver served by its best node; crimson outlines: hot spots at or above {level:.1} dBm (noise + {} dB).",
                     sc.thresholds.hotspot_i_over_n_db

@@ -3,8 +3,9 @@
 
 use crate::engine::{Engine, LayerSet, Layers, Options};
 use crate::error::{Error, Problem};
+use crate::geometry::regions::outlines;
 use crate::io::heatmap::{Marker, PROBABILITY};
-use crate::io::hotspots::{outlines, zones_geojson};
+use crate::io::hotspots::zones_geojson;
 use crate::io::layout::layout_geojson;
 use crate::io::staging::Staging;
 use crate::io::summary::{Spread, Summary};

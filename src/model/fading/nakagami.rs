@@ -26,7 +26,7 @@ pub(super) fn laplace_complex(m: f64, t: num_complex::Complex64) -> num_complex:
 /// (1 + t/m)^{−m} in float32 with the vectorisable log2/exp2 (the engine's kernel form).
 #[inline(always)]
 pub(crate) fn laplace_f32(m: f32, t: f32) -> f32 {
-    use crate::engine::fastmath::{fast_exp2, fast_log2};
+    use crate::math::fastmath::{fast_exp2, fast_log2};
     fast_exp2(-m * fast_log2(1.0 + t / m))
 }
 

@@ -18,5 +18,5 @@ pub(super) fn laplace_complex(t: num_complex::Complex64) -> num_complex::Complex
 /// e^{−t} in float32 with the vectorisable exp2 (the engine's kernel form).
 #[inline(always)]
 pub(crate) fn laplace_f32(t: f32) -> f32 {
-    crate::engine::fastmath::fast_exp2(-t * std::f32::consts::LOG2_E)
+    crate::math::fastmath::fast_exp2(-t * std::f32::consts::LOG2_E)
 }

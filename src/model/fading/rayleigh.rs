@@ -46,8 +46,8 @@ pub(super) fn fill_f32(rng: &mut impl Rng, h: &mut [f32]) {
 #[inline(always)]
 fn neg_ln_body(h: &mut [f32]) {
     for x in h.iter_mut() {
-        *x = -crate::engine::fastmath::fast_log2(*x) * std::f32::consts::LN_2;
+        *x = -crate::math::fastmath::fast_log2(*x) * std::f32::consts::LN_2;
     }
 }
 
-crate::engine::simd::multiversion!(fn neg_ln_in_place(h: &mut [f32]) -> () => neg_ln_body);
+crate::math::simd::multiversion!(fn neg_ln_in_place(h: &mut [f32]) -> () => neg_ln_body);

@@ -41,7 +41,7 @@ pub(super) fn laplace_complex(k: f64, t: num_complex::Complex64) -> num_complex:
 #[inline(always)]
 pub(crate) fn laplace_f32(k: f32, t: f32) -> f32 {
     let d = 1.0 + k + t;
-    (1.0 + k) / d * crate::engine::fastmath::fast_exp2(-k * t / d * std::f32::consts::LOG2_E)
+    (1.0 + k) / d * crate::math::fastmath::fast_exp2(-k * t / d * std::f32::consts::LOG2_E)
 }
 
 /// Line-of-sight amplitude and per-component scatter: (√(K/(K+1)), √(1/(2(K+1)))).

@@ -50,12 +50,12 @@ macro_rules! multiversion {
                 fn v2 $(<$($g: $bound),+>)? ($($arg: $ty),*) -> $ret {
                     $body($($arg),*)
                 }
-                match $crate::engine::simd::level() {
+                match $crate::math::simd::level() {
                     // SAFETY: level() found the features these copies were compiled for.
-                    $crate::engine::simd::Level::Avx512 => return unsafe { v512($($arg),*) },
+                    $crate::math::simd::Level::Avx512 => return unsafe { v512($($arg),*) },
                     // SAFETY: as above.
-                    $crate::engine::simd::Level::Avx2 => return unsafe { v2($($arg),*) },
-                    $crate::engine::simd::Level::Baseline => {}
+                    $crate::math::simd::Level::Avx2 => return unsafe { v2($($arg),*) },
+                    $crate::math::simd::Level::Baseline => {}
                 }
             }
             $body($($arg),*)
