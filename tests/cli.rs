@@ -325,3 +325,46 @@ fn check_sizes_memory_like_map() {
     // The limits straddle the grid's need: some refused, some accepted.
     assert!(verdicts.contains(&true) && verdicts.contains(&false), "{verdicts:?}");
 }
+
+/// Regression (summary.json `layers` omitted coverage, and listed server for ensembles): the
+/// list names exactly the layers whose GeoTIFFs were written.
+#[test]
+fn summary_layers_name_every_layer_written() {
+    let (d, p) = site(GOOD_TOML, GOOD_NODES);
+    let out = d.path().join("out");
+    let o = run(&["map", p.to_str().unwrap(), "--out", out.to_str().unwrap(), "--quiet"]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    let s: serde_json::Value =
+        serde_json::from_str(&std::fs::read_to_string(out.join("summary.json")).unwrap()).unwrap();
+    let mut listed: Vec<String> =
+        s["layers"].as_array().unwrap().iter().map(|v| v.as_str().unwrap().to_string()).collect();
+    let mut tifs: Vec<String> = std::fs::read_dir(&out)
+        .unwrap()
+        .filter_map(|e| e.unwrap().file_name().into_string().ok())
+        .filter_map(|n| n.strip_suffix(".tif").map(String::from))
+        .collect();
+    listed.sort();
+    tifs.sort();
+    assert_eq!(listed, tifs);
+    assert!(listed.contains(&"coverage".to_string()));
+}
+
+/// Regression (a node that never transmits was computed): activity 0 on a node that names a
+/// peer, or on every node, is refused with the node and field named, exit 2, no output.
+#[test]
+fn never_transmitting_nodes_are_refused() {
+    let silent_peer = GOOD_NODES.replace(r#""id":"B","azimuth_deg":270"#, r#""id":"B","azimuth_deg":270,"activity":0"#);
+    let (d, p) = site(GOOD_TOML, &silent_peer);
+    let out = d.path().join("out");
+    let o = run(&["map", p.to_str().unwrap(), "--out", out.to_str().unwrap(), "--quiet"]);
+    assert_eq!(o.status.code(), Some(2));
+    let e = stderr(&o);
+    assert!(e.contains("feature 1 (id B)") && e.contains("`activity`") && e.contains("peer `A`"), "{e}");
+    assert!(!out.exists());
+    let all_silent = GOOD_TOML.replace("power_dbm = 20", "power_dbm = 20\nactivity = 0");
+    let no_peers = GOOD_NODES.replace(r#","peer":"B""#, "").replace(r#","peer":"A""#, "");
+    let (_d2, p2) = site(&all_silent, &no_peers);
+    let o = run(&["check", p2.to_str().unwrap()]);
+    assert_eq!(o.status.code(), Some(2));
+    assert!(stderr(&o).contains("none transmits"), "{}", stderr(&o));
+}

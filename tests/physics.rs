@@ -179,3 +179,60 @@ fn cutoff_bound_holds() {
     );
     assert!(cut.pair_evaluations < (sc.grid().cells() * sc.nodes().len()) as u64);
 }
+
+/// Regression (a node with activity 0 was chosen as best server, giving SINR and coverage
+/// from a node that never transmits): a silent node beside every cell never serves, in the
+/// engine's server layer or in the probe; its contribution to every sum is zero (common
+/// practice: an idle transmitter radiates nothing).
+#[test]
+fn activity_zero_node_is_never_a_server() {
+    let frame = lobemap::geometry::frame::LocalFrame::new(50.0, 8.0);
+    let (lon_a, lat_a) = frame.to_geo(-300.0, 0.0);
+    let (lon_b, lat_b) = frame.to_geo(0.0, 0.0);
+    let omni = Pattern::omni(0.0);
+    let a = node("A", lon_a, lat_a, 0.0, omni, 20.0, 5.0);
+    let b = Node { activity: 0.0, ..node("B", lon_b, lat_b, 0.0, omni, 40.0, 5.0) };
+    let pl = PathLoss::new(FreeSpace, 28.0, 0.0, 1.0).unwrap();
+    let sc = scenario(vec![a, b], pl, fixtures::square(&frame, 200.0), 20.0, 1.5);
+    let layers = Engine::new(&sc).run(&Options { layers: LayerSet::ALL, cutoff_m: None, progress: false });
+    assert!(layers.server.as_ref().unwrap().iter().all(|&s| s == 0.0), "node B (index 1) served a cell");
+    let g = sc.grid();
+    let p = probe(&sc, g.lat_of_row(g.rows() / 2), g.lon_of_col(g.cols() / 2));
+    assert_eq!(p.server, "A");
+    assert!(p.interference_dbm.is_none(), "a silent node interferes: {:?}", p.interference_dbm);
+}
+
+/// Regression (bearings used the grid centre's north): at 60° N, a 19 km link whose ends lie
+/// 15 km east of the grid centre, both dishes (1.2° HPBW, 38 dBi) aimed along the geodesic
+/// (azimuths from geo's Geodesic, Karney 2013). The link table must show them aligned
+/// (misalignment below 0.001°, full gain at both ends), the probe at B must see A's main
+/// lobe within 0.01 dB (TR 38.901 cut: 12 (φ/1.2°)² < 0.01 dB means φ < 0.035°), and the
+/// engine's cell there must agree with the probe (float32 tolerance).
+#[test]
+fn long_links_far_from_the_centre_are_aimed_from_true_north() {
+    use geo::{Bearing, Destination, Geodesic, Point};
+    let frame = lobemap::geometry::frame::LocalFrame::new(60.0, 10.0);
+    let (lon_a, lat_a) = frame.to_geo(15_000.0, -9_000.0);
+    let b_pt = Geodesic.destination(Point::new(lon_a, lat_a), -30.0, 19_000.0);
+    let az_ab = Geodesic.bearing(Point::new(lon_a, lat_a), b_pt).rem_euclid(360.0);
+    let az_ba = Geodesic.bearing(b_pt, Point::new(lon_a, lat_a)).rem_euclid(360.0);
+    let dish = Pattern::parabolic(1.2, 38.0, -2.0).unwrap();
+    let a = Node { peer: Some("B".into()), ..node("A", lon_a, lat_a, az_ab, dish, 10.0, 30.0) };
+    let b = Node { peer: Some("A".into()), ..node("B", b_pt.x(), b_pt.y(), az_ba, dish, 10.0, 30.0) };
+    let pl = PathLoss::new(FreeSpace, 28.0, 0.0, 1.0).unwrap();
+    let bbox = lobemap::geometry::grid::BBox::around([(lon_a, lat_a), (b_pt.x(), b_pt.y())].into_iter(), 500.0);
+    let sc = scenario(vec![a, b], pl, bbox, 100.0, 30.0);
+    for r in lobemap::jobs::links::links(&sc, None) {
+        assert!(r.misalign_from_deg.abs() < 1e-3 && r.misalign_to_deg.abs() < 1e-3, "{r:?}");
+        assert!((r.tx_gain_dbi - 38.0).abs() < 1e-3 && (r.rx_gain_dbi - 38.0).abs() < 1e-3, "{r:?}");
+    }
+    let p = probe(&sc, b_pt.y(), b_pt.x());
+    let from_a = p.contributions.iter().find(|c| c.id == "A").unwrap();
+    assert!((from_a.tx_gain_dbi - 38.0).abs() < 0.01, "A's gain toward B {}", from_a.tx_gain_dbi);
+    let g = sc.grid();
+    let (r, c) = g.cell_of(b_pt.x(), b_pt.y()).unwrap();
+    let layers = Engine::new(&sc).run(&Options { layers: LayerSet::TOTAL, cutoff_m: None, progress: false });
+    let cell = probe(&sc, g.lat_of_row(r), g.lon_of_col(c));
+    let t = layers.total.unwrap()[r * g.cols() + c] as f64;
+    assert!((t - cell.total_dbm).abs() < tol::ENGINE_F32_DB, "engine {t} vs probe {}", cell.total_dbm);
+}

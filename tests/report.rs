@@ -51,12 +51,14 @@ fn links_tables_and_installer_sheet() {
     let csv = std::fs::read_to_string(out.join("install.csv")).unwrap();
     let lines: Vec<&str> = csv.lines().collect();
     assert!(lines[0].starts_with('#') && lines[0].contains("W/m2") && lines[0].contains("local exposure rules"));
-    assert!(lines[1].starts_with("id,name,lat,lon,height_m,azimuth_true_deg,declination_deg,azimuth_magnetic_deg"));
+    assert!(lines[1].starts_with(
+        "id,name,lat,lon,height_m,azimuth_true_deg,azimuth_planned_deg,differs_from_plan,declination_deg,azimuth_magnetic_deg"
+    ));
     assert_eq!(lines.len(), 2 + 44);
     // Magnetic = true − declination, modulo 360 (the definition of declination).
     for l in &lines[2..] {
         let f: Vec<&str> = l.split(',').collect();
-        let (t, d, m): (f64, f64, f64) = (f[5].parse().unwrap(), f[6].parse().unwrap(), f[7].parse().unwrap());
+        let (t, d, m): (f64, f64, f64) = (f[5].parse().unwrap(), f[8].parse().unwrap(), f[9].parse().unwrap());
         let diff = ((t - d - m) % 360.0 + 360.0) % 360.0;
         assert!(!(0.11..=359.89).contains(&diff), "{l}");
     }
@@ -170,4 +172,39 @@ fn report_renders_in_headless_chromium() {
     assert!(var.sqrt() > 20.0, "screenshot looks blank (sd {})", var.sqrt());
     let distinct: std::collections::HashSet<[u8; 3]> = img.pixels().step_by(7).map(|p| p.0).collect();
     assert!(distinct.len() > 200, "too few colours: the maps did not render");
+}
+
+/// Regression (the installer sheet printed the planned, wrong azimuth of a misaligned dish and
+/// a level that holds only when aligned): on the demo, every node with a peer gets the link
+/// table's azimuth to set (within the sheet's 0.1° rounding), marked when it differs from the
+/// planned one, and the CSV and the report carry the same values.
+#[test]
+fn installer_sheet_agrees_with_link_table() {
+    let (_d, out) = links_out();
+    let csv = std::fs::read_to_string(out.join("install.csv")).unwrap();
+    let mut lines = csv.lines().skip(1);
+    let header: Vec<&str> = lines.next().unwrap().split(',').collect();
+    let col = |name: &str| header.iter().position(|h| *h == name).unwrap();
+    let sheet: std::collections::HashMap<String, Vec<String>> = lines
+        .map(|l| {
+            let f: Vec<String> = l.split(',').map(String::from).collect();
+            (f[0].clone(), f)
+        })
+        .collect();
+    let links: serde_json::Value =
+        serde_json::from_str(&std::fs::read_to_string(out.join("links.geojson")).unwrap()).unwrap();
+    let mut misaligned = 0;
+    for f in links["features"].as_array().unwrap() {
+        let p = &f["properties"];
+        let row = &sheet[p["from"].as_str().unwrap()];
+        let set: f64 = row[col("azimuth_true_deg")].parse().unwrap();
+        let should = p["azimuth_from_should_deg"].as_f64().unwrap();
+        assert!(((set - should + 540.0) % 360.0 - 180.0).abs() <= 0.05 + 1e-9, "{}: {set} vs {should}", p["from"]);
+        let differs = row[col("differs_from_plan")] == "true";
+        assert_eq!(differs, p["misalign_from_deg"].as_f64().unwrap().abs() >= 0.05, "{}", p["from"]);
+        misaligned += differs as usize;
+    }
+    assert!(misaligned >= 1, "the demo's deliberately misaligned dish is not marked");
+    let html = std::fs::read_to_string(out.join("report.html")).unwrap();
+    assert!(html.contains("(planned "), "the report does not mark the azimuth to change");
 }

@@ -99,6 +99,30 @@ pub fn parse_nodes(text: &str, file: &str, defaults: &AntennaDefaults) -> Result
             }
         }
     }
+    // A node with activity 0 never transmits: it cannot be the sending end of a planned link,
+    // and a layout in which no node transmits has nothing to compute.
+    for (i, n) in nodes.iter().enumerate() {
+        if n.activity == 0.0
+            && let Some(p) = &n.peer
+        {
+            probs.push(Problem::new(
+                file,
+                Some(format!("feature {i} (id {})", n.id)),
+                "activity",
+                format!(
+                    "value 0 means the node never transmits, but it names peer `{p}`, which makes it the sending end of a planned link; give an activity in (0, 1] or remove `peer`"
+                ),
+            ));
+        }
+    }
+    if !nodes.is_empty() && nodes.len() == fc.features.len() && nodes.iter().all(|n| n.activity == 0.0) {
+        probs.push(Problem::new(
+            file,
+            None,
+            "activity",
+            "every node has activity 0, so none transmits; at least one node needs an activity in (0, 1]",
+        ));
+    }
     if nodes.len() != fc.features.len() || !probs.is_empty() {
         // Some features were rejected outright; their problems are already recorded.
         return Err(probs.0);

@@ -118,6 +118,8 @@ pub struct Layers {
 pub struct Engine<'s> {
     pub(crate) sc: &'s Scenario,
     pub(crate) nodes: Vec<NodeK>,
+    /// Indices of the nodes that transmit (activity above 0).
+    pub(crate) active: Vec<usize>,
     pub(crate) luts: Vec<Vec<f32>>,
     pub(crate) tree: RTree<GeomWithData<[f64; 2], usize>>,
     pub(crate) sin_dlon: Vec<f64>,

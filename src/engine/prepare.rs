@@ -21,7 +21,9 @@ impl<'s> Engine<'s> {
             .enumerate()
             .map(|(i, n)| {
                 let (x, y) = sc.frame.to_local(n.lon, n.lat);
-                let az = n.azimuth_deg.to_radians();
+                // The boresight in the plane: the true azimuth turned by the meridian
+                // convergence at the node (true north at the node is not the plane's north).
+                let az = (n.azimuth_deg + sc.frame.north_deg(n.lon, n.lat)).to_radians();
                 let p = dbm_to_mw(n.power_dbm) * k_inv;
                 let (p_main, p_side, lut) = match n.pattern.kernel() {
                     GainForm::Flat { main_dbi, side_dbi } => (p * db_to_lin(main_dbi), p * db_to_lin(side_dbi), None),
@@ -63,9 +65,11 @@ impl<'s> Engine<'s> {
                 db_to_lin(s.floor_dbi()) as f32,
             )),
         };
+        let active = nodes.iter().filter(|n| n.act > 0.0).map(|n| n.idx as usize).collect();
         Engine {
             sc,
             nodes,
+            active,
             luts: luts.into_iter().map(|(_, t)| t).collect(),
             tree,
             sin_dlon,

@@ -43,10 +43,11 @@ pub(crate) fn row_body<D: Decay, A: PairFactor, C: RxCoupling>(
         ymin = ymin.min(y);
         ymax = ymax.max(y);
     }
-    // Candidate nodes: all, or (with a cutoff) those near the row, in index order.
+    // Candidate nodes: every node that transmits, or (with a cutoff) those near the row, in
+    // index order. A node with activity 0 adds nothing to any sum and is never a server.
     let mut dropped_mw = 0.0;
     let cand: Vec<usize> = match cutoff {
-        None => (0..e.nodes.len()).collect(),
+        None => e.active.clone(),
         Some(rc) => {
             let env = AABB::from_corners([xmin - rc, ymin - rc], [xmax + rc, ymax + rc]);
             let mut keep = vec![false; e.nodes.len()];
@@ -62,7 +63,7 @@ pub(crate) fn row_body<D: Decay, A: PairFactor, C: RxCoupling>(
                 let dist = (dx * dx + dy * dy + n.dz2 as f64).sqrt();
                 dropped_mw += n.act as f64 * n.p_max * gmax_rx * pl.gain_lin(dist) / db_to_lin(-pl.loss_at_1m_db());
             }
-            (0..e.nodes.len()).filter(|k| keep[*k]).collect()
+            e.active.iter().copied().filter(|k| keep[*k]).collect()
         }
     };
     let mut pairs = 0u64;

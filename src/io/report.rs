@@ -138,7 +138,7 @@ pub fn html(sc: &Scenario, links: &[LinkRow], sheet: &InstallSheet, maps: &[MapI
         sc.links.capacity_gap_db, sc.links.max_spectral_efficiency
     );
     h += &format!(
-        "<section><h2>Installer sheet</h2><p class=\"small\">Magnetic azimuth = true azimuth − declination (World Magnetic Model, {}). Keep-out: far-field distance on boresight where EIRP/(4πd²) falls to {} W/m² ({}).</p><div class=\"scroll\"><table><thead><tr>",
+        "<section><h2>Installer sheet</h2><p class=\"small\">Azimuth to set: toward the peer along the geodesic, from true north at the node; where it differs from the planned azimuth the cell is marked and the planned value follows in brackets. Magnetic azimuth = azimuth to set − declination (World Magnetic Model, {}). Keep-out: far-field distance on boresight where EIRP/(4πd²) falls to {} W/m² ({}).</p><div class=\"scroll\"><table><thead><tr>",
         esc(&sheet.declination_date),
         sheet.limit_w_m2,
         esc(&sheet.limit_name)
@@ -149,7 +149,7 @@ pub fn html(sc: &Scenario, links: &[LinkRow], sheet: &InstallSheet, maps: &[MapI
         "lat",
         "lon",
         "height m",
-        "azimuth true °",
+        "azimuth to set, true °",
         "declination °",
         "azimuth magnetic °",
         "peer",
@@ -167,13 +167,17 @@ pub fn html(sc: &Scenario, links: &[LinkRow], sheet: &InstallSheet, maps: &[MapI
     h += "</tr></thead><tbody>";
     for r in &sheet.rows {
         h += &format!(
-            "<tr><td class=\"l\">{}</td><td class=\"l\">{}</td><td>{:.6}</td><td>{:.6}</td><td>{}</td><td>{:.1}</td><td>{:.2}</td><td>{:.1}</td><td class=\"l\">{}</td><td>{}</td><td>{}</td><td>{:.1}</td><td>{:.2}</td></tr>",
+            "<tr><td class=\"l\">{}</td><td class=\"l\">{}</td><td>{:.6}</td><td>{:.6}</td><td>{}</td>{}<td>{:.2}</td><td>{:.1}</td><td class=\"l\">{}</td><td>{}</td><td>{}</td><td>{:.1}</td><td>{:.2}</td></tr>",
             esc(&r.id),
             esc(&r.name),
             r.lat,
             r.lon,
             r.height_m,
-            r.azimuth_true_deg,
+            if r.differs_from_plan {
+                format!("<td class=\"warn\">{:.1} (planned {:.1})</td>", r.azimuth_true_deg, r.azimuth_planned_deg)
+            } else {
+                format!("<td>{:.1}</td>", r.azimuth_true_deg)
+            },
             r.declination_deg,
             r.azimuth_magnetic_deg,
             esc(&r.peer),

@@ -14,7 +14,8 @@
 //!   (47 CFR 1.1310, confirmed; docs/reference-values.md).
 
 use crate::jobs::links::angle_diff;
-use crate::model::link::{Budget, Geometry};
+use crate::jobs::links::link_azimuths;
+use crate::model::link::{Budget, Endpoint, Geometry};
 use crate::model::scenario::Scenario;
 use serde::Serialize;
 use world_magnetic_model::GeomagneticField;
@@ -67,8 +68,13 @@ pub struct InstallRow {
     pub lon: f64,
     /// Mounting height, m.
     pub height_m: f64,
-    /// Boresight, degrees from true north.
+    /// Boresight to set, degrees from true north: the geodesic azimuth to the peer, or the
+    /// planned azimuth for a node without one.
     pub azimuth_true_deg: f64,
+    /// Boresight in the node file, degrees from true north.
+    pub azimuth_planned_deg: f64,
+    /// Whether the azimuth to set differs from the planned one (by 0.05° or more).
+    pub differs_from_plan: bool,
     /// Magnetic declination used, degrees east.
     pub declination_deg: f64,
     /// Boresight, degrees from magnetic north (compass reading).
@@ -77,7 +83,7 @@ pub struct InstallRow {
     pub peer: String,
     /// Mechanical down-tilt toward the peer from the two heights, degrees (negative: up-tilt).
     pub downtilt_deg: Option<f64>,
-    /// Expected level at the peer with both ends aligned, dBm (peer's main-lobe gain).
+    /// Expected level at the peer with both ends set to their azimuths to set, dBm.
     pub expected_at_peer_dbm: Option<f64>,
     /// EIRP on boresight, dBm.
     pub eirp_dbm: f64,
@@ -108,28 +114,35 @@ pub fn sheet(sc: &Scenario) -> Result<InstallSheet, String> {
     for n in &sc.nodes {
         let decl = declination_deg(n.lat, n.lon, n.height_m, date)?;
         let peer = n.peer.as_deref().and_then(|p| index.get(p)).map(|&j| &sc.nodes[j]);
-        let (tilt, expected) = match peer {
+        // With a peer, the azimuth to set is the geodesic azimuth to it (the link table's
+        // "should"); tilt and expected level are for both ends set that way.
+        let (set_deg, tilt, expected) = match peer {
             Some(p) => {
-                let (x0, y0) = sc.frame.to_local(n.lon, n.lat);
-                let (x1, y1) = sc.frame.to_local(p.lon, p.lat);
-                let horiz = ((x1 - x0).powi(2) + (y1 - y0).powi(2)).sqrt();
+                let (to_peer, _) = link_azimuths(n, p);
+                let (e0, e1) = (
+                    Endpoint::at(&sc.frame, n.lon, n.lat, n.height_m),
+                    Endpoint::at(&sc.frame, p.lon, p.lat, p.height_m),
+                );
+                let g = Geometry::between(&e0, &e1);
+                let horiz = g.east_m.hypot(g.north_m);
                 let tilt = (n.height_m - p.height_m).atan2(horiz).to_degrees();
-                let link =
-                    Budget::aligned(&sc.pathloss, n, Geometry::between((x0, y0), n.height_m, (x1, y1), p.height_m));
-                let level = link.received_dbm(p.pattern.max_gain_dbi());
-                (Some((tilt * 100.0).round() / 100.0), Some((level * 100.0).round() / 100.0))
+                let level = Budget::aligned(&sc.pathloss, n, g).received_dbm(p.pattern.max_gain_dbi());
+                (to_peer, Some((tilt * 100.0).round() / 100.0), Some((level * 100.0).round() / 100.0))
             }
-            None => (None, None),
+            None => (n.azimuth_deg, None, None),
         };
+        let round1 = |x: f64| (x * 10.0).round() / 10.0 % 360.0;
         rows.push(InstallRow {
             id: n.id.clone(),
             name: n.name.clone().unwrap_or_default(),
             lat: n.lat,
             lon: n.lon,
             height_m: n.height_m,
-            azimuth_true_deg: (n.azimuth_deg * 10.0).round() / 10.0,
+            azimuth_true_deg: round1(set_deg),
+            azimuth_planned_deg: round1(n.azimuth_deg),
+            differs_from_plan: angle_diff(set_deg, n.azimuth_deg).abs() >= 0.05,
             declination_deg: (decl * 100.0).round() / 100.0,
-            azimuth_magnetic_deg: ((angle_diff(n.azimuth_deg, decl).rem_euclid(360.0)) * 10.0).round() / 10.0,
+            azimuth_magnetic_deg: round1(angle_diff(set_deg, decl).rem_euclid(360.0)),
             peer: n.peer.clone().unwrap_or_default(),
             downtilt_deg: tilt,
             expected_at_peer_dbm: expected,
@@ -154,16 +167,18 @@ pub fn csv(s: &InstallSheet) -> String {
         "# keep-out: far-field distance where EIRP/(4 pi d^2) falls to {} W/m2 ({}); magnetic azimuth = true azimuth - declination (WMM, {}); estimates only: follow local exposure rules and licensed practice\n",
         s.limit_w_m2, s.limit_name, s.declination_date
     );
-    out += "id,name,lat,lon,height_m,azimuth_true_deg,declination_deg,azimuth_magnetic_deg,peer,downtilt_deg,expected_at_peer_dbm,eirp_dbm,keepout_m\n";
+    out += "id,name,lat,lon,height_m,azimuth_true_deg,azimuth_planned_deg,differs_from_plan,declination_deg,azimuth_magnetic_deg,peer,downtilt_deg,expected_at_peer_dbm,eirp_dbm,keepout_m\n";
     for r in &s.rows {
         out += &format!(
-            "{},\"{}\",{:.7},{:.7},{},{},{},{},{},{},{},{},{}\n",
+            "{},\"{}\",{:.7},{:.7},{},{},{},{},{},{},{},{},{},{},{}\n",
             r.id,
             r.name.replace('"', "'"),
             r.lat,
             r.lon,
             r.height_m,
             r.azimuth_true_deg,
+            r.azimuth_planned_deg,
+            r.differs_from_plan,
             r.declination_deg,
             r.azimuth_magnetic_deg,
             r.peer,

@@ -9,9 +9,10 @@
 //!   gap Γ (dB) between this bound and a practical modem is common practice (e.g. Cioffi's
 //!   SNR-gap approximation).
 
+use crate::geometry::frame::geodesic_azimuth_deg;
 use crate::jobs::probe::McCheck;
 use crate::model::coverage::CoverageModel;
-use crate::model::link::{Budget, Geometry, gain_toward};
+use crate::model::link::{Budget, Endpoint, Geometry, gain_toward};
 use crate::model::node::Node;
 use crate::model::scenario::Scenario;
 use crate::model::units::{db_to_lin, dbm_to_mw, mw_to_dbm};
@@ -81,6 +82,12 @@ pub struct LinkRow {
     pub monte_carlo: Option<McCheck>,
 }
 
+/// Geodesic azimuths of the link a → b: (at a toward b, at b toward a), degrees from true north
+/// at each end (Karney 2013).
+pub fn link_azimuths(a: &Node, b: &Node) -> (f64, f64) {
+    (geodesic_azimuth_deg(a.lon, a.lat, b.lon, b.lat), geodesic_azimuth_deg(b.lon, b.lat, a.lon, a.lat))
+}
+
 /// Signed difference a − b folded into (−180, 180].
 pub fn angle_diff(a: f64, b: f64) -> f64 {
     let d = (a - b).rem_euclid(360.0);
@@ -89,7 +96,7 @@ pub fn angle_diff(a: f64, b: f64) -> f64 {
 
 /// Computes every planned link, in node order; `mc` = (trials, seed) adds Monte Carlo checks.
 pub fn links(sc: &Scenario, mc: Option<(usize, u64)>) -> Vec<LinkRow> {
-    let pos: Vec<(f64, f64)> = sc.nodes.iter().map(|n| sc.frame.to_local(n.lon, n.lat)).collect();
+    let pos: Vec<Endpoint> = sc.nodes.iter().map(|n| Endpoint::at(&sc.frame, n.lon, n.lat, n.height_m)).collect();
     let index: std::collections::HashMap<&str, usize> =
         sc.nodes.iter().enumerate().map(|(i, n)| (n.id.as_str(), i)).collect();
     let pairs: Vec<(usize, usize)> = sc
@@ -114,7 +121,7 @@ pub fn links(sc: &Scenario, mc: Option<(usize, u64)>) -> Vec<LinkRow> {
 #[allow(clippy::too_many_arguments)]
 fn one(
     sc: &Scenario,
-    pos: &[(f64, f64)],
+    pos: &[Endpoint],
     f: usize,
     t: usize,
     a: &Node,
@@ -123,14 +130,16 @@ fn one(
     noise_dbm: f64,
     mc: Option<(usize, u64)>,
 ) -> LinkRow {
-    let link = Budget::new(&sc.pathloss, a, Geometry::between(pos[f], a.height_m, pos[t], b.height_m));
+    // The link's own bearings are geodesic azimuths from true north at each end (Karney),
+    // so the azimuth to set is right on long links far from the grid centre.
+    let (brg, back) = link_azimuths(a, b);
+    let path = Geometry::between(&pos[f], &pos[t]).with_bearings(brg, back);
+    let link = Budget::new(&sc.pathloss, a, path);
     let length_m = link.geometry.distance_m;
-    let brg = link.geometry.bearing_from_tx_deg();
-    let back = (brg + 180.0) % 360.0;
     let mis_a = angle_diff(a.azimuth_deg, brg);
     let mis_b = angle_diff(b.azimuth_deg, back);
     let tx_gain = link.tx_gain_dbi;
-    let rx_gain = gain_toward(b, link.geometry.bearing_from_rx_deg());
+    let rx_gain = gain_toward(b, back);
     let pl = link.path_loss_db;
     let signal_dbm = link.received_dbm(rx_gain);
     // Interference at b from every other node, b's antenna as installed.
@@ -139,8 +148,8 @@ fn one(
         if i == f || i == t {
             continue;
         }
-        let path = Budget::new(&sc.pathloss, n, Geometry::between(pos[i], n.height_m, pos[t], b.height_m));
-        let g_rx = gain_toward(b, path.geometry.bearing_from_rx_deg());
+        let path = Budget::new(&sc.pathloss, n, Geometry::between(&pos[i], &pos[t]));
+        let g_rx = gain_toward(b, path.geometry.bearing_from_rx_deg);
         contrib.push((i, n.activity, dbm_to_mw(path.received_dbm(g_rx))));
     }
     let i_mw: f64 = contrib.iter().map(|c| c.1 * c.2).sum();

@@ -2,7 +2,7 @@
 //! path loss and received power, then total, best server, interference, noise and SINR.
 //! It follows the engine's definitions (see [`crate::engine`]) and serves as its reference.
 
-use crate::model::link::{Budget, Geometry};
+use crate::model::link::{Budget, Endpoint, Geometry};
 use crate::model::scenario::Scenario;
 use crate::model::units::{dbm_to_mw, mw_to_dbm};
 use serde::Serialize;
@@ -82,29 +82,31 @@ pub fn probe(sc: &Scenario, lat: f64, lon: f64) -> Probe {
 
 /// Like [`probe`], with an optional Monte Carlo check of the coverage (trials, seed).
 pub fn probe_with(sc: &Scenario, lat: f64, lon: f64, mc: Option<(usize, u64)>) -> Probe {
-    let (px, py) = sc.frame.to_local(lon, lat);
     let rx = &sc.receiver;
     let g_omni = rx.omni_gain_dbi();
     // First pass: the transmit side of every path (the receiver's aim needs the server).
+    let point = Endpoint::at(&sc.frame, lon, lat, rx.height_m);
     let budgets: Vec<Budget> = sc
         .nodes
         .iter()
         .map(|n| {
-            let g = Geometry::between(sc.frame.to_local(n.lon, n.lat), n.height_m, (px, py), rx.height_m);
-            Budget::new(&sc.pathloss, n, g)
+            Budget::new(&sc.pathloss, n, Geometry::between(&Endpoint::at(&sc.frame, n.lon, n.lat, n.height_m), &point))
         })
         .collect();
-    let server = budgets
-        .iter()
-        .enumerate()
-        .fold(0, |best, (k, b)| if b.isotropic_dbm() > budgets[best].isotropic_dbm() { k } else { best });
-    let server_bearing = budgets[server].geometry.bearing_from_rx_deg();
+    // The server is the strongest node that transmits (the configuration refuses a layout in
+    // which none does).
+    let active = |k: usize| sc.nodes[k].activity > 0.0;
+    let first = (0..sc.nodes.len()).find(|&k| active(k)).unwrap_or(0);
+    let server = budgets.iter().enumerate().fold(first, |best, (k, b)| {
+        if active(k) && b.isotropic_dbm() > budgets[best].isotropic_dbm() { k } else { best }
+    });
+    let server_bearing = budgets[server].geometry.bearing_from_rx_deg;
     let mut contributions: Vec<Contribution> = budgets
         .iter()
         .enumerate()
         .map(|(i, b)| {
             let n = &sc.nodes[i];
-            let bearing = b.geometry.bearing_from_rx_deg();
+            let bearing = b.geometry.bearing_from_rx_deg;
             let rx_gain =
                 if rx.is_aimed() { rx.pattern().gain_dbi(bearing - server_bearing) } else { rx.max_gain_dbi() };
             let rx_gain = if i == server { rx.max_gain_dbi() } else { rx_gain };

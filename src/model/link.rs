@@ -9,9 +9,29 @@
 //! # Units
 //! Metres, degrees clockwise from north, dB, dBm, dBi.
 
-use crate::geometry::frame::bearing_deg;
+use crate::geometry::frame::{LocalFrame, bearing_deg};
 use crate::model::node::Node;
 use crate::model::pathloss::PathLoss;
+
+/// One end of a path: local position, antenna height, and the plane bearing of true north
+/// there ([`LocalFrame::north_deg`]), so that bearings are reported from true north at the
+/// end itself.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Endpoint {
+    /// Local east and north, m.
+    pub xy: (f64, f64),
+    /// Antenna height, m.
+    pub height_m: f64,
+    /// Plane bearing of true north at the point, degrees.
+    pub north_deg: f64,
+}
+
+impl Endpoint {
+    /// The end at (`lon`, `lat`) and `height_m` in `frame`.
+    pub fn at(frame: &LocalFrame, lon: f64, lat: f64, height_m: f64) -> Endpoint {
+        Endpoint { xy: frame.to_local(lon, lat), height_m, north_deg: frame.north_deg(lon, lat) }
+    }
+}
 
 /// The straight path from a transmitting antenna to a receiving one.
 #[derive(Debug, Clone, Copy, PartialEq)]
@@ -22,31 +42,38 @@ pub struct Geometry {
     pub north_m: f64,
     /// 3-D slant range between the antennas, m.
     pub distance_m: f64,
+    /// True azimuth from the transmitter to the receiver, degrees in [0, 360).
+    pub bearing_from_tx_deg: f64,
+    /// True azimuth from the receiver to the transmitter, degrees in [0, 360).
+    pub bearing_from_rx_deg: f64,
 }
 
 impl Geometry {
-    /// The path from (`tx_xy`, `tx_height_m`) to (`rx_xy`, `rx_height_m`) in local metres.
+    /// The path from `tx` to `rx`; bearings from true north at each end.
     ///
     /// ```
-    /// use lobemap::model::link::Geometry;
-    /// let g = Geometry::between((0.0, 0.0), 10.0, (30.0, 40.0), 10.0);
+    /// use lobemap::model::link::{Endpoint, Geometry};
+    /// let a = Endpoint { xy: (0.0, 0.0), height_m: 10.0, north_deg: 0.0 };
+    /// let b = Endpoint { xy: (30.0, 40.0), height_m: 10.0, north_deg: 0.0 };
+    /// let g = Geometry::between(&a, &b);
     /// assert_eq!(g.distance_m, 50.0);
-    /// assert!((g.bearing_from_tx_deg() - 36.8699).abs() < 1e-4);
+    /// assert!((g.bearing_from_tx_deg - 36.8699).abs() < 1e-4);
     /// ```
-    pub fn between(tx_xy: (f64, f64), tx_height_m: f64, rx_xy: (f64, f64), rx_height_m: f64) -> Geometry {
-        let (east_m, north_m) = (rx_xy.0 - tx_xy.0, rx_xy.1 - tx_xy.1);
-        let dz = tx_height_m - rx_height_m;
-        Geometry { east_m, north_m, distance_m: (east_m * east_m + north_m * north_m + dz.powi(2)).sqrt() }
+    pub fn between(tx: &Endpoint, rx: &Endpoint) -> Geometry {
+        let (east_m, north_m) = (rx.xy.0 - tx.xy.0, rx.xy.1 - tx.xy.1);
+        let dz = tx.height_m - rx.height_m;
+        Geometry {
+            east_m,
+            north_m,
+            distance_m: (east_m * east_m + north_m * north_m + dz.powi(2)).sqrt(),
+            bearing_from_tx_deg: (bearing_deg(east_m, north_m) - tx.north_deg).rem_euclid(360.0),
+            bearing_from_rx_deg: (bearing_deg(-east_m, -north_m) - rx.north_deg).rem_euclid(360.0),
+        }
     }
 
-    /// Bearing from the transmitter to the receiver, degrees in [0, 360).
-    pub fn bearing_from_tx_deg(&self) -> f64 {
-        bearing_deg(self.east_m, self.north_m)
-    }
-
-    /// Bearing from the receiver to the transmitter, degrees in [0, 360).
-    pub fn bearing_from_rx_deg(&self) -> f64 {
-        bearing_deg(-self.east_m, -self.north_m)
+    /// The same path with the bearings given (e.g. geodesic azimuths of a long link).
+    pub fn with_bearings(self, from_tx_deg: f64, from_rx_deg: f64) -> Geometry {
+        Geometry { bearing_from_tx_deg: from_tx_deg, bearing_from_rx_deg: from_rx_deg, ..self }
     }
 }
 
@@ -66,7 +93,7 @@ pub struct Budget {
 impl Budget {
     /// The budget of `tx` as installed (its boresight) along `geometry`.
     pub fn new(pathloss: &PathLoss, tx: &Node, geometry: Geometry) -> Budget {
-        let tx_gain_dbi = tx.pattern.gain_dbi(geometry.bearing_from_tx_deg() - tx.azimuth_deg);
+        let tx_gain_dbi = tx.pattern.gain_dbi(geometry.bearing_from_tx_deg - tx.azimuth_deg);
         Budget { geometry, power_dbm: tx.power_dbm, tx_gain_dbi, path_loss_db: pathloss.loss_db(geometry.distance_m) }
     }
 

@@ -68,8 +68,8 @@ pub fn layout(sc: &Scenario, spec: &DrawSpec, seed: u64) -> Vec<Node> {
         let az = match spec.azimuth {
             Azimuth::Uniform => rng.random_range(0.0..360.0),
             Azimuth::Toward(tlon, tlat) => {
-                let (tx, ty) = sc.frame.to_local(tlon, tlat);
-                crate::geometry::frame::bearing_deg(tx - p[0], ty - p[1])
+                // From true north at the drawn node.
+                crate::geometry::frame::geodesic_azimuth_deg(lon, lat, tlon, tlat)
             }
             Azimuth::Nearest => fixed_tree.nearest_neighbor(*p).map(|g| sc.nodes[g.data].azimuth_deg).unwrap_or(0.0),
         };

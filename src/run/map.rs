@@ -146,17 +146,19 @@ pub fn run_map(sc: &Scenario, opts: &MapOptions) -> Result<MapResult, Error> {
     let b = grid.bbox();
     let sinr_hist = layers.sinr.as_deref().map(Histogram::of);
     let cov_hist = layers.coverage.as_deref().map(|c| Histogram::of_scaled(c, 100.0));
-    let mut names = vec![];
-    for (on, n) in [
-        (opts.layers.total, "total"),
-        (opts.layers.interference, "interference"),
-        (opts.layers.sinr, "sinr"),
-        (opts.layers.server, "server"),
-    ] {
-        if on {
-            names.push(n.to_string());
-        }
-    }
+    // The layers written (the server index is left out of ensembles).
+    let server_written = layers.server.is_some() && opts.realizations <= 1;
+    let names: Vec<String> = [
+        ("total", layers.total.is_some()),
+        ("interference", layers.interference.is_some()),
+        ("sinr", layers.sinr.is_some()),
+        ("server", server_written),
+        ("coverage", layers.coverage.is_some()),
+    ]
+    .into_iter()
+    .filter(|(_, on)| *on)
+    .map(|(n, _)| n.to_string())
+    .collect();
     files.push("summary.json".into());
     let summary = Summary {
         scenario: sc.name.clone(),
