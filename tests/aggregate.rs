@@ -69,6 +69,29 @@ fn gamma_fit_against_scipy_and_statrs() {
         let g = GammaFit { shape: k, scale_mw: th };
         assert!((g.quantile(p) / want - 1.0).abs() < tol::QUANTILE_RELATIVE, "ppf {k} {th} {p}: {}", g.quantile(p));
     }
+    // Regression (gamma-fit quantiles were wrong for small shapes, and p90 = p99): scipy
+    // 1.17.1 `scipy.stats.gamma.ppf(p, k)` at scale 1, for shapes down to 1e-4; 0.0 where
+    // scipy returns 0 (the quantile is below the smallest double).
+    for (k, p, want) in [
+        (1e-4, 0.9, 0.0),
+        (1e-4, 0.99, 1.2626998094033466e-44),
+        (1e-4, 0.999, 2.5365732854675825e-05),
+        (1e-3, 0.9, 9.82165964406889e-47),
+        (1e-3, 0.99, 2.4259428385578407e-05),
+        (1e-3, 0.999, 0.2647702702396509),
+        (0.011, 0.5, 2.437044170840722e-28),
+        (0.011, 0.9, 3.921675183038667e-05),
+        (0.011, 0.99, 0.2993072773548328),
+        (0.011, 0.999, 1.5747855121547811),
+        (0.05, 0.9, 0.07631711390918905),
+        (0.3, 0.99, 2.6394091570705323),
+        (1.0, 0.9, 2.302585092994046),
+        (5.0, 0.999, 14.79414922253721),
+    ] {
+        let q = GammaFit { shape: k, scale_mw: 1.0 }.quantile(p);
+        let ok = if want == 0.0 { q == 0.0 } else { (q / want - 1.0).abs() < tol::QUANTILE_RELATIVE };
+        assert!(ok, "ppf({p}, {k}) = {q:e}, scipy {want:e}");
+    }
     // Moment matching: the fit's mean and variance equal the cumulants.
     let g = GammaFit::from_cumulants(3.0, 2.0);
     assert!(
@@ -183,4 +206,28 @@ fn parabolic_interferers_through_their_gain_law() {
     let r = characterise(&f, &Request { thresholds_dbm: vec![], realizations: n, seed: 17, table_points: 80 });
     let dkw = ((2.0f64 / 0.001).ln() / (2.0 * n as f64)).sqrt();
     assert!(r.ks.as_ref().unwrap().exact_vs_mc < dkw, "{:?} vs {dkw}", r.ks);
+}
+
+/// Regression (gamma-fit quantiles wrong for small shapes; no warning when the fit is poor):
+/// the demo's 10° sweep set (its scenario, 400 per km² on 15–1500 m, 15/−5 dBi at 16 dBm,
+/// Rician 6 dB) fits a gamma of shape 0.02186. Its p90/p99/p99.9 must be scipy 1.17.1's
+/// `10 log10(gamma.ppf(p, k, scale=θ))` for that k and θ, and the report must warn that the
+/// fit is far from the exact law.
+#[test]
+fn demo_sweep_gamma_quantiles_match_scipy_and_warn() {
+    use lobemap::config::field::FieldSpec;
+    let sc =
+        lobemap::model::scenario::Scenario::load(std::path::Path::new("sites/harbourlight/scenario.toml")).unwrap();
+    let mut o = lobemap::run::demo::field_overrides();
+    o.beamwidth_deg = Some(10.0);
+    let f = FieldSpec::resolve(Some(&sc), &o).unwrap().build().unwrap();
+    let r = characterise(&f, &Request { thresholds_dbm: vec![], realizations: 0, seed: 1, table_points: 160 });
+    let (k, th) = (0.021855834572081442, 1.1712739105156186e-05);
+    assert!((r.gamma.shape / k - 1.0).abs() < tol::ROUNDING && (r.gamma.scale_mw / th - 1.0).abs() < tol::ROUNDING);
+    let q = r.quantiles_dbm.gamma;
+    for (got, want) in [(q.p90, -72.65938784116759), (q.p99, -51.50658234638435), (q.p999, -46.14695669939783)] {
+        assert!((got - want).abs() < 1e-3, "{got} vs scipy {want}"); // printed to 0.001 dB
+    }
+    assert!(q.p90 < q.p99 && q.p99 < q.p999);
+    assert!(r.warnings.iter().any(|w| w.contains("gamma fit is far")), "{:?}", r.warnings);
 }

@@ -69,6 +69,9 @@ pub fn table(label: &str, r: &Report) -> String {
         "exact CDF: {} M = {}, error estimate {:.1e}\n",
         r.inversion.method, r.inversion.m, r.inversion.error_estimate
     );
+    for w in &r.warnings {
+        s += &format!("WARNING: {w}\n");
+    }
     for n in &r.notes {
         s += &format!("note: {n}\n");
     }

@@ -11,6 +11,12 @@ use serde::Serialize;
 use statrs::distribution::{ContinuousCDF, Gamma};
 use std::time::Instant;
 
+/// Largest CDF gap between the gamma fit and the exact law before a warning (common
+/// practice: 0.05 is about the 95 % Kolmogorov–Smirnov band of 700 samples).
+pub const GAMMA_WARN_KS: f64 = 0.05;
+/// Largest gap of the 99th percentiles before a warning, dB.
+pub const GAMMA_WARN_P99_DB: f64 = 1.0;
+
 /// Probabilities at which quantiles are reported.
 pub const QUANTILE_LEVELS: [f64; 3] = [0.90, 0.99, 0.999];
 
@@ -39,9 +45,38 @@ impl GammaFit {
     pub fn sf(&self, x_mw: f64) -> f64 {
         self.dist().map(|g| g.sf(x_mw)).unwrap_or(f64::NAN)
     }
-    /// The p-quantile, mW.
+    /// The p-quantile, mW (0 when it lies below the smallest positive double). Solved by
+    /// bisection on ln x of the regularised incomplete gamma function, through the lower
+    /// tail P(k, x) for p ≤ ½ and the upper tail Q(k, x) = 1 − p above, so shapes down to
+    /// 1e-4 keep full relative precision (statrs' `inverse_cdf` starts from a guess that
+    /// fails there).
     pub fn quantile(&self, p: f64) -> f64 {
-        self.dist().map(|g| g.inverse_cdf(p)).unwrap_or(f64::NAN)
+        use statrs::function::gamma::{gamma_lr, gamma_ur};
+        let k = self.shape;
+        if !(k > 0.0 && self.scale_mw > 0.0 && p > 0.0 && p < 1.0) {
+            return f64::NAN;
+        }
+        // g(u) increases with u = ln(x / θ) and is 0 at the quantile.
+        let g = |u: f64| {
+            let x = u.exp();
+            if p <= 0.5 { gamma_lr(k, x) - p } else { (1.0 - p) - gamma_ur(k, x) }
+        };
+        let (mut lo, mut hi) = (f64::MIN_POSITIVE.ln(), (k + 40.0 * k.sqrt() + 60.0).ln());
+        if g(lo) >= 0.0 {
+            return 0.0;
+        }
+        for _ in 0..200 {
+            let mid = 0.5 * (lo + hi);
+            if g(mid) < 0.0 {
+                lo = mid
+            } else {
+                hi = mid
+            }
+            if hi - lo < 1e-14 * hi.abs().max(1.0) {
+                break;
+            }
+        }
+        (0.5 * (lo + hi)).exp() * self.scale_mw
     }
 }
 
@@ -168,6 +203,10 @@ pub struct Report {
     pub monte_carlo: Option<McFacts>,
     /// Notes on approximations in force.
     pub notes: Vec<String>,
+    /// Largest |F_gamma − F_exact| over the CDF table.
+    pub gamma_vs_exact: f64,
+    /// Warnings a planner must read (the gamma fit far from the exact law).
+    pub warnings: Vec<String>,
     /// The CDF table.
     #[serde(skip)]
     pub cdf: Vec<CdfRow>,
@@ -339,6 +378,17 @@ pub fn characterise(field: &Field, req: &Request) -> Report {
         let e = cdf.iter().map(|r| (r.mc.unwrap_or(0.0) - r.exact).abs()).fold(0.0, f64::max);
         Ks { gamma_vs_mc: g, exact_vs_mc: e, dkw_95: ((2.0f64 / 0.05).ln() / (2.0 * nn)).sqrt() }
     });
+    // How far the gamma fit is from the exact law: the largest CDF gap over the table and
+    // the gap of the 99th percentiles; past GAMMA_WARN_KS or GAMMA_WARN_P99_DB, say so.
+    let gamma_q = Quantiles::from_fn(|p| gamma.quantile(p));
+    let gamma_vs_exact = cdf.iter().map(|r| (r.gamma - r.exact).abs()).fold(0.0, f64::max);
+    let p99_gap_db = (gamma_q.p99 - exact_q.p99).abs();
+    let mut warnings = Vec::new();
+    if gamma_vs_exact > GAMMA_WARN_KS || p99_gap_db > GAMMA_WARN_P99_DB || p99_gap_db.is_nan() {
+        warnings.push(format!(
+            "the gamma fit is far from the exact law (largest CDF gap {gamma_vs_exact:.3}, p99 gap {p99_gap_db:.2} dB; limits {GAMMA_WARN_KS} and {GAMMA_WARN_P99_DB} dB): plan with the exact or Monte Carlo figures"
+        ));
+    }
     Report {
         effective_density_per_km2: field.effective_density() * 1e6,
         mean_interferers: lam_area,
@@ -349,7 +399,9 @@ pub fn characterise(field: &Field, req: &Request) -> Report {
         skewness: k[2] / k[1].powf(1.5),
         excess_kurtosis: k[3] / (k[1] * k[1]),
         gamma,
-        quantiles_dbm: QuantileSet { gamma: Quantiles::from_fn(|p| gamma.quantile(p)), exact: exact_q, mc: mc_q },
+        quantiles_dbm: QuantileSet { gamma: gamma_q, exact: exact_q, mc: mc_q },
+        gamma_vs_exact,
+        warnings,
         exceedance,
         ks,
         inversion: InversionFacts { method: "Abate-Whitt Euler (2006)", m: DEFAULT_M, error_estimate },
