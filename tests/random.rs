@@ -218,3 +218,34 @@ fn aggregate_bad_flags() {
     assert_eq!(o.status.code(), Some(2));
     assert!(stderr(&o).contains("--budget-dbm"));
 }
+
+/// Regression (a layout lobemap wrote was refused as a node file: `index`, `eirp_dbm`): a
+/// drawn layout reads back as the node file of the same scenario without its `[draw]` table,
+/// and mapping it gives the same layers byte for byte as the map of the drawn layout itself
+/// (common practice: a round trip through a file changes nothing); probe and links accept it.
+#[test]
+fn drawn_layout_reads_back_unchanged() {
+    let (d, p) = site(TOML);
+    let layout = d.path().join("layout-in.geojson");
+    let o = run(&["draw", &p, "--out", layout.to_str().unwrap(), "--quiet"]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    let first = d.path().join("first");
+    let o = run(&["map", &p, "--out", first.to_str().unwrap(), "--quiet", "--layers", "total,sinr"]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    let without_draw = TOML[..TOML.find("[draw]").unwrap()].replace("nodes.geojson", "layout-in.geojson");
+    std::fs::write(d.path().join("again.toml"), without_draw).unwrap();
+    let again_toml = d.path().join("again.toml");
+    let again = d.path().join("again");
+    let a = again_toml.to_str().unwrap();
+    let o = run(&["map", a, "--out", again.to_str().unwrap(), "--quiet", "--layers", "total,sinr"]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    for f in ["total.tif", "sinr.tif", "layout.geojson"] {
+        let (x, y) = (std::fs::read(first.join(f)).unwrap(), std::fs::read(again.join(f)).unwrap());
+        let at = x.iter().zip(&y).position(|(a, b)| a != b);
+        assert!(x == y, "{f} differs (lengths {} and {}, first difference at byte {at:?})", x.len(), y.len());
+    }
+    let o = run(&["probe", a, "--at", "48.0005,12.0005", "--json"]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    let o = run(&["links", a, "--out", d.path().join("links").to_str().unwrap(), "--quiet", "--no-maps"]);
+    assert!(o.status.success(), "{}", stderr(&o));
+}

@@ -12,7 +12,9 @@ use crate::error::{Problem, Problems};
 use crate::model::node::Node;
 use serde_json::Value;
 
-/// Property keys a node feature may carry.
+/// Property keys a node feature may carry. `index` and `eirp_dbm` are what lobemap writes
+/// into a resolved layout (`layout.geojson`, `draw`): `index` is informational, `eirp_dbm`
+/// is checked against power and gain, so a layout lobemap wrote reads back unchanged.
 pub const NODE_KEYS: &[&str] = &[
     "id",
     "azimuth_deg",
@@ -26,6 +28,8 @@ pub const NODE_KEYS: &[&str] = &[
     "peer",
     "name",
     "note",
+    "index",
+    "eirp_dbm",
 ];
 
 /// Parses a GeoJSON text of nodes. `file` names the file in messages; `defaults` are the
@@ -212,6 +216,8 @@ fn parse_feature(
         }
     };
     let az = num("azimuth_deg", Some(&Range::closed(-360.0, 360.0, "deg")));
+    let eirp = num("eirp_dbm", None);
+    let _index = num("index", Some(&Range::closed(0.0, 1e9, "")));
     let local = AntennaDefaults {
         pattern: None,
         beamwidth_deg: num("beamwidth_deg", Some(&Range::BEAMWIDTH)),
@@ -257,6 +263,17 @@ fn parse_feature(
         }
         (None, None) => 0.0,
     };
+    if let (Some(e), Some((p, power, ..))) = (eirp, &resolved) {
+        let want = power + p.max_gain_dbi();
+        if (e - want).abs() > 0.005 {
+            push(
+                "eirp_dbm",
+                format!(
+                    "value {e} disagrees with power_dbm + gain_dbi = {want} dBm; correct it or leave it out (it is derived)"
+                ),
+            );
+        }
+    }
     if probs.0.len() > before {
         return None;
     }
