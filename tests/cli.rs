@@ -368,3 +368,36 @@ fn never_transmitting_nodes_are_refused() {
     assert_eq!(o.status.code(), Some(2));
     assert!(stderr(&o).contains("none transmits"), "{}", stderr(&o));
 }
+
+/// Regression (hot spots smaller than one cell, some of zero area, inflated the count): on the
+/// demo every zone written has a positive area, zones below one cell are flagged `sub_cell`,
+/// and the summary counts only the others (the rule documented in the README).
+#[test]
+fn sub_cell_zones_are_flagged_not_counted() {
+    let d = tempfile::tempdir().unwrap();
+    let out = d.path().join("demo");
+    let o = run(&["map", "sites/harbourlight/scenario.toml", "--out", out.to_str().unwrap(), "--quiet"]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    let s: serde_json::Value =
+        serde_json::from_str(&std::fs::read_to_string(out.join("summary.json")).unwrap()).unwrap();
+    let gj: serde_json::Value =
+        serde_json::from_str(&std::fs::read_to_string(out.join("hotspots.geojson")).unwrap()).unwrap();
+    let cell = s["cell_m"].as_f64().unwrap().powi(2);
+    let (mut hot, mut low, mut sub) = (0, 0, 0);
+    for f in gj["features"].as_array().unwrap() {
+        let p = &f["properties"];
+        let area = p["area_m2"].as_f64().unwrap();
+        assert!(area > 0.0, "zero-area zone written");
+        let flagged = p["sub_cell"].as_bool().unwrap();
+        assert_eq!(flagged, area < cell * (1.0 - 1e-9), "sub_cell flag at area {area}"); // rounded to 0.01 m²
+        match (flagged, p["kind"].as_str().unwrap()) {
+            (true, _) => sub += 1,
+            (false, "interference") => hot += 1,
+            (false, _) => low += 1,
+        }
+    }
+    assert_eq!(s["hotspots"].as_u64().unwrap(), hot);
+    assert_eq!(s["outage_zones"].as_u64().unwrap(), low);
+    assert_eq!(s["sub_cell_zones"].as_u64().unwrap(), sub);
+    assert!(sub > 0, "the demo has sub-cell spots to flag");
+}

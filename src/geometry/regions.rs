@@ -26,11 +26,26 @@ impl Region {
     pub fn exterior_lon_lat(&self) -> Vec<(f64, f64)> {
         self.polygon.exterior().0.iter().map(|c| (c.x, c.y)).collect()
     }
+
+    /// Every ring (the exterior, then the holes) as (lon, lat) pairs, for drawing outlines.
+    pub fn rings_lon_lat(&self) -> Vec<Vec<(f64, f64)>> {
+        std::iter::once(self.polygon.exterior())
+            .chain(self.polygon.interiors())
+            .map(|r| r.0.iter().map(|c| (c.x, c.y)).collect())
+            .collect()
+    }
+
+    /// Whether the region is smaller than one grid cell (a contour around a single cell's
+    /// centre): below the grid's resolution, reported but not counted as a zone.
+    pub fn is_sub_cell(&self, grid: &Grid) -> bool {
+        self.area_m2 < grid.cell_m() * grid.cell_m()
+    }
 }
 
-/// Exterior rings of several regions.
+/// Every ring of several regions, holes included (a zone with holes is drawn as such, not
+/// as its outer frame).
 pub fn outlines(regions: &[Region]) -> Vec<Vec<(f64, f64)>> {
-    regions.iter().map(Region::exterior_lon_lat).collect()
+    regions.iter().flat_map(Region::rings_lon_lat).collect()
 }
 
 /// Regions where `data >= level` (or, with `below`, where `data < level`). Cells with
@@ -73,12 +88,11 @@ pub fn regions(grid: &Grid, data: &[f32], level: f32, below: bool) -> Vec<Region
         let ext = LineString::new(poly.exterior().0.iter().map(to_geo).collect());
         let ints = poly.interiors().iter().map(|r| LineString::new(r.0.iter().map(to_geo).collect())).collect();
         let g = Polygon::new(ext, ints).orient(Direction::Default);
-        out.push(Region {
-            area_m2: g.geodesic_area_unsigned(),
-            polygon: g,
-            peak_cell,
-            peak_value: data[peak_cell.0 * cols + peak_cell.1],
-        });
+        let area_m2 = g.geodesic_area_unsigned();
+        if area_m2 < 0.01 {
+            continue; // a degenerate contour (a line or a point; below the 0.01 m² written)
+        }
+        out.push(Region { area_m2, polygon: g, peak_cell, peak_value: data[peak_cell.0 * cols + peak_cell.1] });
     }
     out
 }
@@ -107,5 +121,24 @@ mod tests {
         assert_eq!(reg[0].peak_cell, (r, c));
         // Smaller than one 50 m cell (2500 m²) since the contour passes between centres.
         assert!(reg[0].area_m2 > 100.0 && reg[0].area_m2 < 2500.0, "{}", reg[0].area_m2);
+    }
+
+    /// Regression (outage outlines drew exterior rings only, so a zone with holes became a
+    /// frame): a ring of low cells around a high centre below the level is one region with one
+    /// hole, and its outlines are both rings (RFC 7946: holes are rings of the polygon).
+    #[test]
+    fn outlines_include_holes() {
+        let g = Grid::new(BBox { west: 10.0, south: 50.0, east: 10.01, north: 50.01 }, 50.0).unwrap();
+        let mut d = vec![1.0f32; g.cells()];
+        for r in 3..10 {
+            for c in 3..10 {
+                d[r * g.cols() + c] = if (5..8).contains(&r) && (5..8).contains(&c) { 1.0 } else { 0.0 };
+            }
+        }
+        let reg = regions(&g, &d, 0.5, true);
+        assert_eq!(reg.len(), 1);
+        assert_eq!(reg[0].polygon.interiors().len(), 1);
+        assert_eq!(outlines(&reg).len(), 2);
+        assert!(!reg[0].is_sub_cell(&g));
     }
 }

@@ -32,6 +32,7 @@ pub(crate) fn zones_geojson(
         p.insert("peak_lat".into(), lat.into());
         p.insert("area_m2".into(), round2(r.area_m2).into());
         p.insert("dominant".into(), h.dominant.clone().into());
+        p.insert("sub_cell".into(), r.is_sub_cell(grid).into());
         features.push(feature(r, p));
     }
     for r in outage {
@@ -43,6 +44,7 @@ pub(crate) fn zones_geojson(
         p.insert("worst_lon".into(), lon.into());
         p.insert("worst_lat".into(), lat.into());
         p.insert("area_m2".into(), round2(r.area_m2).into());
+        p.insert("sub_cell".into(), r.is_sub_cell(grid).into());
         features.push(feature(r, p));
     }
     geojson::FeatureCollection { bbox: None, features, foreign_members: None }

@@ -71,9 +71,13 @@ pub struct Summary {
     pub coverage_ok_fraction: Option<f64>,
     /// How `coverage` was computed.
     pub coverage_method: Option<String>,
-    /// Number of outage polygons (coverage below the target) in hotspots.geojson.
+    /// Number of outage polygons (coverage below the target) of one cell or more.
     pub outage_zones: Option<usize>,
-    /// Number of hot-spot polygons (null when the interference layer was not computed).
+    /// Hot spots and outage zones smaller than one cell (in hotspots.geojson with
+    /// `sub_cell = true`, not counted above).
+    pub sub_cell_zones: usize,
+    /// Number of hot-spot polygons of one cell or more (null when the interference layer was
+    /// not computed).
     pub hotspots: Option<usize>,
     /// Hot-spot level, dB over noise.
     pub hotspot_i_over_n_db: f64,

@@ -120,7 +120,7 @@ pub fn run_map(sc: &Scenario, opts: &MapOptions) -> Result<MapResult, Error> {
         files.extend(write_layer(&mut st, &cx, &layer("total", "Total received", "dBm", t, Vec::new()))?);
     }
     if let (Some(i), Some(h)) = (&layers.interference, &hot) {
-        let outlines = h.iter().map(|h| h.region.exterior_lon_lat()).collect();
+        let outlines = h.iter().flat_map(|h| h.region.rings_lon_lat()).collect();
         files.extend(write_layer(&mut st, &cx, &layer("interference", "Interference", "dBm", i, outlines))?);
     }
     if let (Some(cv), Some(z)) = (&layers.coverage, &low) {
@@ -133,8 +133,12 @@ pub fn run_map(sc: &Scenario, opts: &MapOptions) -> Result<MapResult, Error> {
         st.write("hotspots.geojson", fc.to_string().as_bytes())?;
         files.push("hotspots.geojson".into());
     }
-    let hotspots = hot.as_ref().map(Vec::len);
-    let outage = low.as_ref().map(Vec::len);
+    // Zones smaller than one cell are below the grid's resolution: written (flagged
+    // `sub_cell`) but not counted.
+    let hotspots = hot.as_ref().map(|h| h.iter().filter(|h| !h.region.is_sub_cell(grid)).count());
+    let outage = low.as_ref().map(|z| z.iter().filter(|r| !r.is_sub_cell(grid)).count());
+    let sub_cell_zones = hot.as_ref().map_or(0, |h| h.iter().filter(|h| h.region.is_sub_cell(grid)).count())
+        + low.as_ref().map_or(0, |z| z.iter().filter(|r| r.is_sub_cell(grid)).count());
     if let Some(s) = &layers.sinr {
         files.extend(write_layer(&mut st, &cx, &layer("sinr", "Mean SINR", "dB", s, Vec::new()))?);
     }
@@ -202,6 +206,7 @@ pub fn run_map(sc: &Scenario, opts: &MapOptions) -> Result<MapResult, Error> {
                 .to_string()
         }),
         outage_zones: outage,
+        sub_cell_zones,
         realizations: sc.draw.as_ref().map(|_| opts.realizations.max(1)),
         drawn_nodes: sc.draw.as_ref().map(|_| sc.nodes.iter().filter(|n| n.id.starts_with("draw-")).count()),
     };
