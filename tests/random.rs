@@ -249,3 +249,25 @@ fn drawn_layout_reads_back_unchanged() {
     let o = run(&["links", a, "--out", d.path().join("links").to_str().unwrap(), "--quiet", "--no-maps"]);
     assert!(o.status.success(), "{}", stderr(&o));
 }
+
+/// Regression (`aggregate --scenario` took the first node's antenna, a 2.5° dish, instead of
+/// the `[antenna]` defaults that drawn nodes get): on the demo scenario the interferers are
+/// its lamp-post sectors (60°, 15/−5 dBi, 16 dBm), and the resolved inputs are echoed in the
+/// JSON (`inputs`) and the text output.
+#[test]
+fn aggregate_scenario_takes_the_antenna_defaults_and_echoes_them() {
+    let o = run(&["aggregate", "--scenario", "sites/harbourlight/scenario.toml", "--density-per-km2", "100", "--json"]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    let v: serde_json::Value = serde_json::from_slice(&o.stdout).unwrap();
+    let i = &v["inputs"];
+    assert_eq!(i["tx_pattern"], "sector");
+    assert_eq!(i["tx"], serde_json::json!([60.0, 15.0, -5.0]));
+    assert_eq!(i["power_dbm"], 16.0);
+    assert_eq!(i["rx"], serde_json::json!([30.0, 20.0, -5.0]), "the scenario's aimed receiver");
+    let o = run(&["aggregate", "--scenario", "sites/harbourlight/scenario.toml", "--density-per-km2", "100"]);
+    let text = String::from_utf8_lossy(&o.stdout);
+    assert!(
+        text.starts_with("inputs: 100 per km²") && text.contains("interferers sector 60° 15/-5 dBi at 16 dBm"),
+        "{text}"
+    );
+}

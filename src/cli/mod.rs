@@ -132,6 +132,10 @@ struct AggArgs {
     /// Interferer transmit power, dBm [default: scenario, else 20].
     #[arg(long)]
     power_dbm: Option<f64>,
+    /// Interferer pattern: sector, parabolic or omni [default: the scenario's [antenna], else
+    /// sector when --beamwidth-deg is below 360, omni otherwise].
+    #[arg(long)]
+    pattern: Option<String>,
     /// Interferer main-lobe width, degrees [default: scenario, else 360].
     #[arg(long)]
     beamwidth_deg: Option<f64>,
@@ -260,6 +264,7 @@ impl AggArgs {
             k_db: self.k_db,
             m: self.m,
             density_swept: self.sweep.as_deref().is_some_and(|s| s.starts_with("density_per_km2=")),
+            pattern: self.pattern.clone(),
         }
     }
 
@@ -446,6 +451,7 @@ fn print_aggregate(res: &AggregateResult, json: bool, quiet: bool, out: &Path) {
     if json {
         println!("{}", serde_json::to_string_pretty(&res.json()).unwrap_or_default());
     } else if !quiet {
+        println!("{}", lobemap::io::tables::inputs_line(&res.spec));
         for (l, r) in &res.reports {
             print!("{}", lobemap::io::tables::table(l, r));
         }

@@ -7,8 +7,10 @@ use crate::random::field::Field;
 
 /// Raw field parameters as given on the command line or taken from a scenario; [`Self::build`]
 /// validates them.
-#[derive(Debug, Clone, PartialEq)]
+#[derive(Debug, Clone, PartialEq, serde::Serialize)]
 pub struct FieldSpec {
+    /// Interferer pattern: `sector`, `parabolic` or `omni` (its lobes in `tx`).
+    pub tx_pattern: String,
     /// Parent density, per km².
     pub density_per_km2: f64,
     /// Independent retention probability.
@@ -119,8 +121,24 @@ impl FieldSpec {
                 "with exponent ≤ 2 the aggregate grows without bound with the radius; keep --radius-m at most 100 km",
             ));
         }
+        // The interferers' antenna enters through its gain law under uniform orientation.
+        let tx_law = match self.tx_pattern.as_str() {
+            "sector" | "omni" => Some(GainLaw::two_level(self.tx.0 / 360.0, self.tx.1, self.tx.2)),
+            "parabolic" => crate::model::antenna::Pattern::parabolic(self.tx.0, self.tx.1, self.tx.2)
+                .map(|p| p.orientation_law())
+                .ok(),
+            other => {
+                p.push(Problem::flag(
+                    "--pattern",
+                    format!("value `{other}` is not one of `sector`, `parabolic`, `omni`"),
+                ));
+                None
+            }
+        };
         p.into_result()?;
-        let (Some(fading), Some(pathloss)) = (fading, pl) else { unreachable!("problems were recorded") };
+        let (Some(fading), Some(pathloss), Some(tx_law)) = (fading, pl, tx_law) else {
+            unreachable!("problems were recorded")
+        };
         Ok(Field {
             density_per_m2: self.density_per_km2 / 1e6,
             keep: self.keep,
@@ -128,7 +146,7 @@ impl FieldSpec {
             guard_m: self.guard_m,
             radius_m: self.radius_m,
             power_mw: dbm_to_mw(self.power_dbm),
-            tx: GainLaw::two_level(self.tx.0 / 360.0, self.tx.1, self.tx.2),
+            tx: tx_law,
             rx: GainLaw::two_level(self.rx.0 / 360.0, self.rx.1, self.rx.2),
             fading,
             pathloss,
@@ -228,6 +246,8 @@ pub struct FieldOverrides {
     pub m: f64,
     /// Whether a density sweep will set the density (so none is needed here).
     pub density_swept: bool,
+    /// Interferer pattern name (`sector`, `parabolic`, `omni`).
+    pub pattern: Option<String>,
 }
 
 impl FieldSpec {
@@ -240,12 +260,12 @@ impl FieldSpec {
     ) -> Result<FieldSpec, crate::Error> {
         use crate::model::antenna::Pattern;
         use crate::model::fading::FadingKind;
-        let node0 = sc.and_then(|s| s.nodes.first());
-        // A pattern enters as the sector of its beamwidth, gain and side lobe (or floor).
+        // The interferers take the scenario's [antenna] defaults, as drawn nodes do.
         let lobes = |p: &Pattern| (Some(p.beamwidth_deg()), Some(p.max_gain_dbi()), Some(p.floor_dbi()));
-        let ((sc_bw, sc_g, sc_s), sc_p) = match node0 {
-            Some(n) => (lobes(&n.pattern), Some(n.power_dbm)),
-            None => ((None, None, None), None),
+        let defaults = sc.and_then(|s| s.default_antenna.as_ref());
+        let ((sc_bw, sc_g, sc_s), sc_p, sc_kind) = match defaults {
+            Some(d) => (lobes(&d.0), Some(d.1), Some(d.0.kind())),
+            None => ((None, None, None), None, None),
         };
         let (rx_bw, rx_g, rx_s) = match sc {
             Some(s) => lobes(&s.receiver.pattern()),
@@ -277,7 +297,14 @@ impl FieldSpec {
             (None, Some(FadingKind::Nakagami { m })) => ("nakagami".into(), a.k_db, m),
             (None, Some(FadingKind::Rician { k })) => ("rician".into(), 10.0 * k.log10(), a.m),
         };
+        let tx_pattern = match (a.pattern.as_deref(), sc_kind) {
+            (Some(p), _) => p.to_string(),
+            (None, Some(k)) => k.to_string(),
+            (None, None) if a.beamwidth_deg.is_some_and(|b| b < 360.0) => "sector".into(),
+            (None, None) => "omni".into(),
+        };
         Ok(FieldSpec {
+            tx_pattern,
             density_per_km2: density,
             keep: a.keep.or(draw.as_ref().map(|d| d.keep)).unwrap_or(1.0),
             hard_core_m: a.hard_core_m.or(draw.as_ref().map(|d| d.hard_core_m)).unwrap_or(0.0),

@@ -252,6 +252,8 @@ impl Scenario {
             frame: LocalFrame::new(clat, clon),
             thresholds: thr,
             draw,
+            // Incomplete defaults are fine when every node completes them.
+            default_antenna: raw.antenna.resolve(&mut |_, _| {}),
             fading: FadingSpec {
                 signal: sig.unwrap_or(crate::model::fading::Fading::NONE),
                 interferer: intf.unwrap_or(crate::model::fading::Fading::NONE),

@@ -1,6 +1,38 @@
 //! Text tables and CSV: the aggregate report.
 
+use crate::config::field::FieldSpec;
 use crate::random::characterise::Report;
+
+/// One line echoing the resolved inputs of an `aggregate` run.
+pub fn inputs_line(s: &FieldSpec) -> String {
+    format!(
+        "inputs: {} per km² (keep {}, hard core {} m) on {}–{} m; interferers {} {}° {}/{} dBi at {} dBm; receiver {}° {}/{} dBi; {} n = {} at {} GHz, absorption {} dB/km, clamp {} m; fading {}{}",
+        s.density_per_km2,
+        s.keep,
+        s.hard_core_m,
+        s.guard_m,
+        s.radius_m,
+        s.tx_pattern,
+        s.tx.0,
+        s.tx.1,
+        s.tx.2,
+        s.power_dbm,
+        s.rx.0,
+        s.rx.1,
+        s.rx.2,
+        s.model,
+        s.exponent,
+        s.frequency_ghz,
+        s.absorption_db_per_km,
+        s.min_distance_m,
+        s.fading,
+        match s.fading.as_str() {
+            "rician" => format!(" K = {} dB", s.k_db),
+            "nakagami" => format!(" m = {}", s.m),
+            _ => String::new(),
+        }
+    )
+}
 
 /// CSV of the CDF tables (one block per curve set).
 pub fn cdf_csv(sets: &[(String, &Report)]) -> String {

@@ -125,6 +125,9 @@ pub struct Scenario {
     pub(crate) thresholds: Thresholds,
     /// Random layout drawn around (or instead of) the fixed nodes.
     pub(crate) draw: Option<DrawSpec>,
+    /// The `[antenna]` defaults resolved (pattern, power, height, activity), when complete:
+    /// the antenna drawn nodes and random-field interferers take.
+    pub(crate) default_antenna: Option<(Pattern, f64, f64, f64)>,
     /// Fading and shadowing.
     pub(crate) fading: FadingSpec,
     /// Link-table settings.
@@ -221,6 +224,7 @@ impl Scenario {
             frame: LocalFrame::new(lat, lon),
             thresholds,
             draw: None,
+            default_antenna: None,
             fading: FadingSpec::default(),
             links: LinkSettings { capacity_gap_db: 3.0, max_spectral_efficiency: 8.0 },
             install: InstallSettings { declination_date: (2026, 1) },

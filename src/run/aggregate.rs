@@ -32,6 +32,8 @@ pub struct AggregateOptions {
 
 /// What an `aggregate` run produced.
 pub struct AggregateResult {
+    /// The resolved inputs (before any sweep), echoed in the outputs.
+    pub spec: FieldSpec,
     /// One report per curve set, with its label (empty without a sweep).
     pub reports: Vec<(String, Report)>,
     /// Planning answers.
@@ -41,13 +43,18 @@ pub struct AggregateResult {
 }
 
 impl AggregateResult {
-    /// The JSON document printed by `--json`: the single report, or every set and plan.
+    /// The JSON document printed by `--json`: the single report, or every set and plan, with
+    /// the resolved inputs under `inputs`.
     pub fn json(&self) -> serde_json::Value {
-        if self.reports.len() == 1 && self.plans.is_empty() {
+        let mut v = if self.reports.len() == 1 && self.plans.is_empty() {
             serde_json::to_value(&self.reports[0].1).unwrap_or_default()
         } else {
             aggregate_json(&self.reports, &self.plans)
+        };
+        if let serde_json::Value::Object(m) = &mut v {
+            m.insert("inputs".into(), serde_json::to_value(&self.spec).unwrap_or_default());
         }
+        v
     }
 }
 
@@ -110,10 +117,10 @@ pub fn run_aggregate(spec: &FieldSpec, o: &AggregateOptions) -> Result<Aggregate
         }
     }
     let files = match stage {
-        Some(st) => write_aggregate(st, &reports, &plans)?,
+        Some(st) => write_aggregate(st, spec, &reports, &plans)?,
         None => Vec::new(),
     };
-    Ok(AggregateResult { reports, plans, files })
+    Ok(AggregateResult { spec: spec.clone(), reports, plans, files })
 }
 
 /// The JSON document of an `aggregate` run: every curve set with its label, and the planning
@@ -129,6 +136,7 @@ pub fn aggregate_json(reports: &[(String, Report)], plans: &[PlanAnswer]) -> ser
 /// `st` (opened before the computation, so an unwritable folder fails early) and commits.
 pub fn write_aggregate(
     mut st: Staging,
+    spec: &FieldSpec,
     reports: &[(String, Report)],
     plans: &[PlanAnswer],
 ) -> Result<Vec<PathBuf>, Error> {
@@ -145,7 +153,11 @@ pub fn write_aggregate(
     let svg = crate::io::cdfplot::svg(&curves, title).map_err(io("cdf.svg"))?;
     st.write("cdf.png", &png)?;
     st.write("cdf.svg", svg.as_bytes())?;
-    let json = serde_json::to_string_pretty(&aggregate_json(reports, plans))
+    let mut doc = aggregate_json(reports, plans);
+    if let serde_json::Value::Object(m) = &mut doc {
+        m.insert("inputs".into(), serde_json::to_value(spec).unwrap_or_default());
+    }
+    let json = serde_json::to_string_pretty(&doc)
         .map_err(|e| Error::Output { path: st.dir().join("aggregate.json"), source: e.into() })?;
     st.write("aggregate.json", json.as_bytes())?;
     st.commit()
