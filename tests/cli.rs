@@ -401,3 +401,38 @@ fn sub_cell_zones_are_flagged_not_counted() {
     assert_eq!(s["sub_cell_zones"].as_u64().unwrap(), sub);
     assert!(sub > 0, "the demo has sub-cell spots to flag");
 }
+
+/// Regression (swapped or outlying coordinates passed silently): a node with longitude and
+/// latitude swapped is refused by every command that loads the layout, naming the node and
+/// the swap; a probe point outside the mapped area is refused naming `--at`; a node far from
+/// all others but within reach is accepted by `check` with a warning naming it.
+#[test]
+fn swapped_and_outlying_coordinates_are_caught() {
+    let swapped = GOOD_NODES.replace("[8.010,50.000]", "[50.000,8.010]");
+    let (d, p) = site(GOOD_TOML, &swapped);
+    for cmd in ["check", "map", "links"] {
+        let out = d.path().join(format!("out-{cmd}"));
+        let mut args = vec![cmd, p.to_str().unwrap()];
+        if cmd != "check" {
+            args.extend(["--out", out.to_str().unwrap(), "--quiet"]);
+        }
+        let o = run(&args);
+        assert_eq!(o.status.code(), Some(2), "{cmd}: {}", stderr(&o));
+        let e = stderr(&o);
+        assert!(e.contains("feature 1 (id B)") && e.contains("swapped"), "{cmd}: {e}");
+        assert!(!out.exists());
+    }
+    let (_d, p) = site(GOOD_TOML, GOOD_NODES);
+    let o = run(&["probe", p.to_str().unwrap(), "--at", "8.005,50.002"]);
+    assert_eq!(o.status.code(), Some(2));
+    assert!(stderr(&o).contains("--at") && stderr(&o).contains("outside the mapped area"), "{}", stderr(&o));
+    let far = GOOD_NODES.replace(
+        "\n]}",
+        r#",{"type":"Feature","geometry":{"type":"Point","coordinates":[8.110,50.000]},"properties":{"id":"D","azimuth_deg":90}}
+]}"#,
+    );
+    let (_d, p) = site(GOOD_TOML, &far);
+    let o = run(&["check", p.to_str().unwrap()]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    assert!(stderr(&o).contains("warning: node `D`"), "{}", stderr(&o));
+}

@@ -330,6 +330,14 @@ pub fn run(cli: Cli) -> anyhow::Result<ExitCode> {
         Cmd::Check { scenario, max_memory_mib } => match Scenario::load(&scenario) {
             Ok(sc) => {
                 lobemap::run::map::check_memory(&sc, LayerSet::ALL.count(), max_memory_mib)?;
+                for w in lobemap::jobs::spacing::isolated_nodes(&sc) {
+                    eprintln!(
+                        "warning: node `{}` is {:.1} km from its nearest neighbour while the median spacing is {:.0} m: check its coordinates (GeoJSON is [lon, lat])",
+                        w.id,
+                        w.nearest_m / 1000.0,
+                        w.median_m
+                    );
+                }
                 println!(
                     "{}: ok: {} nodes, grid {} x {} cells of {} m, noise {:.2} dBm",
                     scenario.display(),
@@ -347,6 +355,16 @@ pub fn run(cli: Cli) -> anyhow::Result<ExitCode> {
             let (lat, lon) = parse_lat_lon(&at)?;
             check_trials(monte_carlo)?;
             let sc = Scenario::load(&scenario)?;
+            if sc.grid().cell_of(lon, lat).is_none() {
+                let b = sc.grid().bbox();
+                return Err(bad_flag(
+                    "--at",
+                    format!(
+                        "point {lat}, {lon} (LAT,LON) lies outside the mapped area, latitude [{:.6}, {:.6}] and longitude [{:.6}, {:.6}]; probe a point inside it (were latitude and longitude swapped?)",
+                        b.south, b.north, b.west, b.east
+                    ),
+                ));
+            }
             let p = lobemap::jobs::probe::probe_with(&sc, lat, lon, monte_carlo.map(|n| (n, seed)));
             if json {
                 println!("{}", serde_json::to_string_pretty(&p)?);

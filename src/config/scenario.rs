@@ -15,6 +15,49 @@ use crate::model::pathloss::{LawParams, PathLoss};
 use crate::model::scenario::{InstallSettings, LinkSettings, Radio, Receiver, ReceiverAntenna, Scenario, Thresholds};
 use std::path::Path;
 
+/// How far from the layout's centre lobemap computes, km: the tangent plane's distances
+/// stay within 31 ppm of Karney geodesics out to 50 km (1 − cos(d/R)) and its bearings,
+/// corrected by the meridian convergence, within 0.01° (tested in `geometry::frame`).
+pub const MAX_EXTENT_KM: f64 = 50.0;
+
+/// Nodes farther than [`MAX_EXTENT_KM`] from the layout's median position are refused,
+/// naming the node and, when swapping its numbers would bring it in, saying so.
+fn check_extent(nodes: &[crate::model::node::Node], file: &str, probs: &mut Problems) {
+    let median = |mut v: Vec<f64>| {
+        v.sort_by(f64::total_cmp);
+        v[v.len() / 2]
+    };
+    let lon0 = median(nodes.iter().map(|n| n.lon).collect());
+    let lat0 = median(nodes.iter().map(|n| n.lat).collect());
+    let frame = LocalFrame::new(lat0, lon0);
+    // The plane's distance is only a guide this far out; past a quarter turn use the sphere.
+    let km = |lon: f64, lat: f64| {
+        let (e, n) = frame.to_local(lon, lat);
+        let (dlat, dlon) = ((lat - lat0).to_radians(), (lon - lon0).to_radians());
+        let a =
+            (dlat / 2.0).sin().powi(2) + lat.to_radians().cos() * lat0.to_radians().cos() * (dlon / 2.0).sin().powi(2);
+        let sphere = 2.0 * 6371.0 * a.sqrt().asin();
+        if sphere > 1000.0 { sphere } else { e.hypot(n) / 1000.0 }
+    };
+    for (i, n) in nodes.iter().enumerate() {
+        let d = km(n.lon, n.lat);
+        if d > MAX_EXTENT_KM {
+            let swapped = (-85.0..=85.0).contains(&n.lon) && km(n.lat, n.lon) <= MAX_EXTENT_KM;
+            probs.push(Problem::new(
+                file,
+                Some(format!("feature {i} (id {})", n.id)),
+                "geometry",
+                format!(
+                    "[{}, {}] lies {d:.1} km from the layout's median position [{lon0}, {lat0}]; lobemap computes within {MAX_EXTENT_KM} km of it{}",
+                    n.lon,
+                    n.lat,
+                    if swapped { " (with longitude and latitude swapped it would lie inside: GeoJSON is [lon, lat])" } else { "" }
+                ),
+            ));
+        }
+    }
+}
+
 fn toml_problem(file: &str, e: &toml::de::Error) -> Problem {
     let msg = e.message().to_string();
     let field = msg
@@ -190,6 +233,9 @@ impl Scenario {
                 None
             }
         };
+        if let Some(nodes) = &nodes {
+            check_extent(nodes, &nodes_path.display().to_string(), &mut probs);
+        }
         let bbox = match (raw.grid.bbox, raw.grid.margin_m, &nodes) {
             (Some(_), Some(_), _) => {
                 probs.push(Problem::new(
@@ -240,6 +286,19 @@ impl Scenario {
         let grid = Grid::new(bbox, raw.grid.cell_m)
             .map_err(|m| Error::input(Problem::new(&file, Some("[grid]".into()), "cell_m", m)))?;
         let (clon, clat) = grid.bbox().centre();
+        let (corner_e, corner_n) = LocalFrame::new(clat, clon).to_local(grid.bbox().east, grid.bbox().north);
+        let half_diagonal_km = corner_e.hypot(corner_n) / 1000.0;
+        if half_diagonal_km > MAX_EXTENT_KM {
+            let field = if raw.grid.bbox.is_some() { "bbox" } else { "margin_m" };
+            return Err(Error::input(Problem::new(
+                &file,
+                Some("[grid]".into()),
+                field,
+                format!(
+                    "the grid reaches {half_diagonal_km:.1} km from its centre; the local plane lobemap computes in holds to {MAX_EXTENT_KM} km: map a smaller area"
+                ),
+            )));
+        }
         Ok(Scenario {
             name: raw.name,
             path: path.to_path_buf(),

@@ -4,4 +4,5 @@ pub mod install;
 pub mod links;
 
 pub mod probe;
+pub mod spacing;
 pub(crate) mod zones;
