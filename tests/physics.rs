@@ -236,3 +236,49 @@ fn long_links_far_from_the_centre_are_aimed_from_true_north() {
     let t = layers.total.unwrap()[r * g.cols() + c] as f64;
     assert!((t - cell.total_dbm).abs() < tol::ENGINE_F32_DB, "engine {t} vs probe {}", cell.total_dbm);
 }
+
+/// Regression (mean layers ignored shadowing although called means): with 6 dB log-normal
+/// shadowing the probe's interference must be the mean of a seeded Monte Carlo of
+/// Σ p_i 10^(σZ_i/10) (200 000 draws, within 4 standard errors), i.e. 10 log10 E[10^(X/10)]
+/// = 4.1444 dB above the unshadowed sum (normal moment generating function; hand value), and
+/// the engine's interference layer must agree with the probe (float32 tolerance).
+#[test]
+fn mean_layers_include_shadowing() {
+    use lobemap::model::fading::{Fading, FadingSpec};
+    use rand_distr::StandardNormal;
+    let frame = lobemap::geometry::frame::LocalFrame::new(50.0, 8.0);
+    let omni = Pattern::omni(0.0);
+    let nodes: Vec<Node> = [(-300.0, 0.0), (200.0, 150.0), (50.0, -400.0)]
+        .iter()
+        .enumerate()
+        .map(|(k, &(e, n))| {
+            let (lon, lat) = frame.to_geo(e, n);
+            node(&format!("n{k}"), lon, lat, 0.0, omni, 20.0, 5.0)
+        })
+        .collect();
+    let pl = PathLoss::new(FreeSpace, 28.0, 0.0, 1.0).unwrap();
+    let plain = scenario(nodes, pl, fixtures::square(&frame, 500.0), 20.0, 1.5);
+    let shadowed =
+        plain.clone().with_fading(FadingSpec { signal: Fading::NONE, interferer: Fading::NONE, shadowing_db: 6.0 });
+    let g = shadowed.grid();
+    let (lat, lon) = (g.lat_of_row(g.rows() / 2), g.lon_of_col(g.cols() / 2));
+    let (p0, p6) = (probe(&plain, lat, lon), probe(&shadowed, lat, lon));
+    let (i0, i6) = (p0.interference_dbm.unwrap(), p6.interference_dbm.unwrap());
+    assert!((i6 - i0 - 4.1444).abs() < 1e-3, "shift {}", i6 - i0);
+    let powers: Vec<f64> =
+        p0.contributions.iter().filter(|c| c.id != p0.server).map(|c| 10f64.powf(c.power_dbm / 10.0)).collect();
+    let mut rng = rand_pcg::Pcg64::seed_from_u64(61);
+    let s = 6.0 * std::f64::consts::LN_10 / 10.0;
+    let n = 200_000;
+    let draws: Vec<f64> = (0..n)
+        .map(|_| powers.iter().map(|p| p * (s * rng.sample::<f64, _>(StandardNormal)).exp()).sum::<f64>())
+        .collect();
+    let mean = draws.iter().sum::<f64>() / n as f64;
+    let sd = (draws.iter().map(|x| (x - mean).powi(2)).sum::<f64>() / (n - 1) as f64).sqrt();
+    let reported = 10f64.powf(i6 / 10.0);
+    assert!((mean - reported).abs() < tol::SIGMAS * sd / (n as f64).sqrt(), "MC {mean:e} vs {reported:e}");
+    let layers = Engine::new(&shadowed).run(&Options { layers: LayerSet::ALL, cutoff_m: None, progress: false });
+    let (r, c) = g.cell_of(lon, lat).unwrap();
+    let cell = layers.interference.unwrap()[r * g.cols() + c] as f64;
+    assert!((cell - i6).abs() < tol::ENGINE_F32_DB, "engine {cell} vs probe {i6}");
+}

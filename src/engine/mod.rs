@@ -15,6 +15,8 @@
 //! - best server s = argmax p_i; S = G_rx,main · p_s.
 //! - `interference` = Σ_{i≠s} a_i p_i G_rx(i), with G_rx omni or aimed at s, dBm.
 //! - `sinr` = S / (I + N), dB; `server` = s (index in layout order).
+//! - With log-normal shadowing of σ dB every mean power is E\[10^(X/10)\] = exp((σ ln10/10)²/2)
+//!   times the unshadowed one; the best server (an argmax) does not change.
 
 use crate::engine::kernels::{CoChannel, Cube, Decay, Fast, NodeK, Quart, RowBufs, Sq, Unobstructed};
 use crate::engine::row::{RowJob, row};
@@ -128,6 +130,9 @@ pub struct Engine<'s> {
     pub(crate) g_omni: f32,
     pub(crate) rx_aim: Option<(f32, f32, f32)>,
     pub(crate) g_signal: f32,
+    /// Mean of the log-normal shadowing gain, E[10^(X/10)] (1 without shadowing): the mean
+    /// layers are means of the shadowed powers.
+    pub(crate) shadow_mean: f32,
     pub(crate) cov: crate::model::coverage::CoverageModel,
 }
 

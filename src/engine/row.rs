@@ -178,14 +178,18 @@ pub(crate) fn row_body<D: Decay, A: PairFactor, C: RxCoupling>(
         let all = if full { b.other[c] + b.bestw[c] } else { b.other[c] };
         let interf = if aimed_needed { b.iacc[c] } else { e.g_omni * b.other[c] };
         if let Some(t) = t.as_deref_mut() {
-            t[c] = db(e.g_omni * all);
+            t[c] = db(e.shadow_mean * (e.g_omni * all));
         }
         if let Some(i) = i.as_deref_mut() {
-            i[c] = db(interf);
+            i[c] = db(e.shadow_mean * interf);
         }
         let best = b.best[c];
         if let Some(s) = s.as_deref_mut() {
-            s[c] = if best > 0.0 { db(e.g_signal * best / (interf + noise)) } else { NODATA };
+            s[c] = if best > 0.0 {
+                db(e.g_signal * best * e.shadow_mean / (interf * e.shadow_mean + noise))
+            } else {
+                NODATA
+            };
         }
         if let Some(v) = v.as_deref_mut() {
             v[c] = if b.server[c] == u32::MAX { NODATA } else { b.server[c] as f32 };

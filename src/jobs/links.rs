@@ -155,7 +155,11 @@ fn one(
     let i_mw: f64 = contrib.iter().map(|c| c.1 * c.2).sum();
     let s_mw = dbm_to_mw(signal_dbm);
     let n_mw = dbm_to_mw(noise_dbm);
-    let sinr = s_mw / (i_mw + n_mw);
+    // Reported levels are means of the shadowed powers (E[10^(X/10)] times the unshadowed
+    // ones); the coverage model takes the unshadowed ones and draws the shadowing itself.
+    let shadow = crate::model::fading::lognormal_mean(sc.fading.shadowing_db);
+    let shadow_db = crate::model::units::lin_to_db(shadow);
+    let sinr = s_mw * shadow / (i_mw * shadow + n_mw);
     let sinr_db = mw_to_dbm(sinr);
     let interferers: Vec<(f64, f64)> = contrib.iter().map(|c| (c.1, c.2)).collect();
     let coverage = cov.probability(s_mw, &interferers);
@@ -166,7 +170,7 @@ fn one(
         .filter(|c| c.1 * c.2 > 0.0)
         .map(|c| Share {
             id: sc.nodes[c.0].id.clone(),
-            power_dbm: round(mw_to_dbm(c.1 * c.2), 2),
+            power_dbm: round(mw_to_dbm(c.1 * c.2) + shadow_db, 2),
             share: round(c.1 * c.2 / i_mw, 4),
         })
         .collect();
@@ -191,8 +195,8 @@ fn one(
         tx_gain_dbi: round(tx_gain, 2),
         rx_gain_dbi: round(rx_gain, 2),
         path_loss_db: round(pl, 2),
-        signal_dbm: round(signal_dbm, 2),
-        interference_dbm: (i_mw > 0.0).then(|| round(mw_to_dbm(i_mw), 2)),
+        signal_dbm: round(signal_dbm + shadow_db, 2),
+        interference_dbm: (i_mw > 0.0).then(|| round(mw_to_dbm(i_mw) + shadow_db, 2)),
         noise_dbm: round(noise_dbm, 2),
         sinr_db: round(sinr_db, 2),
         coverage: round(coverage, 4),

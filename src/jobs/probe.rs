@@ -24,7 +24,7 @@ pub struct Contribution {
     pub rx_gain_dbi: f64,
     /// Path loss, dB.
     pub path_loss_db: f64,
-    /// Mean received power while transmitting, dBm.
+    /// Mean received power while transmitting (with the mean shadowing gain), dBm.
     pub power_dbm: f64,
     /// Fraction of time the node transmits.
     pub activity: f64,
@@ -129,7 +129,10 @@ pub fn probe_with(sc: &Scenario, lat: f64, lon: f64, mc: Option<(usize, u64)>) -
         contributions.iter().filter(|c| c.index != server).map(|c| c.activity * dbm_to_mw(c.power_dbm)).sum();
     let signal_mw = dbm_to_mw(contributions[server].power_dbm);
     let noise_dbm = sc.noise_dbm();
-    let sinr_db = mw_to_dbm(signal_mw / (interference_mw + dbm_to_mw(noise_dbm)));
+    // Means of the shadowed powers: every mean is E[10^(X/10)] times the unshadowed one (the
+    // coverage model takes the unshadowed ones and draws the shadowing itself).
+    let shadow = crate::model::fading::lognormal_mean(sc.fading.shadowing_db);
+    let sinr_db = mw_to_dbm(signal_mw * shadow / (interference_mw * shadow + dbm_to_mw(noise_dbm)));
     let cov = crate::model::coverage::CoverageModel::new(sc.fading, sc.thresholds.sinr_db, noise_dbm);
     let interferers: Vec<(f64, f64)> =
         contributions.iter().filter(|c| c.index != server).map(|c| (c.activity, dbm_to_mw(c.power_dbm))).collect();
@@ -138,6 +141,8 @@ pub fn probe_with(sc: &Scenario, lat: f64, lon: f64, mc: Option<(usize, u64)>) -
         let (estimate, low, high) = cov.monte_carlo(signal_mw, &interferers, trials, seed);
         McCheck { trials, seed, estimate, low, high }
     });
+    let shadow_db = crate::model::units::lin_to_db(shadow);
+    contributions.iter_mut().for_each(|c| c.power_dbm += shadow_db);
     contributions.sort_by(|a, b| b.power_dbm.total_cmp(&a.power_dbm).then(a.index.cmp(&b.index)));
     Probe {
         coverage,
@@ -146,8 +151,8 @@ pub fn probe_with(sc: &Scenario, lat: f64, lon: f64, mc: Option<(usize, u64)>) -
         monte_carlo,
         lat,
         lon,
-        total_dbm: mw_to_dbm(total_mw),
-        interference_dbm: (interference_mw > 0.0).then(|| mw_to_dbm(interference_mw)),
+        total_dbm: mw_to_dbm(total_mw * shadow),
+        interference_dbm: (interference_mw > 0.0).then(|| mw_to_dbm(interference_mw * shadow)),
         noise_dbm,
         sinr_db,
         server: sc.nodes[server].id.clone(),
