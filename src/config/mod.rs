@@ -3,6 +3,7 @@
 pub(crate) mod antenna;
 pub(crate) mod draw;
 pub mod field;
+pub(crate) mod keys;
 pub(crate) mod nodes;
 pub(crate) mod range;
 pub(crate) mod raw;

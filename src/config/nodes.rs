@@ -59,15 +59,28 @@ pub fn parse_nodes(text: &str, file: &str, defaults: &AntennaDefaults) -> Result
             "the FeatureCollection has no features; at least one node is needed",
         )]);
     }
+    // Parsed nodes keep their feature index, so messages name the feature as written even
+    // when earlier features were rejected.
     let mut nodes = Vec::with_capacity(fc.features.len());
+    let mut feature_of = Vec::with_capacity(fc.features.len());
     for (i, f) in fc.features.iter().enumerate() {
         if let Some(n) = parse_feature(i, f, file, defaults, &mut probs) {
             nodes.push(n);
+            feature_of.push(i);
         }
     }
+    // Ids of the features that were rejected: a peer naming one exists, it is just not valid.
+    let rejected: std::collections::HashSet<String> = fc
+        .features
+        .iter()
+        .enumerate()
+        .filter(|(i, _)| !feature_of.contains(i))
+        .filter_map(|(_, f)| feature_id(f))
+        .collect();
     // Unique ids and peers that resolve.
     let mut seen: std::collections::HashMap<&str, usize> = std::collections::HashMap::new();
-    for (i, n) in nodes.iter().enumerate() {
+    for (k, n) in nodes.iter().enumerate() {
+        let i = feature_of[k];
         if let Some(first) = seen.insert(n.id.as_str(), i) {
             probs.push(Problem::new(
                 file,
@@ -78,7 +91,10 @@ pub fn parse_nodes(text: &str, file: &str, defaults: &AntennaDefaults) -> Result
             seen.insert(n.id.as_str(), first);
         }
     }
-    for (i, n) in nodes.iter().enumerate() {
+    let index_of: std::collections::HashMap<&str, usize> =
+        nodes.iter().enumerate().rev().map(|(k, n)| (n.id.as_str(), k)).collect();
+    for (k, n) in nodes.iter().enumerate() {
+        let i = feature_of[k];
         if let Some(p) = &n.peer {
             let feat = Some(format!("feature {i} (id {})", n.id));
             if p == &n.id {
@@ -88,7 +104,7 @@ pub fn parse_nodes(text: &str, file: &str, defaults: &AntennaDefaults) -> Result
                     "peer",
                     format!("node `{p}` names itself as its peer; name another node's id"),
                 ));
-            } else if let Some(&j) = seen.get(p.as_str()) {
+            } else if let Some(&j) = index_of.get(p.as_str()) {
                 let m = &nodes[j];
                 if (m.lon - n.lon).abs() < 1e-9 && (m.lat - n.lat).abs() < 1e-9 {
                     probs.push(Problem::new(
@@ -98,6 +114,13 @@ pub fn parse_nodes(text: &str, file: &str, defaults: &AntennaDefaults) -> Result
                         format!("peer `{p}` stands at the same spot; a link needs two positions"),
                     ));
                 }
+            } else if rejected.contains(p) {
+                probs.push(Problem::new(
+                    file,
+                    feat,
+                    "peer",
+                    format!("value `{p}` names a node that has problems of its own (listed for its feature)"),
+                ));
             } else {
                 probs.push(Problem::new(file, feat, "peer", format!("value `{p}` names no node in this file")));
             }
@@ -105,7 +128,8 @@ pub fn parse_nodes(text: &str, file: &str, defaults: &AntennaDefaults) -> Result
     }
     // A node with activity 0 never transmits: it cannot be the sending end of a planned link,
     // and a layout in which no node transmits has nothing to compute.
-    for (i, n) in nodes.iter().enumerate() {
+    for (k, n) in nodes.iter().enumerate() {
+        let i = feature_of[k];
         if n.activity == 0.0
             && let Some(p) = &n.peer
         {
@@ -132,6 +156,20 @@ pub fn parse_nodes(text: &str, file: &str, defaults: &AntennaDefaults) -> Result
         return Err(probs.0);
     }
     Ok(nodes)
+}
+
+/// A feature's id as written (property `id`, else the feature id), if it has one.
+fn feature_id(f: &geojson::Feature) -> Option<String> {
+    match f.properties.as_ref().and_then(|p| p.get("id")) {
+        Some(Value::String(s)) => Some(s.clone()),
+        Some(Value::Number(n)) => Some(n.to_string()),
+        Some(_) => None,
+        None => match &f.id {
+            Some(geojson::feature::Id::String(s)) => Some(s.clone()),
+            Some(geojson::feature::Id::Number(n)) => Some(n.to_string()),
+            None => None,
+        },
+    }
 }
 
 fn parse_feature(

@@ -58,16 +58,28 @@ fn check_extent(nodes: &[crate::model::node::Node], file: &str, probs: &mut Prob
     }
 }
 
-fn toml_problem(file: &str, e: &toml::de::Error) -> Problem {
-    let msg = e.message().to_string();
+/// A TOML error as a problem at `file:line:column`, naming the key when the message or the
+/// text at the error's place gives it.
+fn toml_problem(file: &str, text: &str, e: &toml::de::Error) -> Problem {
+    let msg = e.message().trim().to_string();
+    let (place, key_at) = match e.span() {
+        Some(s) => {
+            let (line, col) = crate::config::keys::line_col(text, s.start);
+            // The key of the line the error is on (`key = value`), if it is one.
+            let line_text = text.lines().nth(line - 1).unwrap_or("");
+            let key = line_text.split_once('=').map(|(k, _)| k.trim().trim_matches('"').to_string());
+            (format!("{file}:{line}:{col}"), key.filter(|k| !k.is_empty() && !k.starts_with('[')))
+        }
+        None => (file.to_string(), None),
+    };
     let field = msg
         .split('`')
         .nth(1)
-        .filter(|_| msg.contains("unknown field") || msg.contains("missing field"))
-        .unwrap_or("(syntax)")
-        .to_string();
-    let loc = e.span().map(|s| format!(" (at byte {})", s.start)).unwrap_or_default();
-    Problem::new(file, None, field, format!("{msg}{loc}"))
+        .filter(|_| msg.contains("missing field"))
+        .map(str::to_string)
+        .or(key_at)
+        .unwrap_or_else(|| "(syntax)".into());
+    Problem::new(place, None, field, msg)
 }
 
 /// Parses `YYYY-MM-DD` into (year, day of the year), checking the calendar.
@@ -97,7 +109,13 @@ impl Scenario {
     /// to its folder).
     pub fn from_toml(text: &str, path: &Path) -> Result<Scenario, Error> {
         let file = path.display().to_string();
-        let raw: RawScenario = toml::from_str(text).map_err(|e| Error::input(toml_problem(&file, &e)))?;
+        // Syntax first, then every unknown key at once, then the typed tables.
+        let doc: toml::Table = text.parse().map_err(|e| Error::input(toml_problem(&file, text, &e)))?;
+        let unknown = crate::config::keys::unknown_keys(&doc, text, &file);
+        if !unknown.is_empty() {
+            return Err(Error::Input(unknown));
+        }
+        let raw: RawScenario = toml::from_str(text).map_err(|e| Error::input(toml_problem(&file, text, &e)))?;
         let mut probs = Problems::default();
         let mut bad = |table: &str, field: &str, v: f64, r: Range| {
             if !r.contains(v) {
