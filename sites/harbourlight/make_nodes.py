@@ -48,14 +48,21 @@ for k in range(24):
     acc.append(pos)
     add(f"LP{k+1:02d}", pos, {"azimuth_deg": round(az, 1), "height_m": 5.0})
 
-# Subscriber terminals: 8 aimed at a lamp-post sector, low duty cycle.
+# Subscriber terminals: 8 aimed at a lamp-post sector, low duty cycle. Each sits 80-110 m out
+# inside its host's 60-degree sector (within 15 degrees of its boresight), except ST05, which
+# is deliberately mounted behind its host's sector (a fault the link check must show).
+acc_az = [f["properties"]["azimuth_deg"] for f in feats if f["properties"]["id"].startswith("LP")]
 for k in range(8):
     host = 2 * k + (k % 2)
     hx, hy = acc[host]
-    inland = host % 2 == 0
-    pos = (hx + 70 * math.cos(k), hy + (110 if inland else -90))
+    off = 12 * math.sin(2.3 * k)                       # degrees off the host's boresight
+    if k == 4:
+        off = 150                                      # the deliberate fault: behind the sector
+    d = 95 + 15 * math.cos(1.3 * k)
+    a = math.radians(acc_az[host] + off)
+    pos = (hx + d * math.sin(a), hy + d * math.cos(a))
     add(f"ST{k+1:02d}", pos, {"pattern": "sector", "beamwidth_deg": 20.0, "gain_dbi": 24.0, "sidelobe_dbi": -6.0,
-        "power_dbm": 5.0, "height_m": 3.0, "activity": 0.3, "azimuth_deg": round(bearing(pos, (hx, hy)), 1),
+        "power_dbm": 12.0, "height_m": 3.0, "activity": 0.3, "azimuth_deg": round(bearing(pos, (hx, hy)), 1),
         "peer": f"LP{host+1:02d}"})
 
 json.dump({"type": "FeatureCollection", "features": feats}, open("nodes.geojson", "w"), indent=1)
