@@ -435,6 +435,15 @@ fn map_cmd(sc: &Scenario, a: MapArgs, quiet: bool, default_out: Option<&str>) ->
             realizations: a.realizations,
         },
     )?;
+    if let Some(neg) = res.summary.neglected_db {
+        // The server stays exact under a cutoff; what it drops is interference only.
+        let sinr_bound = 10.0 * (1.0 + 10f64.powf(neg / 10.0)).log10();
+        if sinr_bound > 0.1 {
+            eprintln!(
+                "warning: --cutoff-m drops interference up to {neg:.2} dB relative to noise at the worst cell: SINR there may be up to {sinr_bound:.2} dB too high (the best server is exact)"
+            );
+        }
+    }
     if !quiet {
         let s = &res.summary;
         eprintln!(

@@ -45,47 +45,65 @@ pub(crate) fn row_body<D: Decay, A: PairFactor, C: RxCoupling>(
     }
     // Candidate nodes: every node that transmits, or (with a cutoff) those near the row, in
     // index order. A node with activity 0 adds nothing to any sum and is never a server.
-    let mut dropped_mw = 0.0;
-    let cand: Vec<usize> = match cutoff {
-        None => e.active.clone(),
-        Some(rc) => {
-            let env = AABB::from_corners([xmin - rc, ymin - rc], [xmax + rc, ymax + rc]);
-            let mut keep = vec![false; e.nodes.len()];
-            for gd in e.tree.locate_in_envelope(env) {
-                keep[gd.data] = true;
-            }
-            let pl = &e.sc.pathloss;
-            let gmax_rx = e.g_omni.max(e.g_signal) as f64;
-            for (_, n) in e.nodes.iter().enumerate().filter(|(k, _)| !keep[*k]) {
-                let (nx, ny) = (n.x as f64, n.y as f64);
-                let dx = (xmin - nx).max(0.0).max(nx - xmax);
-                let dy = (ymin - ny).max(0.0).max(ny - ymax);
-                let dist = (dx * dx + dy * dy + n.dz2 as f64).sqrt();
-                dropped_mw += n.act as f64 * n.p_max * gmax_rx * pl.gain_lin(dist) / db_to_lin(-pl.loss_at_1m_db());
-            }
-            e.active.iter().copied().filter(|k| keep[*k]).collect()
-        }
-    };
+    // Under a cutoff the server must stay exact: when a dropped node could outshine a cell's
+    // best candidate (its bound at the row exceeds that cell's best), the row is redone with
+    // every node, so the cutoff only ever drops interference, within `dropped_mw`.
+    let mut cutoff = cutoff;
     let mut pairs = 0u64;
     let full = l.needs_server();
-    if full {
-        b.best.fill(0.0);
-        b.bestw.fill(0.0);
-        b.other.fill(0.0);
-        b.server.fill(u32::MAX);
-    } else {
-        b.other.fill(0.0);
-    }
-    for &k in &cand {
-        let n = &e.nodes[k];
-        match (n.lut, full) {
-            (None, true) => pass_full(d, Flat, a, n, b),
-            (Some(t), true) => pass_full(d, Table(&e.luts[t]), a, n, b),
-            (None, false) => pass_sum(d, Flat, a, n, &b.xs, &b.ys, &mut b.other),
-            (Some(t), false) => pass_sum(d, Table(&e.luts[t]), a, n, &b.xs, &b.ys, &mut b.other),
+    let (cand, dropped_mw) = loop {
+        let mut dropped_mw = 0.0;
+        let mut strongest_dropped = 0.0f64;
+        let cand: Vec<usize> = match cutoff {
+            None => e.active.clone(),
+            Some(rc) => {
+                let env = AABB::from_corners([xmin - rc, ymin - rc], [xmax + rc, ymax + rc]);
+                let mut keep = vec![false; e.nodes.len()];
+                for gd in e.tree.locate_in_envelope(env) {
+                    keep[gd.data] = true;
+                }
+                let pl = &e.sc.pathloss;
+                let gmax_rx = e.g_omni.max(e.g_signal) as f64;
+                let k_inv = db_to_lin(-pl.loss_at_1m_db());
+                for &k in e.active.iter().filter(|k| !keep[**k]) {
+                    let n = &e.nodes[k];
+                    let (nx, ny) = (n.x as f64, n.y as f64);
+                    let dx = (xmin - nx).max(0.0).max(nx - xmax);
+                    let dy = (ymin - ny).max(0.0).max(ny - ymax);
+                    let dist = (dx * dx + dy * dy + n.dz2 as f64).sqrt();
+                    let most = n.p_max * pl.gain_lin(dist) / k_inv;
+                    strongest_dropped = strongest_dropped.max(most);
+                    dropped_mw += n.act as f64 * most * gmax_rx;
+                }
+                e.active.iter().copied().filter(|k| keep[*k]).collect()
+            }
+        };
+        if full {
+            b.best.fill(0.0);
+            b.bestw.fill(0.0);
+            b.other.fill(0.0);
+            b.server.fill(u32::MAX);
+        } else {
+            b.other.fill(0.0);
         }
-        pairs += cols as u64;
-    }
+        for &k in &cand {
+            let n = &e.nodes[k];
+            match (n.lut, full) {
+                (None, true) => pass_full(d, Flat, a, n, b),
+                (Some(t), true) => pass_full(d, Table(&e.luts[t]), a, n, b),
+                (None, false) => pass_sum(d, Flat, a, n, &b.xs, &b.ys, &mut b.other),
+                (Some(t), false) => pass_sum(d, Table(&e.luts[t]), a, n, &b.xs, &b.ys, &mut b.other),
+            }
+            pairs += cols as u64;
+        }
+        // 1e-5 covers the float32 kernel against this float64 bound.
+        let unsure = full && cutoff.is_some() && b.best.iter().any(|&v| (v as f64) <= strongest_dropped * (1.0 + 1e-5));
+        if unsure {
+            cutoff = None;
+            continue;
+        }
+        break (cand, dropped_mw);
+    };
     // The interference needs a pass that knows each cell's server when the receiver is aimed
     // at it or when coupling depends on it; otherwise the server pass's sum stands.
     let aimed_needed = (e.rx_aim.is_some() || !C::IDENTITY) && (l.interference || l.sinr);
