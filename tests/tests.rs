@@ -7,6 +7,7 @@ mod util;
 mod aggregate;
 mod cli;
 mod coverage;
+mod faults;
 mod physics;
 mod random;
 mod report;

@@ -68,7 +68,7 @@ impl DrawSpec {
         if let Some(a) = areas {
             let path = dir.join(a);
             let pf = path.display().to_string();
-            match std::fs::read_to_string(&path) {
+            match crate::config::read_input(&path) {
                 Err(e) => bad("areas", format!("cannot read {pf}: {e}")),
                 Ok(text) => match text.parse::<geojson::GeoJson>() {
                     Ok(geojson::GeoJson::FeatureCollection(fc)) => {
@@ -80,6 +80,14 @@ impl DrawSpec {
                                     .or_else(|| Polygon::<f64>::try_from(g.clone()).ok().map(|p| MultiPolygon(vec![p])))
                             });
                             match geom {
+                                Some(mp) if mp.0.is_empty() || mp.0.iter().any(|p| p.exterior().0.len() < 4) => {
+                                    probs.push(Problem::new(
+                                        &pf,
+                                        Some(format!("feature {i}")),
+                                        "geometry",
+                                        "a polygon needs an exterior ring of at least 4 positions (closed); this one has none or too few",
+                                    ))
+                                }
                                 Some(mp) => {
                                     let all_ok =
                                         mp.0.iter()

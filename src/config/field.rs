@@ -297,6 +297,13 @@ impl FieldSpec {
             (None, Some(FadingKind::Nakagami { m })) => ("nakagami".into(), a.k_db, m),
             (None, Some(FadingKind::Rician { k })) => ("rician".into(), 10.0 * k.log10(), a.m),
         };
+        let model_name = a.model.clone().unwrap_or(model.into());
+        if model_name == "free-space" && a.exponent.is_some_and(|n| n != 2.0) {
+            return Err(crate::Error::input(crate::Problem::flag(
+                "--exponent",
+                "free-space has exponent 2; use --model close-in or power-law for another exponent",
+            )));
+        }
         let tx_pattern = match (a.pattern.as_deref(), sc_kind) {
             (Some(p), _) => p.to_string(),
             (None, Some(k)) => k.to_string(),
@@ -316,7 +323,7 @@ impl FieldSpec {
             fading,
             m,
             k_db,
-            model: a.model.clone().unwrap_or(model.into()),
+            model: model_name,
             exponent: a.exponent.unwrap_or(exponent),
             loss_at_1m_db: a.loss_at_1m_db.unwrap_or(l1),
             frequency_ghz: a.frequency_ghz.or(pl.map(|p| p.frequency_ghz())).unwrap_or(28.0),

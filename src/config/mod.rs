@@ -8,3 +8,13 @@ pub(crate) mod nodes;
 pub(crate) mod range;
 pub(crate) mod raw;
 pub(crate) mod scenario;
+
+/// Reads an input file as text, refusing anything but a regular file (a FIFO would block for
+/// ever, a device or a folder is never an input).
+pub(crate) fn read_input(path: &std::path::Path) -> std::io::Result<String> {
+    let m = std::fs::metadata(path)?;
+    if !m.is_file() {
+        return Err(std::io::Error::other("not a regular file (a folder, FIFO or device is not an input)"));
+    }
+    std::fs::read_to_string(path)
+}

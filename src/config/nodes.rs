@@ -180,9 +180,21 @@ fn parse_feature(
     probs: &mut Problems,
 ) -> Option<Node> {
     let props = f.properties.clone().unwrap_or_default();
+    let exact = |n: &serde_json::Number| (n.is_u64() || n.is_i64()).then(|| n.to_string());
     let id = match props.get("id").or(None) {
         Some(Value::String(s)) if !s.trim().is_empty() => Some(s.clone()),
-        Some(Value::Number(n)) => Some(n.to_string()),
+        Some(Value::Number(n)) if exact(n).is_some() => exact(n),
+        Some(Value::Number(n)) => {
+            probs.push(Problem::new(
+                file,
+                Some(format!("feature {i}")),
+                "id",
+                format!(
+                    "value {n} is not an integer that compares exactly (within ±2^63); write such an id as a string"
+                ),
+            ));
+            None
+        }
         Some(v) => {
             probs.push(Problem::new(
                 file,
@@ -192,24 +204,46 @@ fn parse_feature(
             ));
             None
         }
-        None => match &f.id {
-            Some(geojson::feature::Id::String(s)) => Some(s.clone()),
-            Some(geojson::feature::Id::Number(n)) => Some(n.to_string()),
-            None => {
-                probs.push(Problem::new(
+        None => {
+            match &f.id {
+                Some(geojson::feature::Id::String(s)) => Some(s.clone()),
+                Some(geojson::feature::Id::Number(n)) if exact(n).is_some() => exact(n),
+                Some(geojson::feature::Id::Number(n)) => {
+                    probs.push(Problem::new(
                     file,
                     Some(format!("feature {i}")),
                     "id",
-                    "missing; every node needs a unique id (string or number)",
+                    format!("value {n} is not an integer that compares exactly (within ±2^63); write such an id as a string"),
                 ));
-                None
+                    None
+                }
+                None => {
+                    probs.push(Problem::new(
+                        file,
+                        Some(format!("feature {i}")),
+                        "id",
+                        "missing; every node needs a unique id (string or number)",
+                    ));
+                    None
+                }
             }
-        },
+        }
     };
     let feat = match &id {
         Some(id) => format!("feature {i} (id {id})"),
         None => format!("feature {i}"),
     };
+    // Ids go into CSV tables and messages as written.
+    if let Some(id) = &id
+        && id.chars().any(|c| c == ',' || c == '"' || c.is_control())
+    {
+        probs.push(Problem::new(
+            file,
+            Some(feat.clone()),
+            "id",
+            format!("value {id:?} has a comma, a double quote or a control character (a line break); ids may not contain them"),
+        ));
+    }
     let before = probs.0.len();
     let mut push = |field: &str, msg: String| probs.push(Problem::new(file, Some(feat.clone()), field, msg));
 

@@ -101,7 +101,7 @@ pub fn parse_date(s: &str) -> Option<(i32, u16)> {
 impl Scenario {
     /// Reads, parses and validates a scenario file and its node file.
     pub fn load(path: &Path) -> Result<Scenario, Error> {
-        let text = std::fs::read_to_string(path).map_err(|e| Error::Read { path: path.to_path_buf(), source: e })?;
+        let text = crate::config::read_input(path).map_err(|e| Error::Read { path: path.to_path_buf(), source: e })?;
         Self::from_toml(&text, path)
     }
 
@@ -187,12 +187,15 @@ impl Scenario {
                 None
             }
         };
-        if raw.name.trim().is_empty() || !raw.name.chars().all(|c| c.is_ascii_alphanumeric() || "-_. ".contains(c)) {
+        if raw.name.trim().is_empty()
+            || raw.name.starts_with('.')
+            || !raw.name.chars().all(|c| c.is_ascii_alphanumeric() || "-_. ".contains(c))
+        {
             probs.push(Problem::new(
                 &file,
                 None,
                 "name",
-                format!("value `{}` must be non-empty and use only letters, digits, space, '-', '_' or '.'", raw.name),
+                format!("value `{}` must be non-empty, not start with '.', and use only letters, digits, space, '-', '_' or '.'", raw.name),
             ));
         }
         // `prefix` is "" for the signal's keys and "interferer_" for the interferers'.
@@ -237,7 +240,7 @@ impl Scenario {
 
         let dir = path.parent().unwrap_or(Path::new("."));
         let nodes_path = dir.join(&raw.nodes);
-        let nodes = match std::fs::read_to_string(&nodes_path) {
+        let nodes = match crate::config::read_input(&nodes_path) {
             Ok(t) => {
                 parse_nodes(&t, &nodes_path.display().to_string(), &raw.antenna).map_err(|e| probs.0.extend(e)).ok()
             }

@@ -1,6 +1,9 @@
 //! Output staging: every file is written under a temporary name in the output folder and
 //! renamed into place only when all of them were written, so a failure leaves no partial
-//! output. Inputs are never overwritten.
+//! output. Inputs are never overwritten. Temporaries are created exclusively with
+//! unpredictable names (the tempfile crate: `O_EXCL`, no link followed), and an output name
+//! already taken by anything but a regular file (a link, a device, a FIFO, a folder) is
+//! refused.
 
 use crate::error::Error;
 use std::fs::File;
@@ -23,15 +26,15 @@ impl Staging {
         let err = |e| Error::Output { path: dir.to_path_buf(), source: e };
         let created_dir = !dir.exists();
         std::fs::create_dir_all(dir).map_err(err)?;
-        let probe = dir.join(format!(".lobemap-write-test-{}", std::process::id()));
-        if let Err(e) = File::create(&probe).and_then(|mut f| f.write_all(b"x")) {
-            let _ = std::fs::remove_file(&probe);
+        // A write probe: an exclusive temporary, removed when dropped.
+        if let Err(e) =
+            tempfile::Builder::new().prefix(".lobemap-probe-").tempfile_in(dir).and_then(|mut f| f.write_all(b"x"))
+        {
             if created_dir {
                 let _ = std::fs::remove_dir(dir);
             }
             return Err(err(e));
         }
-        let _ = std::fs::remove_file(&probe);
         let protected = inputs.iter().filter_map(|p| std::fs::canonicalize(p).ok()).collect();
         Ok(Staging { dir: dir.to_path_buf(), created_dir, pending: Vec::new(), protected, committed: false })
     }
@@ -61,19 +64,40 @@ impl Staging {
                 source: std::io::Error::other("refusing to overwrite an input file; choose another --out folder"),
             });
         }
-        let tmp = self.dir.join(format!(".{name}.partial-{}", std::process::id()));
-        let res = File::create(&tmp).and_then(|file| {
-            let mut w = BufWriter::new(file);
-            f(&mut w)?;
-            w.flush()?;
-            w.into_inner().map_err(|e| e.into_error())?.sync_all()
-        });
-        if let Err(e) = res {
-            let _ = std::fs::remove_file(&tmp);
-            return Err(Error::Output { path: fin, source: e });
+        if let Ok(m) = std::fs::symlink_metadata(&fin)
+            && !m.file_type().is_file()
+        {
+            return Err(Error::Output {
+                path: fin,
+                source: std::io::Error::other(
+                    "the name is taken by a link, a device, a FIFO or a folder; lobemap writes only regular files",
+                ),
+            });
         }
-        self.pending.push((tmp, fin));
-        Ok(())
+        let res =
+            tempfile::Builder::new().prefix(&format!(".{name}.")).suffix(".partial").tempfile_in(&self.dir).and_then(
+                |tmp| {
+                    let (file, path) = tmp.keep().map_err(|e| e.error)?;
+                    let mut w = BufWriter::new(file);
+                    let written = f(&mut w)
+                        .and_then(|_| w.flush())
+                        .and_then(|_| w.into_inner().map_err(|e| e.into_error())?.sync_all());
+                    match written {
+                        Ok(()) => Ok(path),
+                        Err(e) => {
+                            let _ = std::fs::remove_file(&path);
+                            Err(e)
+                        }
+                    }
+                },
+            );
+        match res {
+            Ok(tmp) => {
+                self.pending.push((tmp, fin));
+                Ok(())
+            }
+            Err(e) => Err(Error::Output { path: fin, source: e }),
+        }
     }
 
     /// Renames every staged file into place.

@@ -108,6 +108,9 @@ pub fn run_aggregate(spec: &FieldSpec, o: &AggregateOptions) -> Result<Aggregate
         let budget = o
             .budget_dbm
             .ok_or_else(|| bad("--budget-dbm", "missing; --max-density and --min-guard need a budget in dBm".into()))?;
+        if !budget.is_finite() {
+            return Err(bad("--budget-dbm", format!("value {budget} is not a finite level in dBm")));
+        }
         let f = &fields[0].1;
         if o.max_density {
             plans.push(max_density(f, budget, o.outage));

@@ -47,7 +47,7 @@ pub struct MapResult {
 /// Refuses grids whose layers would not fit in `max_memory_mib`.
 pub fn check_memory(sc: &Scenario, layers: usize, max_memory_mib: u64) -> Result<(), Error> {
     let need = sc.grid.estimate_bytes(layers, rayon::current_num_threads());
-    if need > max_memory_mib * 1024 * 1024 {
+    if need > max_memory_mib.saturating_mul(1024 * 1024) {
         return Err(Error::input(Problem::new(
             sc.path.display().to_string(),
             Some("[grid]".into()),

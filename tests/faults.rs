@@ -1,0 +1,128 @@
+//! Fault cases from the reliability review: each must end in a clear refusal (exit code 2)
+//! or a success, never a panic or a hang, with inputs untouched and no partial output.
+
+use crate::util::{run, stderr};
+use std::os::unix::fs::FileTypeExt;
+use std::path::Path;
+
+const TOML: &str = r#"name = "faults"
+nodes = "nodes.geojson"
+[radio]
+frequency_ghz = 28
+bandwidth_mhz = 100
+noise_figure_db = 7
+[propagation]
+model = "free-space"
+[antenna]
+pattern = "omni"
+gain_dbi = 0
+power_dbm = 20
+[grid]
+cell_m = 20
+margin_m = 200
+"#;
+
+const NODES: &str = r#"{"type":"FeatureCollection","features":[
+{"type":"Feature","geometry":{"type":"Point","coordinates":[8.000,50.000]},"properties":{"id":"a"}},
+{"type":"Feature","geometry":{"type":"Point","coordinates":[8.004,50.001]},"properties":{"id":"b"}}
+]}"#;
+
+fn site(toml: &str, nodes: &str) -> (tempfile::TempDir, String) {
+    let d = tempfile::tempdir().unwrap();
+    std::fs::write(d.path().join("scenario.toml"), toml).unwrap();
+    std::fs::write(d.path().join("nodes.geojson"), nodes).unwrap();
+    let p = d.path().join("scenario.toml").to_str().unwrap().to_string();
+    (d, p)
+}
+
+fn refused(args: &[&str], fragment: &str) {
+    let o = run(args);
+    assert_eq!(o.status.code(), Some(2), "{args:?}: {}", stderr(&o));
+    assert!(stderr(&o).contains(fragment), "{args:?}: `{fragment}` not in {}", stderr(&o));
+}
+
+/// Regression (a `[draw] areas` polygon with no rings panicked in map and draw while check
+/// said ok): `[]` and `[[]]` are refused by check, map and draw alike.
+#[test]
+fn empty_area_polygons_are_refused() {
+    for coords in ["[]", "[[]]"] {
+        let areas = format!(
+            r#"{{"type":"FeatureCollection","features":[{{"type":"Feature","properties":{{}},"geometry":{{"type":"Polygon","coordinates":{coords}}}}}]}}"#
+        );
+        let toml = format!("{TOML}[draw]\ndensity_per_km2 = 50\nareas = \"areas.geojson\"\n");
+        let (d, p) = site(&toml, NODES);
+        std::fs::write(d.path().join("areas.geojson"), areas).unwrap();
+        let out = d.path().join("out");
+        refused(&["check", &p], "exterior ring");
+        refused(&["map", &p, "--out", out.to_str().unwrap(), "--quiet"], "exterior ring");
+        refused(&["draw", &p, "--out", d.path().join("l.geojson").to_str().unwrap()], "exterior ring");
+        assert!(!out.exists());
+    }
+}
+
+/// Regression (a FIFO as the node file blocked for ever): inputs must be regular files.
+#[test]
+fn fifo_input_is_refused_not_waited_for() {
+    let (d, p) = site(TOML, NODES);
+    let fifo = d.path().join("nodes.geojson");
+    std::fs::remove_file(&fifo).unwrap();
+    let ok = std::process::Command::new("mkfifo").arg(&fifo).status().map(|s| s.success()).unwrap_or(false);
+    if !ok {
+        eprintln!("mkfifo unavailable; FIFO case not run");
+        return;
+    }
+    let mut child = crate::util::run::bin().args(["check", &p]).stderr(std::process::Stdio::piped()).spawn().unwrap();
+    let t0 = std::time::Instant::now();
+    while child.try_wait().unwrap().is_none() {
+        assert!(t0.elapsed().as_secs() < 20, "check blocked on a FIFO");
+        std::thread::sleep(std::time::Duration::from_millis(50));
+    }
+    let o = child.wait_with_output().unwrap();
+    assert_eq!(o.status.code(), Some(2));
+    assert!(String::from_utf8_lossy(&o.stderr).contains("not a regular file"));
+}
+
+/// Regression (temporary and output names were opened through planted symlinks): an output
+/// name that is a link or a device is refused and what it points to is untouched.
+#[test]
+fn outputs_never_follow_links_or_replace_devices() {
+    let (d, p) = site(TOML, NODES);
+    let out = d.path().join("out");
+    std::fs::create_dir(&out).unwrap();
+    let victim = d.path().join("victim.txt");
+    std::fs::write(&victim, "keep me").unwrap();
+    std::os::unix::fs::symlink(&victim, out.join("total.tif")).unwrap();
+    refused(&["map", &p, "--out", out.to_str().unwrap(), "--quiet"], "regular files");
+    assert_eq!(std::fs::read_to_string(&victim).unwrap(), "keep me");
+    assert!(std::fs::read_dir(&out).unwrap().count() == 1, "partial output beside the link");
+    // A character device as the output file.
+    if Path::new("/dev/null").exists() {
+        let with_draw = format!("{TOML}[draw]\ndensity_per_km2 = 50\n");
+        let (_d2, p2) = site(&with_draw, NODES);
+        refused(&["draw", &p2, "--out", "/dev/null"], "regular files");
+        assert!(std::fs::metadata("/dev/null").unwrap().file_type().is_char_device());
+    }
+}
+
+/// Regression (smaller faults): two different 30-digit integer ids were called duplicates;
+/// ids with commas broke the CSV tables; `--budget-dbm nan` and `--exponent` with free space
+/// were accepted; a scenario named `..` wrote into the current folder; `--max-memory-mib 2^44`
+/// wrapped to a zero limit.
+#[test]
+fn smaller_faults_are_refused() {
+    let long_ids = NODES
+        .replace(r#""id":"a""#, r#""id":123456789012345678901234567890"#)
+        .replace(r#""id":"b""#, r#""id":123456789012345678901234567891"#);
+    let (_d, p) = site(TOML, &long_ids);
+    refused(&["check", &p], "write such an id as a string");
+    let comma = NODES.replace(r#""id":"a""#, r#""id":"a,1""#);
+    let (_d, p) = site(TOML, &comma);
+    refused(&["check", &p], "comma");
+    refused(&["aggregate", "--density-per-km2", "100", "--max-density", "--budget-dbm", "nan"], "--budget-dbm");
+    refused(&["aggregate", "--density-per-km2", "100", "--model", "free-space", "--exponent", "3"], "--exponent");
+    let (_d, p) = site(&TOML.replace("name = \"faults\"", "name = \"..\""), NODES);
+    refused(&["check", &p], "not start with '.'");
+    let (_d, p) = site(TOML, NODES);
+    let o = run(&["check", &p, "--max-memory-mib", "17592186044416"]);
+    assert!(o.status.success(), "{}", stderr(&o));
+}
