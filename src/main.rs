@@ -8,6 +8,11 @@ use std::process::ExitCode;
 mod cli;
 
 fn main() -> ExitCode {
+    // On SIGINT or SIGTERM, remove this run's temporaries before leaving (130: interrupted).
+    let _ = ctrlc::set_handler(|| {
+        lobemap::run::remove_temporaries();
+        std::process::exit(130);
+    });
     match cli::run(cli::Cli::parse()) {
         Ok(code) => code,
         Err(e) => match e.downcast_ref::<Error>() {

@@ -126,3 +126,69 @@ fn smaller_faults_are_refused() {
     let o = run(&["check", &p, "--max-memory-mib", "17592186044416"]);
     assert!(o.status.success(), "{}", stderr(&o));
 }
+
+/// Regression (inputs overwritten): an areas file named like an output, `draw --out` onto the
+/// areas file, and `aggregate --out` onto the scenario's folder with a node file named like
+/// one of its outputs are all refused, the inputs byte-identical.
+#[test]
+fn every_input_is_protected_from_every_output() {
+    let toml = format!("{TOML}[draw]\ndensity_per_km2 = 50\nareas = \"hotspots.geojson\"\n");
+    let areas = r#"{"type":"FeatureCollection","features":[{"type":"Feature","properties":{},"geometry":{"type":"Polygon","coordinates":[[[7.99,49.99],[8.01,49.99],[8.01,50.01],[7.99,50.01],[7.99,49.99]]]}}]}"#;
+    let (d, p) = site(&toml, NODES);
+    std::fs::write(d.path().join("hotspots.geojson"), areas).unwrap();
+    refused(&["map", &p, "--out", d.path().to_str().unwrap(), "--quiet"], "input");
+    refused(&["draw", &p, "--out", d.path().join("hotspots.geojson").to_str().unwrap()], "input");
+    assert_eq!(std::fs::read_to_string(d.path().join("hotspots.geojson")).unwrap(), areas);
+    let named_like_output = TOML.replace("nodes.geojson", "cdf.csv");
+    let (d, p) = site(&named_like_output, NODES);
+    std::fs::write(d.path().join("cdf.csv"), NODES).unwrap();
+    let dir = d.path().to_str().unwrap();
+    refused(&["aggregate", "--scenario", &p, "--density-per-km2", "10", "--out", dir], "input");
+    assert_eq!(std::fs::read_to_string(d.path().join("cdf.csv")).unwrap(), NODES);
+}
+
+/// Regression (temporaries left by killed runs; two runs into one folder could mix): the next
+/// run removes what a killed run left, and a run while another holds the folder is refused.
+#[test]
+fn leftovers_are_removed_and_concurrent_runs_refused() {
+    let (d, p) = site(TOML, NODES);
+    let out = d.path().join("out");
+    std::fs::create_dir(&out).unwrap();
+    std::fs::write(out.join(".total.tif.a1B2c3.partial"), "left by a killed run").unwrap();
+    let o = run(&["map", &p, "--out", out.to_str().unwrap(), "--quiet"]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    let left: Vec<String> = std::fs::read_dir(&out)
+        .unwrap()
+        .filter_map(|e| e.unwrap().file_name().into_string().ok())
+        .filter(|n| n.starts_with('.'))
+        .collect();
+    assert!(left.is_empty(), "{left:?}");
+    let held = std::fs::File::open(&out).unwrap();
+    held.lock().unwrap();
+    refused(&["map", &p, "--out", out.to_str().unwrap(), "--quiet"], "another lobemap run");
+}
+
+/// Regression (SIGINT/SIGTERM left temporaries): a map interrupted at several moments exits
+/// (130 when interrupted) and leaves no temporary in its folder.
+#[test]
+fn interrupted_runs_leave_no_temporaries() {
+    let slow = TOML.replace("cell_m = 20", "cell_m = 0.5");
+    let (d, p) = site(&slow, NODES);
+    for (k, ms) in [50u64, 150, 300, 600].into_iter().enumerate() {
+        let out = d.path().join(format!("out{k}"));
+        let mut child =
+            crate::util::run::bin().args(["map", &p, "--out", out.to_str().unwrap(), "--quiet"]).spawn().unwrap();
+        std::thread::sleep(std::time::Duration::from_millis(ms));
+        let _ = std::process::Command::new("kill").args(["-TERM", &child.id().to_string()]).status();
+        let status = child.wait().unwrap();
+        assert!(matches!(status.code(), Some(0) | Some(130)), "{status:?}");
+        if out.exists() {
+            let left: Vec<_> = std::fs::read_dir(&out)
+                .unwrap()
+                .filter_map(|e| e.unwrap().file_name().into_string().ok())
+                .filter(|n| n.starts_with('.'))
+                .collect();
+            assert!(left.is_empty(), "after {ms} ms: {left:?}");
+        }
+    }
+}

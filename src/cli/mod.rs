@@ -279,6 +279,7 @@ impl AggArgs {
             budget_dbm: self.budget_dbm,
             outage: self.outage,
             out: self.out.clone(),
+            inputs: Vec::new(),
         }
     }
 }
@@ -469,7 +470,11 @@ fn aggregate_cmd(a: AggArgs, quiet: bool) -> anyhow::Result<ExitCode> {
         None => None,
     };
     let spec = FieldSpec::resolve(sc.as_ref(), &a.overrides())?;
-    let res = run_aggregate(&spec, &a.options())?;
+    let mut opts = a.options();
+    if let Some(sc) = &sc {
+        opts.inputs = sc.input_files().into_iter().map(Path::to_path_buf).collect();
+    }
+    let res = run_aggregate(&spec, &opts)?;
     print_aggregate(&res, a.json, quiet, a.out.as_deref().unwrap_or(Path::new("")));
     Ok(ExitCode::SUCCESS)
 }

@@ -65,6 +65,7 @@ impl DrawSpec {
         let ant =
             antenna.resolve(&mut |field, msg| bad(field, format!("drawn nodes take the [antenna] defaults: {msg}")));
         let (mut include, mut exclude) = (Vec::new(), Vec::new());
+        let areas_path = areas.map(|a| dir.join(a));
         if let Some(a) = areas {
             let path = dir.join(a);
             let pf = path.display().to_string();
@@ -133,6 +134,7 @@ impl DrawSpec {
                 seed: seed.unwrap_or(1),
                 mode,
                 include,
+                areas_path,
                 exclude,
                 antenna,
             });

@@ -17,6 +17,47 @@ pub struct Staging {
     pending: Vec<(PathBuf, PathBuf)>,
     protected: Vec<PathBuf>,
     committed: bool,
+    /// An exclusive lock on the folder for the run's lifetime (released when dropped).
+    _lock: File,
+}
+
+/// Temporaries of the runs in this process, removed by the signal handler.
+static PENDING: std::sync::Mutex<Vec<PathBuf>> = std::sync::Mutex::new(Vec::new());
+
+/// Removes this process's temporaries: called on SIGINT/SIGTERM before exiting. It keeps the
+/// registry locked, so no temporary can be created after it ran.
+pub fn remove_pending() {
+    let mut v = PENDING.lock().unwrap_or_else(|e| e.into_inner());
+    for p in v.drain(..) {
+        let _ = std::fs::remove_file(p);
+    }
+    std::mem::forget(v);
+}
+
+/// Creates an exclusive temporary `.<name>.<random>.partial` in `dir` and registers it, both
+/// under the registry's lock (so an interrupt sees every temporary that exists).
+fn create_temp(dir: &Path, name: &str) -> std::io::Result<(File, PathBuf)> {
+    let mut v = PENDING.lock().unwrap_or_else(|e| e.into_inner());
+    let (file, path) = tempfile::Builder::new()
+        .prefix(&format!(".{name}."))
+        .suffix(".partial")
+        .tempfile_in(dir)?
+        .keep()
+        .map_err(|e| e.error)?;
+    v.push(path.clone());
+    Ok((file, path))
+}
+
+fn unregister(p: &Path) {
+    if let Ok(mut v) = PENDING.lock() {
+        v.retain(|q| q != p);
+    }
+}
+
+/// Whether a file name is one of lobemap's temporaries (`.<name>.<random>.partial`,
+/// `.lobemap-probe-<random>`).
+fn is_temporary(name: &str) -> bool {
+    name.starts_with('.') && (name.ends_with(".partial") || name.starts_with(".lobemap-probe-"))
 }
 
 impl Staging {
@@ -26,6 +67,27 @@ impl Staging {
         let err = |e| Error::Output { path: dir.to_path_buf(), source: e };
         let created_dir = !dir.exists();
         std::fs::create_dir_all(dir).map_err(err)?;
+        // One run at a time per folder: a second one is refused, not mixed in.
+        let lock = File::open(dir).map_err(err)?;
+        if let Err(e) = lock.try_lock() {
+            let why = match e {
+                std::fs::TryLockError::WouldBlock => std::io::Error::other(
+                    "another lobemap run is writing to this folder; wait for it or choose another --out",
+                ),
+                std::fs::TryLockError::Error(e) => e,
+            };
+            return Err(err(why));
+        }
+        // With the lock held no other run is writing here: temporaries left by a killed run
+        // are removed.
+        if let Ok(entries) = std::fs::read_dir(dir) {
+            for e in entries.flatten() {
+                let stale = e.file_name().to_str().is_some_and(is_temporary);
+                if stale && e.file_type().is_ok_and(|t| t.is_file()) {
+                    let _ = std::fs::remove_file(e.path());
+                }
+            }
+        }
         // A write probe: an exclusive temporary, removed when dropped.
         if let Err(e) =
             tempfile::Builder::new().prefix(".lobemap-probe-").tempfile_in(dir).and_then(|mut f| f.write_all(b"x"))
@@ -36,7 +98,14 @@ impl Staging {
             return Err(err(e));
         }
         let protected = inputs.iter().filter_map(|p| std::fs::canonicalize(p).ok()).collect();
-        Ok(Staging { dir: dir.to_path_buf(), created_dir, pending: Vec::new(), protected, committed: false })
+        Ok(Staging {
+            dir: dir.to_path_buf(),
+            created_dir,
+            pending: Vec::new(),
+            protected,
+            committed: false,
+            _lock: lock,
+        })
     }
 
     /// The output folder.
@@ -74,23 +143,19 @@ impl Staging {
                 ),
             });
         }
-        let res =
-            tempfile::Builder::new().prefix(&format!(".{name}.")).suffix(".partial").tempfile_in(&self.dir).and_then(
-                |tmp| {
-                    let (file, path) = tmp.keep().map_err(|e| e.error)?;
-                    let mut w = BufWriter::new(file);
-                    let written = f(&mut w)
-                        .and_then(|_| w.flush())
-                        .and_then(|_| w.into_inner().map_err(|e| e.into_error())?.sync_all());
-                    match written {
-                        Ok(()) => Ok(path),
-                        Err(e) => {
-                            let _ = std::fs::remove_file(&path);
-                            Err(e)
-                        }
-                    }
-                },
-            );
+        let res = create_temp(&self.dir, name).and_then(|(file, path)| {
+            let mut w = BufWriter::new(file);
+            let written =
+                f(&mut w).and_then(|_| w.flush()).and_then(|_| w.into_inner().map_err(|e| e.into_error())?.sync_all());
+            match written {
+                Ok(()) => Ok(path),
+                Err(e) => {
+                    let _ = std::fs::remove_file(&path);
+                    unregister(&path);
+                    Err(e)
+                }
+            }
+        });
         match res {
             Ok(tmp) => {
                 self.pending.push((tmp, fin));
@@ -102,10 +167,47 @@ impl Staging {
 
     /// Renames every staged file into place.
     pub fn commit(mut self) -> Result<Vec<PathBuf>, Error> {
-        let mut done = Vec::new();
-        for (tmp, fin) in std::mem::take(&mut self.pending) {
-            std::fs::rename(&tmp, &fin).map_err(|e| Error::Output { path: fin.clone(), source: e })?;
-            done.push(fin);
+        // All or nothing: previous files of the same names are moved aside first, the new
+        // ones renamed in, and on any failure the new ones are removed and the previous ones
+        // put back, so the folder ends as the complete new set or the previous one.
+        let pending = std::mem::take(&mut self.pending);
+        let mut aside: Vec<(PathBuf, PathBuf)> = Vec::new();
+        let mut done: Vec<PathBuf> = Vec::new();
+        let fail = |e: std::io::Error, path: &Path, aside: &[(PathBuf, PathBuf)], done: &[PathBuf]| {
+            for f in done {
+                let _ = std::fs::remove_file(f);
+            }
+            for (old, fin) in aside {
+                let _ = std::fs::rename(old, fin);
+            }
+            for (tmp, _) in &pending {
+                let _ = std::fs::remove_file(tmp);
+                unregister(tmp);
+            }
+            Error::Output { path: path.to_path_buf(), source: e }
+        };
+        for (_, fin) in &pending {
+            if fin.exists() {
+                let name = fin.file_name().and_then(|n| n.to_str()).unwrap_or("file");
+                let old = create_temp(&self.dir, name).map(|(_, p)| p);
+                match old.and_then(|old| std::fs::rename(fin, &old).map(|_| old)) {
+                    Ok(old) => {
+                        aside.push((old, fin.clone()));
+                    }
+                    Err(e) => return Err(fail(e, fin, &aside, &done)),
+                }
+            }
+        }
+        for (tmp, fin) in &pending {
+            if let Err(e) = std::fs::rename(tmp, fin) {
+                return Err(fail(e, fin, &aside, &done));
+            }
+            unregister(tmp);
+            done.push(fin.clone());
+        }
+        for (old, _) in &aside {
+            let _ = std::fs::remove_file(old);
+            unregister(old);
         }
         self.committed = true;
         Ok(done)
@@ -117,6 +219,7 @@ impl Drop for Staging {
         if !self.committed {
             for (tmp, _) in &self.pending {
                 let _ = std::fs::remove_file(tmp);
+                unregister(tmp);
             }
             if self.created_dir {
                 let _ = std::fs::remove_dir(&self.dir);

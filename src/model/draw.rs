@@ -40,6 +40,8 @@ pub struct DrawSpec {
     pub mode: Mode,
     /// Areas to draw in (lon/lat); empty: the grid box.
     pub include: Vec<Polygon<f64>>,
+    /// The areas file, if any (an input no output may overwrite).
+    pub areas_path: Option<std::path::PathBuf>,
     /// Areas cut out (features with `kind = "exclusion"`).
     pub exclude: Vec<Polygon<f64>>,
     /// Antenna of drawn nodes (the `[antenna]` defaults): pattern, power, height, activity.

@@ -193,6 +193,15 @@ impl Scenario {
     pub fn install(&self) -> &InstallSettings {
         &self.install
     }
+    /// Every file the scenario was read from (scenario, nodes, draw areas): no output may
+    /// overwrite one.
+    pub fn input_files(&self) -> Vec<&std::path::Path> {
+        let mut v = vec![self.path.as_path(), self.nodes_path.as_path()];
+        if let Some(a) = self.draw.as_ref().and_then(|d| d.areas_path.as_deref()) {
+            v.push(a);
+        }
+        v
+    }
     /// The same scenario with other fading and shadowing.
     pub fn with_fading(self, fading: FadingSpec) -> Scenario {
         Scenario { fading, ..self }

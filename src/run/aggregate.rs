@@ -28,6 +28,8 @@ pub struct AggregateOptions {
     pub outage: f64,
     /// Output folder for `cdf.csv`, `cdf.png`, `cdf.svg` and `aggregate.json`.
     pub out: Option<PathBuf>,
+    /// Files the run read (the scenario's), which no output may overwrite.
+    pub inputs: Vec<PathBuf>,
 }
 
 /// What an `aggregate` run produced.
@@ -93,7 +95,7 @@ pub fn run_aggregate(spec: &FieldSpec, o: &AggregateOptions) -> Result<Aggregate
     }
     // Opened before the computation, so an unwritable folder fails early.
     let stage = match &o.out {
-        Some(dir) => Some(Staging::new(dir, &[])?),
+        Some(dir) => Some(Staging::new(dir, &o.inputs.iter().map(PathBuf::as_path).collect::<Vec<_>>())?),
         None => None,
     };
     let req = Request {

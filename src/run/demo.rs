@@ -50,5 +50,6 @@ pub fn aggregate_options(out: &Path) -> AggregateOptions {
         budget_dbm: None,
         outage: 0.01,
         out: Some(out.to_path_buf()),
+        inputs: Vec::new(),
     }
 }

@@ -92,7 +92,7 @@ pub fn markers_and_links(sc: &Scenario) -> (Vec<Marker>, Vec<(usize, usize)>) {
 /// Runs the map job and writes every output into `opts.out`.
 pub fn run_map(sc: &Scenario, opts: &MapOptions) -> Result<MapResult, Error> {
     check_memory(sc, opts.layers.count(), opts.max_memory_mib)?;
-    let mut st = Staging::new(&opts.out, &[&sc.path, &sc.nodes_path])?;
+    let mut st = Staging::new(&opts.out, &sc.input_files())?;
     let t0 = Instant::now();
     let eopts = Options { layers: opts.layers, cutoff_m: opts.cutoff_m, progress: opts.progress };
     let (layers, used) = match &sc.draw {

@@ -6,3 +6,10 @@ pub mod demo;
 pub mod draw;
 pub mod links;
 pub mod map;
+
+/// Removes the temporaries of every run in this process (for a SIGINT/SIGTERM handler: the
+/// binary calls it before exiting; the next run into a folder also removes what a killed run
+/// left there).
+pub fn remove_temporaries() {
+    crate::io::staging::remove_pending();
+}
