@@ -192,3 +192,19 @@ fn interrupted_runs_leave_no_temporaries() {
         }
     }
 }
+
+/// Regression (messages without the culprit): invalid UTF-8 names its line and column, and a
+/// negative number given to an integer flag is reported with the flag's name.
+#[test]
+fn messages_name_the_culprit() {
+    let (d, p) = site(TOML, NODES);
+    let mut bytes = TOML.as_bytes().to_vec();
+    let at = TOML.find("[grid]").unwrap();
+    bytes.insert(at, 0xff);
+    std::fs::write(d.path().join("scenario.toml"), bytes).unwrap();
+    let line = TOML[..at].matches('\n').count() + 1;
+    refused(&["check", &p], &format!("line {line}, column 1"));
+    let o = run(&["probe", &p, "--at", "50,8", "--monte-carlo", "-5"]);
+    assert_eq!(o.status.code(), Some(2));
+    assert!(stderr(&o).contains("--monte-carlo"), "{}", stderr(&o));
+}

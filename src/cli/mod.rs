@@ -18,7 +18,7 @@ pub struct Cli {
     #[command(subcommand)]
     cmd: Cmd,
     /// Worker threads (default: all cores). Results do not depend on it.
-    #[arg(long, global = true)]
+    #[arg(allow_hyphen_values = true, long, global = true)]
     threads: Option<usize>,
     /// No progress bar or chatter on stderr.
     #[arg(long, global = true)]
@@ -46,10 +46,10 @@ enum Cmd {
         #[arg(long)]
         json: bool,
         /// Cross-check the coverage probability with this many seeded Monte Carlo trials.
-        #[arg(long, value_name = "N")]
+        #[arg(allow_hyphen_values = true, long, value_name = "N")]
         monte_carlo: Option<usize>,
         /// Seed of the Monte Carlo.
-        #[arg(long, default_value_t = 1)]
+        #[arg(allow_hyphen_values = true, long, default_value_t = 1)]
         seed: u64,
     },
     /// Check every planned link (node with a `peer`) and write the link table, the installer
@@ -64,10 +64,10 @@ enum Cmd {
         #[arg(long)]
         strict: bool,
         /// Cross-check each link's coverage with this many seeded Monte Carlo trials.
-        #[arg(long, value_name = "N")]
+        #[arg(allow_hyphen_values = true, long, value_name = "N")]
         monte_carlo: Option<usize>,
         /// Seed of the Monte Carlo (link k uses seed + k).
-        #[arg(long, default_value_t = 1)]
+        #[arg(allow_hyphen_values = true, long, default_value_t = 1)]
         seed: u64,
         /// Leave the maps out of the report (faster on large grids).
         #[arg(long)]
@@ -76,7 +76,7 @@ enum Cmd {
         #[arg(long)]
         json: bool,
         /// Refuse map grids whose layers need more memory than this (MiB).
-        #[arg(long, default_value_t = 8192)]
+        #[arg(allow_hyphen_values = true, long, default_value_t = 8192)]
         max_memory_mib: u64,
     },
     /// Validate a scenario and its node file; list every problem.
@@ -84,7 +84,7 @@ enum Cmd {
         /// Scenario file (TOML).
         scenario: PathBuf,
         /// Memory limit for a full map of this scenario (MiB).
-        #[arg(long, default_value_t = 8192)]
+        #[arg(allow_hyphen_values = true, long, default_value_t = 8192)]
         max_memory_mib: u64,
     },
     /// Characterise the aggregate interference of a random (Poisson) field of interferers at a
@@ -99,7 +99,7 @@ enum Cmd {
         #[arg(long)]
         out: PathBuf,
         /// Seed (default: the [draw] table's).
-        #[arg(long)]
+        #[arg(allow_hyphen_values = true, long)]
         seed: Option<u64>,
     },
     /// Run the map on the bundled demo scenario.
@@ -186,10 +186,10 @@ struct AggArgs {
     #[arg(long = "threshold-dbm", allow_hyphen_values = true)]
     thresholds_dbm: Vec<f64>,
     /// Monte Carlo realisations (0: none).
-    #[arg(long, default_value_t = 0)]
+    #[arg(allow_hyphen_values = true, long, default_value_t = 0)]
     realizations: usize,
     /// Monte Carlo seed.
-    #[arg(long, default_value_t = 1)]
+    #[arg(allow_hyphen_values = true, long, default_value_t = 1)]
     seed: u64,
     /// One curve set per value: KEY=V1,V2,... with KEY beamwidth_deg, sidelobe_dbi,
     /// density_per_km2 or k_db.
@@ -228,10 +228,10 @@ struct MapArgs {
     #[arg(long)]
     cutoff_m: Option<f64>,
     /// Refuse grids whose layers need more memory than this (MiB).
-    #[arg(long, default_value_t = 8192)]
+    #[arg(allow_hyphen_values = true, long, default_value_t = 8192)]
     max_memory_mib: u64,
     /// With a [draw] table: average the layers over this many independent layouts.
-    #[arg(long, default_value_t = 1)]
+    #[arg(allow_hyphen_values = true, long, default_value_t = 1)]
     realizations: usize,
 }
 

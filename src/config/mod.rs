@@ -16,5 +16,14 @@ pub(crate) fn read_input(path: &std::path::Path) -> std::io::Result<String> {
     if !m.is_file() {
         return Err(std::io::Error::other("not a regular file (a folder, FIFO or device is not an input)"));
     }
-    std::fs::read_to_string(path)
+    let bytes = std::fs::read(path)?;
+    String::from_utf8(bytes).map_err(|e| {
+        let ok = e.utf8_error().valid_up_to();
+        let before = &e.as_bytes()[..ok];
+        let line = before.iter().filter(|&&b| b == b'\n').count() + 1;
+        let col = String::from_utf8_lossy(before.rsplit(|&b| b == b'\n').next().unwrap_or(&[])).chars().count() + 1;
+        std::io::Error::other(format!(
+            "not valid UTF-8 at line {line}, column {col} (byte {ok}); save the file as UTF-8"
+        ))
+    })
 }
