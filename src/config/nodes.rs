@@ -181,18 +181,19 @@ fn parse_feature(
 ) -> Option<Node> {
     let props = f.properties.clone().unwrap_or_default();
     let exact = |n: &serde_json::Number| (n.is_u64() || n.is_i64()).then(|| n.to_string());
+    let inexact = |n: &serde_json::Number| {
+        Problem::new(
+            file,
+            Some(format!("feature {i}")),
+            "id",
+            format!("value {n} is not an integer that compares exactly (within ±2^63); write such an id as a string"),
+        )
+    };
     let id = match props.get("id").or(None) {
         Some(Value::String(s)) if !s.trim().is_empty() => Some(s.clone()),
         Some(Value::Number(n)) if exact(n).is_some() => exact(n),
         Some(Value::Number(n)) => {
-            probs.push(Problem::new(
-                file,
-                Some(format!("feature {i}")),
-                "id",
-                format!(
-                    "value {n} is not an integer that compares exactly (within ±2^63); write such an id as a string"
-                ),
-            ));
+            probs.push(inexact(n));
             None
         }
         Some(v) => {
@@ -204,30 +205,23 @@ fn parse_feature(
             ));
             None
         }
-        None => {
-            match &f.id {
-                Some(geojson::feature::Id::String(s)) => Some(s.clone()),
-                Some(geojson::feature::Id::Number(n)) if exact(n).is_some() => exact(n),
-                Some(geojson::feature::Id::Number(n)) => {
-                    probs.push(Problem::new(
+        None => match &f.id {
+            Some(geojson::feature::Id::String(s)) => Some(s.clone()),
+            Some(geojson::feature::Id::Number(n)) if exact(n).is_some() => exact(n),
+            Some(geojson::feature::Id::Number(n)) => {
+                probs.push(inexact(n));
+                None
+            }
+            None => {
+                probs.push(Problem::new(
                     file,
                     Some(format!("feature {i}")),
                     "id",
-                    format!("value {n} is not an integer that compares exactly (within ±2^63); write such an id as a string"),
+                    "missing; every node needs a unique id (string or number)",
                 ));
-                    None
-                }
-                None => {
-                    probs.push(Problem::new(
-                        file,
-                        Some(format!("feature {i}")),
-                        "id",
-                        "missing; every node needs a unique id (string or number)",
-                    ));
-                    None
-                }
+                None
             }
-        }
+        },
     };
     let feat = match &id {
         Some(id) => format!("feature {i} (id {id})"),
