@@ -340,13 +340,14 @@ pub fn run(cli: Cli) -> anyhow::Result<ExitCode> {
                     );
                 }
                 println!(
-                    "{}: ok: {} nodes, grid {} x {} cells of {} m, noise {:.2} dBm",
+                    "{}: ok: {} nodes, grid {} x {} cells of {} m, noise {:.2} dBm, a full map needs about {:.0} MiB",
                     scenario.display(),
                     sc.nodes().len(),
                     sc.grid().cols(),
                     sc.grid().rows(),
                     sc.grid().cell_m(),
-                    sc.noise_dbm()
+                    sc.noise_dbm(),
+                    sc.grid().estimate_bytes(LayerSet::ALL.count(), rayon::current_num_threads()) as f64 / 1048576.0
                 );
                 Ok(ExitCode::SUCCESS)
             }

@@ -75,6 +75,18 @@ impl FieldSpec {
         chk("--rx-beamwidth-deg", self.rx.0, Range::BEAMWIDTH);
         chk("--rx-gain-dbi", self.rx.1, Range::GAIN);
         chk("--rx-sidelobe-dbi", self.rx.2, Range::closed(-60.0, self.rx.1, "dBi (not above --rx-gain-dbi)"));
+        // Interferers per realisation grow with density × area: refuse what would not fit.
+        let reach = self.radius_m + self.hard_core_m;
+        let per_realisation = self.density_per_km2 * self.keep * std::f64::consts::PI * reach * reach / 1e6;
+        if per_realisation > MAX_INTERFERERS {
+            p.push(Problem::flag(
+                "--density-per-km2",
+                format!(
+                    "value {} on a {reach} m disc means about {per_realisation:.0} interferers per realisation; at most {MAX_INTERFERERS:.0}: lower the density or --radius-m",
+                    self.density_per_km2
+                ),
+            ));
+        }
         if self.guard_m >= self.radius_m {
             p.push(Problem::new(
                 "(command line)",
@@ -184,6 +196,9 @@ impl FieldSpec {
         Ok(s)
     }
 }
+
+/// Most interferers per Monte Carlo realisation (about 40 bytes each, per thread).
+pub const MAX_INTERFERERS: f64 = 2e7;
 
 /// The command-line flag of a model parameter.
 fn flag_of(key: &str) -> &'static str {

@@ -15,6 +15,10 @@ use crate::model::pathloss::{LawParams, PathLoss};
 use crate::model::scenario::{InstallSettings, LinkSettings, Radio, Receiver, ReceiverAntenna, Scenario, Thresholds};
 use std::path::Path;
 
+/// Most nodes a `[draw]` table may draw on average (each costs about 200 bytes, and a map costs
+/// time in proportion to nodes × cells).
+pub const MAX_DRAWN_NODES: f64 = 2e6;
+
 /// How far from the layout's centre lobemap computes, km: the tangent plane's distances
 /// stay within 31 ppm of Karney geodesics out to 50 km (1 − cos(d/R)) and its bearings,
 /// corrected by the meridian convergence, within 0.01° (tested in `geometry::frame`).
@@ -307,6 +311,22 @@ impl Scenario {
         let grid = Grid::new(bbox, raw.grid.cell_m)
             .map_err(|m| Error::input(Problem::new(&file, Some("[grid]".into()), "cell_m", m)))?;
         let (clon, clat) = grid.bbox().centre();
+        if let Some(d) = &draw {
+            // Drawn nodes grow with density × area: refuse what would not fit in memory.
+            let area_km2 = grid.cells() as f64 * grid.cell_m() * grid.cell_m() / 1e6;
+            let expected = d.density_per_km2 * d.keep * area_km2;
+            if expected > MAX_DRAWN_NODES {
+                return Err(Error::input(Problem::new(
+                    &file,
+                    Some("[draw]".into()),
+                    "density_per_km2",
+                    format!(
+                        "value {} on the grid's {area_km2:.2} km² would draw about {expected:.0} nodes; at most {MAX_DRAWN_NODES:.0} are drawn: lower the density or the area",
+                        d.density_per_km2
+                    ),
+                )));
+            }
+        }
         let (corner_e, corner_n) = LocalFrame::new(clat, clon).to_local(grid.bbox().east, grid.bbox().north);
         let half_diagonal_km = corner_e.hypot(corner_n) / 1000.0;
         if half_diagonal_km > MAX_EXTENT_KM {

@@ -142,12 +142,16 @@ impl Grid {
             .then_some((r as usize, c as usize))
     }
 
-    /// Estimated peak memory in bytes for computing and writing `layers` float32 layers:
-    /// 4 bytes a cell a layer, plus per-thread row buffers.
+    /// Estimated peak memory in bytes for computing and writing `layers` float32 layers: 4
+    /// bytes a cell a layer, 4 more a cell for the zone contours (a below-level copy of the
+    /// coverage layer), per-thread row buffers, and 32 MiB for the heatmap image (at most
+    /// about 2600 × 2400 RGB), the PNG encoder and the program itself. Measured peaks on the
+    /// demo at 2, 1 and 0.5 m cells (0.56, 2.3 and 9.0 million cells, five layers) were 23,
+    /// 65 and 220 MB against estimates of 47, 88 and 250 MB (BENCHMARKS.md).
     pub fn estimate_bytes(&self, layers: usize, threads: usize) -> u64 {
-        let per_layer = self.cells() as u64 * 4;
-        let row_scratch = self.cols as u64 * 4 * 12 * threads as u64;
-        per_layer * layers as u64 + row_scratch
+        let cells = self.cells() as u64;
+        let row_scratch = (self.cols as u64).saturating_mul(4 * 12).saturating_mul(threads as u64);
+        cells.saturating_mul(4 * layers as u64 + 4).saturating_add(row_scratch).saturating_add(32 << 20)
     }
 }
 
