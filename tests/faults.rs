@@ -232,7 +232,15 @@ fn memory_estimate_bounds_the_measured_peak() {
         let out = String::from_utf8_lossy(&c.stdout).to_string();
         let mib: f64 = out.split("needs about ").nth(1).unwrap().split(' ').next().unwrap().parse().unwrap();
         let o = std::process::Command::new("/usr/bin/time")
-            .args(["-f", "%M", env!("CARGO_BIN_EXE_lobemap"), "map", p.to_str().unwrap(), "--quiet", "--out"])
+            .args([
+                "-f",
+                "%M",
+                &std::env::var("LOBEMAP_TEST_BIN").unwrap_or_else(|_| env!("CARGO_BIN_EXE_lobemap").to_string()),
+                "map",
+                p.to_str().unwrap(),
+                "--quiet",
+                "--out",
+            ])
             .arg(d.path().join("out"))
             .output()
             .unwrap();
@@ -252,4 +260,126 @@ fn growth_with_input_is_guarded() {
     let (_d, p) = site(&toml, NODES);
     refused(&["check", &p], "would draw about");
     refused(&["aggregate", "--density-per-km2", "1000000", "--radius-m", "10000"], "interferers per realisation");
+}
+
+/// A seeded mutation campaign over the node file and the scenario file (deleted, duplicated
+/// and truncated lines, numbers replaced by extremes, inserted bytes, misspelt keys), each
+/// case through `check`, `map` and `links` with a time limit. For every case: no panic, no
+/// hang, exit 0 or 2, inputs byte-identical, no temporary left, and no output folder when
+/// refused. 24 cases by default; `LOBEMAP_FAULT_CASES=N` runs more, `LOBEMAP_FAULT_BIN` runs
+/// another build (to count an older one's faults). Prints the counts.
+#[test]
+fn seeded_mutation_campaign() {
+    use rand::{RngExt, SeedableRng};
+    let cases: usize = std::env::var("LOBEMAP_FAULT_CASES").ok().and_then(|v| v.parse().ok()).unwrap_or(24);
+    let bin = std::env::var("LOBEMAP_TEST_BIN").unwrap_or_else(|_| env!("CARGO_BIN_EXE_lobemap").to_string());
+    let peered =
+        NODES.replace(r#""id":"a""#, r#""id":"a","peer":"b""#).replace(r#""id":"b""#, r#""id":"b","peer":"a""#);
+    let extremes = ["nan", "-1e308", "1e308", "0", "-0", "-5", "99999999999999999999999", "\"x\"", "[]", "{}"];
+    let mut rng = rand_pcg::Pcg64::seed_from_u64(2026);
+    let (mut ok, mut refused_n, mut panics, mut hangs, mut changed, mut partial, mut other) = (0, 0, 0, 0, 0, 0, 0);
+    for case in 0..cases {
+        let target_nodes = case % 2 == 0;
+        let base = if target_nodes { peered.clone() } else { TOML.to_string() };
+        let mut lines: Vec<String> = base.lines().map(String::from).collect();
+        let k = rng.random_range(0..lines.len());
+        match rng.random_range(0..6) {
+            0 => {
+                lines.remove(k);
+            }
+            1 => {
+                let l = lines[k].clone();
+                lines.insert(k, l);
+            }
+            2 => {
+                // A number on the line replaced by an extreme value.
+                let l = &lines[k];
+                let spans: Vec<(usize, usize)> = l
+                    .char_indices()
+                    .filter(|(_, c)| c.is_ascii_digit())
+                    .map(|(i, _)| {
+                        let end = l[i..].find(|c: char| !(c.is_ascii_digit() || c == '.')).map_or(l.len(), |e| i + e);
+                        (i, end)
+                    })
+                    .collect();
+                if let Some(&(a, b)) = spans.get(rng.random_range(0..spans.len().max(1))) {
+                    let v = extremes[rng.random_range(0..extremes.len())];
+                    lines[k] = format!("{}{}{}", &l[..a], v, &l[b..]);
+                }
+            }
+            3 => {
+                let l = lines[k].clone();
+                let cut = rng.random_range(0..l.len().max(1));
+                lines[k] = l.chars().take(cut).collect();
+            }
+            4 => {
+                let l = lines[k].clone();
+                let at = rng.random_range(0..l.len().max(1));
+                let c = ['\u{0}', '\u{7f}', '"', ',', '[', '=', 'é'][rng.random_range(0..7)];
+                lines[k] = l.chars().take(at).chain(std::iter::once(c)).chain(l.chars().skip(at)).collect();
+            }
+            _ => {
+                lines[k] = lines[k].replacen('_', "", 1).replacen("id", "di", 1);
+            }
+        }
+        let text = lines.join("\n") + "\n";
+        let (toml, nodes) = if target_nodes { (TOML.to_string(), text) } else { (text, peered.clone()) };
+        let (d, p) = site(&toml, &nodes);
+        let inputs = [std::fs::read(&p).unwrap(), std::fs::read(d.path().join("nodes.geojson")).unwrap()];
+        for cmd in ["check", "map", "links"] {
+            let out = d.path().join(format!("out-{cmd}"));
+            let mut args = vec![cmd.to_string(), p.clone()];
+            if cmd != "check" {
+                args.extend(["--out".into(), out.to_str().unwrap().into(), "--quiet".into(), "--no-maps".into()]);
+                if cmd == "map" {
+                    args.pop();
+                }
+            }
+            let mut child = std::process::Command::new(&bin)
+                .args(&args)
+                .stdout(std::process::Stdio::null())
+                .stderr(std::process::Stdio::null())
+                .spawn()
+                .unwrap();
+            let t0 = std::time::Instant::now();
+            let status = loop {
+                if let Some(s) = child.try_wait().unwrap() {
+                    break Some(s);
+                }
+                if t0.elapsed().as_secs() > 20 {
+                    let _ = child.kill();
+                    let _ = child.wait();
+                    break None;
+                }
+                std::thread::sleep(std::time::Duration::from_millis(10));
+            };
+            match status.and_then(|s| s.code()) {
+                None => hangs += 1,
+                Some(0) => ok += 1,
+                Some(2) => {
+                    refused_n += 1;
+                    if out.exists() && std::fs::read_dir(&out).map(|r| r.count()).unwrap_or(0) > 0 {
+                        partial += 1;
+                    }
+                }
+                Some(101) => panics += 1,
+                Some(_) => other += 1,
+            }
+            if out.exists() {
+                let temps = std::fs::read_dir(&out)
+                    .unwrap()
+                    .filter_map(|e| e.ok()?.file_name().into_string().ok())
+                    .filter(|n| n.starts_with('.'))
+                    .count();
+                partial += (temps > 0) as usize;
+            }
+        }
+        let now = [std::fs::read(&p).unwrap(), std::fs::read(d.path().join("nodes.geojson")).unwrap()];
+        changed += (now != inputs) as usize;
+    }
+    let runs = 3 * cases;
+    eprintln!(
+        "fault campaign: {cases} cases, {runs} runs: {ok} ok, {refused_n} refused cleanly, {panics} panics, {hangs} hangs, {other} other exits, {changed} cases with inputs changed, {partial} partial outputs"
+    );
+    assert_eq!((panics, hangs, other, changed, partial), (0, 0, 0, 0, 0));
 }

@@ -3,8 +3,10 @@
 use std::process::{Command, Output};
 
 /// The `lobemap` binary, run from the repository folder (so `sites/…` paths resolve).
+/// `LOBEMAP_TEST_BIN` runs another build instead (to count an older build's failures).
 pub fn bin() -> Command {
-    let mut c = Command::new(env!("CARGO_BIN_EXE_lobemap"));
+    let path = std::env::var("LOBEMAP_TEST_BIN").unwrap_or_else(|_| env!("CARGO_BIN_EXE_lobemap").to_string());
+    let mut c = Command::new(path);
     c.current_dir(env!("CARGO_MANIFEST_DIR"));
     c
 }
