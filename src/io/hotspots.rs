@@ -12,7 +12,7 @@ pub(crate) fn zones_geojson(
     hot: &[crate::jobs::zones::Hotspot],
     outage: &[Region],
 ) -> geojson::FeatureCollection {
-    let round2 = |x: f64| (x * 100.0).round() / 100.0;
+    let round2 = |x: f64| crate::model::units::round_dp(x, 2);
     let feature = |r: &Region, p: serde_json::Map<String, serde_json::Value>| geojson::Feature {
         bbox: None,
         geometry: Some(geojson::Geometry::from(&r.polygon)),

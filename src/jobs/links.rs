@@ -15,7 +15,7 @@ use crate::model::coverage::CoverageModel;
 use crate::model::link::{Budget, Endpoint, Geometry, gain_toward};
 use crate::model::node::Node;
 use crate::model::scenario::Scenario;
-use crate::model::units::{db_to_lin, dbm_to_mw, mw_to_dbm};
+use crate::model::units::{db_to_lin, dbm_to_mw, mw_to_dbm, round_dp};
 use rayon::prelude::*;
 use serde::Serialize;
 
@@ -157,7 +157,7 @@ fn one(
     let n_mw = dbm_to_mw(noise_dbm);
     // Reported levels are means of the shadowed powers (E[10^(X/10)] times the unshadowed
     // ones); the coverage model takes the unshadowed ones and draws the shadowing itself.
-    let shadow = crate::model::fading::lognormal_mean(sc.fading.shadowing_db);
+    let shadow = sc.fading.shadow_mean();
     let shadow_db = crate::model::units::lin_to_db(shadow);
     let sinr = s_mw * shadow / (i_mw * shadow + n_mw);
     let sinr_db = mw_to_dbm(sinr);
@@ -170,8 +170,8 @@ fn one(
         .filter(|c| c.1 * c.2 > 0.0)
         .map(|c| Share {
             id: sc.nodes[c.0].id.clone(),
-            power_dbm: round(mw_to_dbm(c.1 * c.2) + shadow_db, 2),
-            share: round(c.1 * c.2 / i_mw, 4),
+            power_dbm: round_dp(mw_to_dbm(c.1 * c.2) + shadow_db, 2),
+            share: round_dp(c.1 * c.2 / i_mw, 4),
         })
         .collect();
     let bw_hz = sc.radio.bandwidth_mhz * 1e6;
@@ -184,33 +184,28 @@ fn one(
     LinkRow {
         from: a.id.clone(),
         to: b.id.clone(),
-        length_m: round(length_m, 2),
-        bearing_deg: round(brg, 2),
-        misalign_from_deg: round(mis_a, 2),
-        misalign_to_deg: round(mis_b, 2),
+        length_m: round_dp(length_m, 2),
+        bearing_deg: round_dp(brg, 2),
+        misalign_from_deg: round_dp(mis_a, 2),
+        misalign_to_deg: round_dp(mis_b, 2),
         misaligned_from: !a.pattern.is_omni() && mis_a.abs() > a.pattern.beamwidth_deg() / 2.0,
         misaligned_to: !b.pattern.is_omni() && mis_b.abs() > b.pattern.beamwidth_deg() / 2.0,
-        azimuth_from_should_deg: round(brg, 2),
-        azimuth_to_should_deg: round(back, 2),
-        tx_gain_dbi: round(tx_gain, 2),
-        rx_gain_dbi: round(rx_gain, 2),
-        path_loss_db: round(pl, 2),
-        signal_dbm: round(signal_dbm + shadow_db, 2),
-        interference_dbm: (i_mw > 0.0).then(|| round(mw_to_dbm(i_mw) + shadow_db, 2)),
-        noise_dbm: round(noise_dbm, 2),
-        sinr_db: round(sinr_db, 2),
-        coverage: round(coverage, 4),
-        margin_db: round(margin_db, 2),
-        capacity_mbps: round(bw_hz * se / 1e6, 1),
+        azimuth_from_should_deg: round_dp(brg, 2),
+        azimuth_to_should_deg: round_dp(back, 2),
+        tx_gain_dbi: round_dp(tx_gain, 2),
+        rx_gain_dbi: round_dp(rx_gain, 2),
+        path_loss_db: round_dp(pl, 2),
+        signal_dbm: round_dp(signal_dbm + shadow_db, 2),
+        interference_dbm: (i_mw > 0.0).then(|| round_dp(mw_to_dbm(i_mw) + shadow_db, 2)),
+        noise_dbm: round_dp(noise_dbm, 2),
+        sinr_db: round_dp(sinr_db, 2),
+        coverage: round_dp(coverage, 4),
+        margin_db: round_dp(margin_db, 2),
+        capacity_mbps: round_dp(bw_hz * se / 1e6, 1),
         top_interferers,
         passes: sinr_db >= sc.thresholds.sinr_db && coverage >= sc.thresholds.coverage_target,
         monte_carlo,
     }
-}
-
-fn round(x: f64, d: i32) -> f64 {
-    let m = 10f64.powi(d);
-    (x * m).round() / m
 }
 
 fn tops(r: &LinkRow) -> String {

@@ -24,6 +24,13 @@ pub fn mw_to_dbm(mw: f64) -> f64 {
     lin_to_db(mw)
 }
 
+/// `x` rounded to `decimals` decimal places (for written figures).
+#[inline]
+pub fn round_dp(x: f64, decimals: i32) -> f64 {
+    let m = 10f64.powi(decimals);
+    (x * m).round() / m
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;

@@ -13,7 +13,7 @@ use crate::io::writer::{Context, LayerOut, write_layer};
 use crate::jobs::zones::{hotspots, outage_zones};
 use crate::math::stats::Histogram;
 use crate::model::scenario::Scenario;
-use crate::model::units::{dbm_to_mw, mw_to_dbm};
+use crate::model::units::{dbm_to_mw, mw_to_dbm, round_dp};
 use std::path::PathBuf;
 use std::time::Instant;
 
@@ -172,7 +172,7 @@ pub fn run_map(sc: &Scenario, opts: &MapOptions) -> Result<MapResult, Error> {
         nodes: sc.nodes.len(),
         cell_m: grid.cell_m(),
         bbox: [b.west, b.south, b.east, b.north],
-        noise_dbm: round2(noise_dbm),
+        noise_dbm: round_dp(noise_dbm, 2),
         receiver: if sc.receiver.is_aimed() { "aimed" } else { "omni" }.into(),
         layers: names,
         total_dbm: layers.total.as_deref().map(|t| Spread::of(&Histogram::of(t), true)),
@@ -186,7 +186,7 @@ pub fn run_map(sc: &Scenario, opts: &MapOptions) -> Result<MapResult, Error> {
         hotspots,
         hotspot_i_over_n_db: sc.thresholds.hotspot_i_over_n_db,
         cutoff_m: opts.cutoff_m,
-        neglected_db: layers.neglected_db.map(round2),
+        neglected_db: layers.neglected_db.map(|v| round_dp(v, 2)),
         pair_evaluations: layers.pair_evaluations,
         elapsed_s: (elapsed_s * 1000.0).round() / 1000.0,
         files,
@@ -264,8 +264,4 @@ fn ensemble(sc: &Scenario, spec: &crate::model::draw::DrawSpec, eopts: &Options,
         s.iter_mut().filter(|x| **x != crate::NODATA).for_each(|x| *x /= nf);
     }
     (acc, first)
-}
-
-fn round2(x: f64) -> f64 {
-    (x * 100.0).round() / 100.0
 }
