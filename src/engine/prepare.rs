@@ -78,7 +78,7 @@ impl<'s> Engine<'s> {
             g_omni: db_to_lin(sc.receiver.omni_gain_dbi()) as f32,
             rx_aim,
             g_signal: db_to_lin(sc.receiver.max_gain_dbi()) as f32,
-            shadow_mean: crate::model::fading::lognormal_mean(sc.fading.shadowing_db) as f32,
+            shadow_mean: sc.fading.shadow_mean() as f32,
             cov: crate::model::coverage::CoverageModel::new(sc.fading, sc.thresholds.sinr_db, sc.noise_dbm()),
         }
     }

@@ -131,7 +131,7 @@ pub fn probe_with(sc: &Scenario, lat: f64, lon: f64, mc: Option<(usize, u64)>) -
     let noise_dbm = sc.noise_dbm();
     // Means of the shadowed powers: every mean is E[10^(X/10)] times the unshadowed one (the
     // coverage model takes the unshadowed ones and draws the shadowing itself).
-    let shadow = crate::model::fading::lognormal_mean(sc.fading.shadowing_db);
+    let shadow = sc.fading.shadow_mean();
     let sinr_db = mw_to_dbm(signal_mw * shadow / (interference_mw * shadow + dbm_to_mw(noise_dbm)));
     let cov = crate::model::coverage::CoverageModel::new(sc.fading, sc.thresholds.sinr_db, noise_dbm);
     let interferers: Vec<(f64, f64)> =

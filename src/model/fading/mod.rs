@@ -261,6 +261,14 @@ pub struct FadingSpec {
     pub shadowing_db: f64,
 }
 
+impl FadingSpec {
+    /// The mean shadowing gain E[10^(X/10)] (1 without shadowing): every mean power is this
+    /// times the unshadowed one.
+    pub fn shadow_mean(&self) -> f64 {
+        lognormal_mean(self.shadowing_db)
+    }
+}
+
 impl Default for FadingSpec {
     fn default() -> Self {
         FadingSpec { signal: Fading::NONE, interferer: Fading::NONE, shadowing_db: 0.0 }
