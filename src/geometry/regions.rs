@@ -22,11 +22,6 @@ pub struct Region {
 }
 
 impl Region {
-    /// The exterior ring as (lon, lat) pairs, for drawing outlines.
-    pub fn exterior_lon_lat(&self) -> Vec<(f64, f64)> {
-        self.polygon.exterior().0.iter().map(|c| (c.x, c.y)).collect()
-    }
-
     /// Every ring (the exterior, then the holes) as (lon, lat) pairs, for drawing outlines.
     pub fn rings_lon_lat(&self) -> Vec<Vec<(f64, f64)>> {
         std::iter::once(self.polygon.exterior())
