@@ -1,7 +1,6 @@
 //! End-to-end tests of the `lobemap` binary: outputs, determinism and bad input.
 
 use crate::util::{run, stderr, tol};
-use std::path::PathBuf;
 
 const GOOD_TOML: &str = r#"name = "tiny"
 nodes = "nodes.geojson"
@@ -29,14 +28,7 @@ const GOOD_NODES: &str = r#"{"type":"FeatureCollection","features":[
 {"type":"Feature","geometry":{"type":"Point","coordinates":[8.005,50.004]},"properties":{"id":7,"pattern":"omni","gain_dbi":6}}
 ]}"#;
 
-/// A scenario folder with the given texts.
-fn site(toml: &str, nodes: &str) -> (tempfile::TempDir, PathBuf) {
-    let d = tempfile::tempdir().unwrap();
-    std::fs::write(d.path().join("scenario.toml"), toml).unwrap();
-    std::fs::write(d.path().join("nodes.geojson"), nodes).unwrap();
-    let p = d.path().join("scenario.toml");
-    (d, p)
-}
+use crate::util::site;
 
 #[test]
 fn good_scenario_maps_and_checks() {

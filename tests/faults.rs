@@ -27,12 +27,10 @@ const NODES: &str = r#"{"type":"FeatureCollection","features":[
 {"type":"Feature","geometry":{"type":"Point","coordinates":[8.004,50.001]},"properties":{"id":"b"}}
 ]}"#;
 
+/// The shared scenario folder, with the path as text for argument lists.
 fn site(toml: &str, nodes: &str) -> (tempfile::TempDir, String) {
-    let d = tempfile::tempdir().unwrap();
-    std::fs::write(d.path().join("scenario.toml"), toml).unwrap();
-    std::fs::write(d.path().join("nodes.geojson"), nodes).unwrap();
-    let p = d.path().join("scenario.toml").to_str().unwrap().to_string();
-    (d, p)
+    let (d, p) = crate::util::site(toml, nodes);
+    (d, p.to_str().unwrap().to_string())
 }
 
 fn refused(args: &[&str], fragment: &str) {
