@@ -83,7 +83,13 @@ fn main() {
         interferer: lobemap::model::fading::Fading::RAYLEIGH,
         shadowing_db: 0.0,
     });
-    measure("coverage moment (Rician signal), aimed rx", &sc_ric, coverage, reps);
+    measure("coverage series (Rician K = 6 dB signal), aimed rx", &sc_ric, coverage, reps);
+    let sc_sh = layout(1000, 1000, 2.0, true).with_fading(lobemap::model::fading::FadingSpec {
+        signal: lobemap::model::fading::Fading::rician_db(9.0).unwrap(),
+        interferer: lobemap::model::fading::Fading::RAYLEIGH,
+        shadowing_db: 8.0,
+    });
+    measure("coverage mixture (Rician 9 dB signal, 8 dB shadowing), aimed rx", &sc_sh, coverage, reps);
     let sc3 = layout(1000, 1000, 3.0, false);
     measure("total, sector, exponent 3", &sc3, total, reps);
     let sc35 = layout(1000, 500, 3.5, false);

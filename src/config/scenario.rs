@@ -215,6 +215,15 @@ impl Scenario {
             None => sig,
             Some(m) => fading_law("interferer_", Some(m), fz.interferer_m.or(fz.m), fz.interferer_k_db.or(fz.k_db)),
         };
+        if let Some(signal) = sig {
+            let spec = FadingSpec { signal, interferer: intf.unwrap_or(signal), shadowing_db };
+            if shadowing_db.is_finite()
+                && (0.0..=20.0).contains(&shadowing_db)
+                && let Err(e) = crate::model::coverage::CoverageModel::check(&spec)
+            {
+                probs.push(Problem::new(&file, Some("[fading]".into()), e.key, e.message));
+            }
+        }
         let declination_date = match raw.install.declination_date.as_deref() {
             None => Some((2026, 1)),
             Some(d) => match parse_date(d) {

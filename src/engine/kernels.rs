@@ -162,6 +162,10 @@ pub(crate) struct RowBufs {
     pub(crate) tinv: Vec<f32>,
     pub(crate) cacc: Vec<f32>,
     pub(crate) cvar: Vec<f32>,
+    /// The [`STRONG`] strongest interferers per cell, strongest first: received mean power
+    /// (`top[j * cols + c]`) and node index.
+    pub(crate) top: Vec<f32>,
+    pub(crate) topi: Vec<u32>,
 }
 
 impl RowBufs {
@@ -179,6 +183,8 @@ impl RowBufs {
             tinv: vec![0.0; n],
             cacc: vec![0.0; n],
             cvar: vec![0.0; n],
+            top: vec![0.0; STRONG * n],
+            topi: vec![u32::MAX; STRONG * n],
         }
     }
 }
@@ -329,10 +335,15 @@ pub(crate) fn pass_cov_exact<D: Decay, G: TxGain, A: PairFactor, C: RxCoupling, 
     }
 }
 
-/// Coverage, moment form: Σ a p g_rx and Σ (a e2 − a² e1²)(p g_rx)².
+/// Interferers kept one by one per cell (see [`crate::model::coverage::STRONG`]).
+pub(crate) const STRONG: usize = crate::model::coverage::STRONG;
+
+/// Coverage, strong-set form: the [`STRONG`] strongest interferers of each cell (a
+/// branch-free insertion, strongest first, ties to the lower node index) beside Σ a p g_rx
+/// and Σ (a e2 − a² e1²)(p g_rx)² over all of them.
 #[inline(always)]
 #[allow(clippy::too_many_arguments)] // every parameter is monomorphised into the loop
-pub(crate) fn pass_cov_moment<D: Decay, G: TxGain, A: PairFactor, C: RxCoupling>(
+pub(crate) fn pass_cov_strong<D: Decay, G: TxGain, A: PairFactor, C: RxCoupling>(
     d: D,
     g: G,
     a: A,
@@ -346,6 +357,7 @@ pub(crate) fn pass_cov_moment<D: Decay, G: TxGain, A: PairFactor, C: RxCoupling>
     let len = b.xs.len();
     let (xs, ys, ux, uy, server) = (&b.xs[..len], &b.ys[..len], &b.ux[..len], &b.uy[..len], &b.server[..len]);
     let (acc, var, iacc) = (&mut b.cacc[..len], &mut b.cvar[..len], &mut b.iacc[..len]);
+    let (top, topi) = (&mut b.top[..STRONG * len], &mut b.topi[..STRONG * len]);
     for c in 0..len {
         let wx = xs[c] - n.x;
         let wy = ys[c] - n.y;
@@ -358,7 +370,17 @@ pub(crate) fn pass_cov_moment<D: Decay, G: TxGain, A: PairFactor, C: RxCoupling>
         let own = server[c] == n.idx;
         acc[c] += if own { 0.0 } else { n.act * q };
         var[c] += if own { 0.0 } else { coef * q * q };
-        // The interference sum of `pass_aimed`, same expression: one pass serves both layers.
         iacc[c] += if own { 0.0 } else { n.act * p * gr };
+        let mut v = if own { 0.0 } else { q };
+        let mut id = n.idx;
+        for j in 0..STRONG {
+            let k = j * len + c;
+            let (tv, ti) = (top[k], topi[k]);
+            let sw = v > tv;
+            top[k] = if sw { v } else { tv };
+            topi[k] = if sw { id } else { ti };
+            v = if sw { tv } else { v };
+            id = if sw { ti } else { id };
+        }
     }
 }

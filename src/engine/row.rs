@@ -144,10 +144,14 @@ pub(crate) fn row_body<D: Decay, A: PairFactor, C: RxCoupling>(
             let sig = e.g_signal * b.best[c];
             b.tinv[c] = if sig > 0.0 { t_lin / sig } else { 0.0 };
         }
-        let exact = e.cov.method == crate::model::coverage::Method::Exact;
+        let exact = e.cov.strong_per_cell() == 0;
         b.cacc.fill(if exact { 1.0 } else { 0.0 });
         b.cvar.fill(0.0);
         b.iacc.fill(0.0);
+        if !exact {
+            b.top.fill(0.0);
+            b.topi.fill(u32::MAX);
+        }
         let (e1, e2) = (e.cov.e1 as f32, e.cov.e2 as f32);
         for &k in &cand {
             let n = &e.nodes[k];
@@ -169,8 +173,8 @@ pub(crate) fn row_body<D: Decay, A: PairFactor, C: RxCoupling>(
             } else {
                 let coef = n.act * e2 - n.act * n.act * e1 * e1;
                 match n.lut {
-                    None => pass_cov_moment(d, Flat, a, cp, n, rx, coef, b),
-                    Some(t) => pass_cov_moment(d, Table(&e.luts[t]), a, cp, n, rx, coef, b),
+                    None => pass_cov_strong(d, Flat, a, cp, n, rx, coef, b),
+                    Some(t) => pass_cov_strong(d, Table(&e.luts[t]), a, cp, n, rx, coef, b),
                 }
             }
             pairs += cols as u64;
@@ -180,7 +184,9 @@ pub(crate) fn row_body<D: Decay, A: PairFactor, C: RxCoupling>(
     let noise = e.noise_mw as f32;
     let [mut t, mut i, mut s, mut v, cv] = out;
     if let Some(cv) = cv {
-        let exact = e.cov.method == crate::model::coverage::Method::Exact;
+        let exact = e.cov.strong_per_cell() == 0;
+        let (e1, e2) = (e.cov.e1, e.cov.e2);
+        let mut strong: Vec<(f64, f64)> = Vec::with_capacity(STRONG);
         for (c, out) in cv.iter_mut().enumerate() {
             let sig = (e.g_signal * b.best[c]) as f64;
             *out = if b.server[c] == u32::MAX || sig <= 0.0 {
@@ -188,7 +194,20 @@ pub(crate) fn row_body<D: Decay, A: PairFactor, C: RxCoupling>(
             } else if exact {
                 e.cov.from_log2_product(sig, (b.cacc[c] as f64).log2()) as f32
             } else {
-                e.cov.from_moments(sig, b.cacc[c] as f64, b.cvar[c] as f64) as f32
+                // The residual: the sums over every interferer less the strong ones.
+                strong.clear();
+                let (mut ap, mut var) = (b.cacc[c] as f64, b.cvar[c] as f64);
+                for j in 0..STRONG {
+                    let (q, id) = (b.top[j * cols + c] as f64, b.topi[j * cols + c]);
+                    if id == u32::MAX || q <= 0.0 {
+                        break;
+                    }
+                    let act = e.nodes[id as usize].act as f64;
+                    strong.push((act, q));
+                    ap -= act * q;
+                    var -= (act * e2 - act * act * e1 * e1) * q * q;
+                }
+                e.cov.evaluate(sig, &strong, ap, var) as f32
             };
         }
     }

@@ -5,4 +5,5 @@ pub(crate) mod fastmath;
 pub mod laplace;
 pub mod quadrature;
 pub(crate) mod simd;
+pub mod special;
 pub mod stats;

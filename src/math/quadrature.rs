@@ -33,6 +33,7 @@ pub fn gauss_legendre(n: usize) -> Vec<(f64, f64)> {
 
 /// Gauss–Hermite rule normalised to the standard normal law: Σ w_j f(z_j) ≈ E\[f(Z)\],
 /// Z ~ N(0, 1) (Newton on the orthonormal Hermite recurrence, Numerical Recipes §4.5).
+#[cfg(test)]
 pub fn normal_expectation_rule(n: usize) -> Vec<(f64, f64)> {
     let pim4 = PI.powf(-0.25);
     let nf = n as f64;
