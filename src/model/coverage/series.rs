@@ -13,7 +13,7 @@
 //!   the integer form at s = m/b averaged over b with 16-point Gauss–Legendre in
 //!   t = (1 − b)^{⌈m⌉−m}, which removes the beta density's end singularity.
 //! - No fading on the signal: P = P\[W ≤ 1\], by Euler inversion of L_W(s)/s
-//!   ([`crate::math::laplace`]); the atom of W when every interferer is off is taken out of
+//!   (`math::laplace`); the atom of W when every interferer is off is taken out of
 //!   the transform and added exactly. With unfaded interferers too, W takes finitely many
 //!   values: their on/off states are enumerated.
 //!
