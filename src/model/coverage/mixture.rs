@@ -21,6 +21,7 @@
 //! - Fractional moments of the Rician power: the non-central χ² with two degrees of freedom
 //!   is a Poisson(K) mixture of Gamma(1 + j) laws (common practice).
 
+use crate::math::quadrature::normal_trapezoid_rule;
 use crate::math::special::ln_gamma_complex;
 use crate::model::fading::{Fading, FadingKind};
 use num_complex::Complex64;
@@ -91,22 +92,6 @@ pub fn small_scale_survival(law: Fading, x: f64) -> f64 {
     }
 }
 
-/// The standard normal expectation rule used for shadowing: the trapezoidal rule with step
-/// 0.05 on \[−9, 9\] (exact to far below 1e−10 for the smooth integrands here), weights
-/// normalised to sum to 1.
-pub(crate) fn shadow_rule(step: f64) -> Vec<(f64, f64)> {
-    let n = (9.0 / step).round() as i64;
-    let mut r: Vec<(f64, f64)> = (-n..=n)
-        .map(|i| {
-            let z = i as f64 * step;
-            (z, (-0.5 * z * z).exp())
-        })
-        .collect();
-    let s: f64 = r.iter().map(|p| p.1).sum();
-    r.iter_mut().for_each(|p| p.1 /= s);
-    r
-}
-
 /// P\[h₀X₀ ≥ x\] with median-1 log-normal X₀ of log-standard deviation `s_ln` (nepers).
 pub fn shadowed_survival(law: Fading, s_ln: f64, x: f64) -> f64 {
     if s_ln <= 0.0 {
@@ -116,7 +101,7 @@ pub fn shadowed_survival(law: Fading, s_ln: f64, x: f64) -> f64 {
         // P[X₀ ≥ x] = Φ(−ln x / s).
         return 0.5 * statrs::function::erf::erfc(x.ln() / s_ln / std::f64::consts::SQRT_2);
     }
-    shadow_rule(0.05)
+    normal_trapezoid_rule(0.05)
         .iter()
         .map(|&(z, w)| w * small_scale_survival(law, x * (-s_ln * z).exp()))
         .sum::<f64>()
@@ -224,7 +209,7 @@ const TABLE_STEPS_PER_NP: f64 = 64.0;
 impl TransformTable {
     /// The table for `law` under shadowing `s_ln` (nepers, ≥ 0).
     pub fn new(law: Fading, s_ln: f64) -> TransformTable {
-        let rule = if s_ln > 0.0 { shadow_rule(0.1) } else { vec![(0.0, 1.0)] };
+        let rule = if s_ln > 0.0 { normal_trapezoid_rule(0.1) } else { vec![(0.0, 1.0)] };
         let xs: Vec<(f64, f64)> = rule.iter().map(|&(z, w)| ((s_ln * z).exp(), w)).collect();
         let n = ((TABLE_U1 - TABLE_U0) * TABLE_STEPS_PER_NP) as usize + 1;
         let values = (0..n)
@@ -258,9 +243,7 @@ impl TransformTable {
 mod tests {
     use super::*;
 
-    fn sln(db: f64) -> f64 {
-        db * std::f64::consts::LN_10 / 10.0
-    }
+    use crate::model::fading::shadowing_nepers as sln;
 
     // The mixture reproduces the shadowed survival it represents, computed directly (normal
     // quadrature of the small-scale survival: statrs' regularised gamma for Nakagami, the

@@ -32,7 +32,7 @@
 pub mod mixture;
 pub mod series;
 
-use crate::model::fading::{Fading, FadingKind, lognormal_moment};
+use crate::model::fading::{Fading, FadingKind, lognormal_moment, shadowing_nepers};
 
 use crate::model::fading::FadingSpec;
 use crate::model::units::{db_to_lin, dbm_to_mw};
@@ -116,7 +116,7 @@ impl CoverageModel {
     /// Rician K under less than [`MIN_SHADOWING_DB`] of shadowing) is refused, naming the
     /// allowed values.
     pub fn check(spec: &FadingSpec) -> Result<(), crate::error::ModelError> {
-        let s_ln = spec.shadowing_db * std::f64::consts::LN_10 / 10.0;
+        let s_ln = shadowing_nepers(spec.shadowing_db);
         if spec.shadowing_db == 0.0
             || spec.signal == Fading::RAYLEIGH
             || mixture::Mixture::new(spec.signal, s_ln).is_some()
@@ -137,7 +137,7 @@ impl CoverageModel {
     pub fn new(spec: FadingSpec, sinr_db: f64, noise_dbm: f64) -> CoverageModel {
         let e1 = lognormal_moment(spec.shadowing_db, 1);
         let ex2 = lognormal_moment(spec.shadowing_db, 2);
-        let s_ln = spec.shadowing_db * std::f64::consts::LN_10 / 10.0;
+        let s_ln = shadowing_nepers(spec.shadowing_db);
         let (mut mixture, mut table) = (None, None);
         let method = if spec.shadowing_db > 0.0 {
             mixture = mixture::Mixture::new(spec.signal, s_ln);
@@ -292,7 +292,7 @@ impl CoverageModel {
     pub fn monte_carlo(&self, s_mw: f64, interferers: &[(f64, f64)], trials: usize, seed: u64) -> (f64, f64, f64) {
         const CHUNK: usize = 4096;
         let chunks = trials.div_ceil(CHUNK);
-        let sigma_ln = self.spec.shadowing_db * std::f64::consts::LN_10 / 10.0;
+        let sigma_ln = self.s_ln;
         let hits: usize = (0..chunks)
             .into_par_iter()
             .map(|c| {

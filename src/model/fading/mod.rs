@@ -236,16 +236,22 @@ impl Sampler {
     }
 }
 
+/// The log-standard deviation in nepers, s = σ ln10 / 10, of a shadowing σ in dB: 10^(X/10)
+/// = e^{sZ} with Z standard normal.
+pub fn shadowing_nepers(sigma_db: f64) -> f64 {
+    sigma_db * std::f64::consts::LN_10 / 10.0
+}
+
 /// Mean of the linear gain 10^(X/10) for log-normal shadowing X ~ N(0, σ²) in dB:
 /// exp((σ ln10 / 10)² / 2) (moment generating function of the normal law).
 pub fn lognormal_mean(sigma_db: f64) -> f64 {
-    let s = sigma_db * std::f64::consts::LN_10 / 10.0;
+    let s = shadowing_nepers(sigma_db);
     (s * s / 2.0).exp()
 }
 
 /// n-th moment of 10^(X/10), X ~ N(0, σ²) in dB: exp(n² s² / 2), s = σ ln10 / 10.
 pub fn lognormal_moment(sigma_db: f64, n: u32) -> f64 {
-    let s = sigma_db * std::f64::consts::LN_10 / 10.0;
+    let s = shadowing_nepers(sigma_db);
     ((n * n) as f64 * s * s / 2.0).exp()
 }
 
