@@ -119,6 +119,12 @@ pub struct Mixture {
     pub weight: Vec<f64>,
     /// Σ |w_q|.
     pub condition: f64,
+    /// ln λ_q in table steps (an integer: 64 ln λ_q).
+    pub grid: Vec<i64>,
+    /// Σ_{i<q} w_i, q = 0 ..= len.
+    pub prefix_weight: Vec<f64>,
+    /// Σ_{i<q} w_i λ_i, q = 0 ..= len.
+    pub prefix_weight_lambda: Vec<f64>,
 }
 
 impl Mixture {
@@ -155,14 +161,18 @@ impl Mixture {
         };
         let (c_pos, c_neg) = (0.5, -0.45 * m_eff);
         let (r_pos, r_neg) = (line(c_pos), line(c_neg));
-        let h = (0.35 * s_ln).min(0.5);
-        let (v_lo, v_hi) = (-12.0 * s_ln - 14.0, 12.0 * s_ln + 60.0);
-        let nv = ((v_hi - v_lo) / h).ceil() as usize;
-        let mut lambda = Vec::new();
-        let mut ln_lambda = Vec::new();
-        let mut weight = Vec::new();
+        // Node step: 0.35 s resolves g's oscillation for nearly deterministic signals; at most
+        // 1 Np, where the integrands e^{−e^v y}, analytic for |Im v| < π/2, leave a
+        // trapezoidal error near e^{−π²} ≈ 5e−5 (checked in the tests below). Steps and nodes
+        // are whole table steps (1/64 Np), so one cell's lookups share their fractions.
+        let steps = ((0.35 * s_ln * TABLE_STEPS_PER_NP).round() as i64).clamp(1, TABLE_STEPS_PER_NP as i64);
+        let h = steps as f64 / TABLE_STEPS_PER_NP;
+        let first = ((-12.0 * s_ln - 14.0) * TABLE_STEPS_PER_NP).floor() as i64;
+        let nv = ((12.0 * s_ln + 60.0 + 12.0 * s_ln + 14.0) / h).ceil() as i64;
+        let mut nodes: Vec<(i64, f64)> = Vec::new();
         for i in 0..=nv {
-            let v = v_lo + i as f64 * h;
+            let grid = first + i * steps;
+            let v = grid as f64 / TABLE_STEPS_PER_NP;
             let (c, r) = if v < 0.0 { (c_pos, &r_pos) } else { (c_neg, &r_neg) };
             // g(v) = (1/π) Σ Re[e^{zv} R(z)] Δτ.
             let mut acc = 0.0;
@@ -171,20 +181,38 @@ impl Mixture {
                 let ph = Complex64::from_polar(ecv, k as f64 * dtau * v);
                 acc += (ph * rz).re;
             }
-            let g = acc * dtau / std::f64::consts::PI;
-            let w = h * g;
-            if w.abs() > 1e-14 {
-                lambda.push(v.exp());
-                ln_lambda.push(v);
-                weight.push(w);
-            }
+            nodes.push((grid, h * acc * dtau / std::f64::consts::PI));
         }
+        // Drop the tails whose |weights| sum to at most 1e−7 in all (a bound on what it
+        // changes, since every L_W ≤ 1).
+        let (mut lo, mut hi) = (0, nodes.len());
+        let mut dropped = 0.0;
+        loop {
+            let (a, b) = (nodes[lo].1.abs(), nodes[hi - 1].1.abs());
+            let next = a.min(b);
+            if hi - lo <= 1 || dropped + next > 1e-7 {
+                break;
+            }
+            dropped += next;
+            if a <= b { lo += 1 } else { hi -= 1 }
+        }
+        let nodes = &nodes[lo..hi];
+        let lambda: Vec<f64> = nodes.iter().map(|n| (n.0 as f64 / TABLE_STEPS_PER_NP).exp()).collect();
+        let ln_lambda: Vec<f64> = nodes.iter().map(|n| n.0 as f64 / TABLE_STEPS_PER_NP).collect();
+        let grid: Vec<i64> = nodes.iter().map(|n| n.0).collect();
+        let weight: Vec<f64> = nodes.iter().map(|n| n.1).collect();
         let condition: f64 = weight.iter().map(|w| w.abs()).sum();
         let total: f64 = weight.iter().sum();
         if condition.is_nan() || condition > MAX_CONDITION || (total - 1.0).abs() > 1e-6 {
             return None;
         }
-        Some(Mixture { lambda, ln_lambda, weight, condition })
+        let mut prefix_weight = vec![0.0];
+        let mut prefix_weight_lambda = vec![0.0];
+        for (w, l) in weight.iter().zip(&lambda) {
+            prefix_weight.push(prefix_weight.last().unwrap() + w);
+            prefix_weight_lambda.push(prefix_weight_lambda.last().unwrap() + w * l);
+        }
+        Some(Mixture { lambda, ln_lambda, grid, weight, condition, prefix_weight, prefix_weight_lambda })
     }
 
     /// Σ w e^{−λ y} (for checks).
@@ -204,7 +232,7 @@ pub struct TransformTable {
 
 const TABLE_U0: f64 = -34.0;
 const TABLE_U1: f64 = 42.0;
-const TABLE_STEPS_PER_NP: f64 = 64.0;
+pub(crate) const TABLE_STEPS_PER_NP: f64 = 64.0;
 
 impl TransformTable {
     /// The table for `law` under shadowing `s_ln` (nepers, ≥ 0).
@@ -220,6 +248,29 @@ impl TransformTable {
             .collect();
         let mean = xs.iter().map(|&(x, w)| w * x).sum::<f64>();
         TransformTable { u0: TABLE_U0, inv_du: TABLE_STEPS_PER_NP, values, mean }
+    }
+
+    /// The lookup point of u = grid/64 + x as (whole steps from the table's start, fraction):
+    /// points that differ by whole steps share the fraction.
+    #[inline]
+    pub fn split(&self, x: f64) -> (i64, f64) {
+        let f = x * self.inv_du;
+        let fl = f.floor();
+        (fl as i64 - (self.u0 * self.inv_du) as i64, f - fl)
+    }
+
+    /// The value at whole step `i` (from [`Self::split`] plus a node's grid index) and
+    /// fraction `fr`; `u` is the same point in nepers, used only outside the table.
+    #[inline]
+    pub fn at_step(&self, i: i64, fr: f64, u: f64) -> f64 {
+        if i < 0 {
+            return 1.0 - u.exp() * self.mean;
+        }
+        let i = i as usize;
+        if i + 1 >= self.values.len() {
+            return *self.values.last().unwrap();
+        }
+        self.values[i] + fr * (self.values[i + 1] - self.values[i])
     }
 
     /// E\[e^{−e^u hX}\] by linear interpolation (1 − e^u E\[X\] below the table, the last value

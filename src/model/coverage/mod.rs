@@ -107,6 +107,7 @@ pub struct CoverageModel {
     s_ln: f64,
     mixture: Option<mixture::Mixture>,
     table: Option<mixture::TransformTable>,
+    plan: Option<series::Plan>,
     euler: crate::math::laplace::Euler,
 }
 
@@ -161,6 +162,7 @@ impl CoverageModel {
             s_ln,
             mixture,
             table,
+            plan: if method == Method::Series { series::Plan::new(spec.signal) } else { None },
             euler: crate::math::laplace::Euler::new(crate::math::laplace::DEFAULT_M),
         }
     }
@@ -196,8 +198,21 @@ impl CoverageModel {
         }
         let k = self.t_lin / s_mw;
         let mut noise = k * self.noise_mw;
-        let terms: Vec<(f64, f64)> =
-            strong.iter().filter(|t| t.0 > 0.0 && t.1 > 0.0).map(|&(a, p)| (a, k * p)).collect();
+        // Up to STRONG_POINT interferers one by one (on the stack: this runs per cell); any
+        // beyond join the residual.
+        let (mut res_ap, mut res_var) = (res_ap, res_var);
+        let mut buf = [(0.0, 0.0); STRONG_POINT];
+        let mut len = 0;
+        for &(a, p) in strong.iter().filter(|t| t.0 > 0.0 && t.1 > 0.0) {
+            if len < STRONG_POINT {
+                buf[len] = (a, k * p);
+                len += 1;
+            } else {
+                res_ap += a * p;
+                res_var += (a * self.e2 - a * a * self.e1 * self.e1) * p * p;
+            }
+        }
+        let terms = &buf[..len];
         let strong_mean: f64 = terms.iter().map(|t| t.0 * t.1).sum::<f64>() * self.e1;
         let mu = k * self.e1 * res_ap.max(0.0);
         let var = k * k * res_var.max(0.0);
@@ -217,7 +232,7 @@ impl CoverageModel {
         let p = match self.method {
             Method::Exact => {
                 let mut p = (-noise).exp();
-                for &(a, c) in &terms {
+                for &(a, c) in terms {
                     p *= 1.0 - a + a * intf.laplace(c);
                 }
                 if let Some((kr, th)) = res {
@@ -237,10 +252,13 @@ impl CoverageModel {
                     let n = m_r / (abar * q * self.e1);
                     (n, abar, q)
                 });
-                self.mixture_sum(noise, &terms, eq)
+                self.mixture_sum(noise, terms, eq)
             }
-            Method::Series => series::gamma_like(self.spec.signal, noise, intf, &terms, res),
-            Method::Inversion | Method::Enumeration => series::unfaded(&self.euler, noise, intf, &terms, res),
+            Method::Series => match &self.plan {
+                Some(plan) => series::gamma_like(plan, noise, intf, terms, res),
+                None => f64::NAN,
+            },
+            Method::Inversion | Method::Enumeration => series::unfaded(&self.euler, noise, intf, terms, res),
             Method::Unsupported => f64::NAN,
         };
         p.clamp(0.0, 1.0)
@@ -249,23 +267,47 @@ impl CoverageModel {
     /// Σ_q w_q e^{−λ_q n} Π_j (1 − a_j + a_j T(ln λ_q + ln c_j)) · (1 − ā + ā T(ln λ_q + ln q))ⁿ.
     fn mixture_sum(&self, noise: f64, terms: &[(f64, f64)], res: Option<(f64, f64, f64)>) -> f64 {
         let (Some(m), Some(t)) = (&self.mixture, &self.table) else { return f64::NAN };
-        let ln_c: Vec<(f64, f64)> = terms.iter().map(|&(a, c)| (a, c.ln())).collect();
-        let res_ln = res.map(|(n, a, q)| (n, a, q.ln()));
-        let mut p = 0.0;
-        for q in 0..m.lambda.len() {
-            let lam = m.lambda[q];
-            if lam * noise > 40.0 {
+        // Each interferer's lookups differ from node to node by whole table steps: split its
+        // offset ln c once into (steps, fraction).
+        let mut split = [(0.0, 0i64, 0.0, 0.0); STRONG_POINT];
+        for (o, &(a, c)) in split.iter_mut().zip(terms) {
+            let lc = c.ln();
+            let (i, fr) = t.split(lc);
+            *o = (a, i, fr, lc);
+        }
+        let split = &split[..terms.len()];
+        let res_split = res.map(|(n, a, q)| {
+            let lq = q.ln();
+            let (i, fr) = t.split(lq);
+            (n, a, i, fr, lq)
+        });
+        // Rates so small that every factor is 1 − λ·(its mean) to 1e−10 are summed in closed
+        // form from prefix sums (the error is second order, below 1e−20).
+        let mean_w = noise
+            + self.e1 * terms.iter().map(|t| t.0 * t.1).sum::<f64>()
+            + res.map(|(n, a, q)| n * a * q * self.e1).unwrap_or(0.0);
+        let q0 = if mean_w > 0.0 { m.lambda.partition_point(|&l| l * mean_w < 1e-10) } else { 0 };
+        let mut p = m.prefix_weight[q0] - mean_w * m.prefix_weight_lambda[q0];
+        for q in q0..m.lambda.len() {
+            let (lam, ll, g) = (m.lambda[q], m.ln_lambda[q], m.grid[q]);
+            // One exponential for the noise and the residual's n-th power: ln(1 − ā + āT) =
+            // ln(1 + x), by its series when x is small (the weak residual's usual case).
+            let mut expo = -lam * noise;
+            if let Some((n, abar, i, fr, lq)) = res_split {
+                let x = abar * (t.at_step(g + i, fr, ll + lq) - 1.0);
+                let ln_f = if x.abs() < 1e-2 { x * (1.0 - x * (0.5 - x * (1.0 / 3.0 - 0.25 * x))) } else { x.ln_1p() };
+                expo += n * ln_f;
+            }
+            let mut v = expo.exp();
+            for &(a, i, fr, lc) in split {
+                v *= 1.0 - a + a * t.at_step(g + i, fr, ll + lc);
+            }
+            // Every factor falls as λ grows, so once the product is below 1e−15 the remaining
+            // nodes add less than 1e−15 Σ|w| in all.
+            if v < 1e-15 {
                 break;
             }
-            let mut v = m.weight[q] * (-lam * noise).exp();
-            let ll = m.ln_lambda[q];
-            for &(a, lc) in &ln_c {
-                v *= 1.0 - a + a * t.at(ll + lc);
-            }
-            if let Some((n, abar, lq)) = res_ln {
-                v *= (1.0 - abar + abar * t.at(ll + lq)).powf(n);
-            }
-            p += v;
+            p += m.weight[q] * v;
         }
         p
     }

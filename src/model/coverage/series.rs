@@ -8,7 +8,7 @@
 //!   sum of positive terms, free of cancellation.
 //! - Rician signal: its power is a Poisson(K) mixture of Gamma(1 + j)/(K + 1) laws, so
 //!   P = Σ_k P\[J ≥ k\] \[η^k\] L_W(s(1 − η)) at s = K + 1 (the series is cut where the Poisson
-//!   tail falls below 1e−13).
+//!   tail falls below 1e−10).
 //! - Non-integer shape m: Gamma(m) = Gamma(⌈m⌉)·Beta(m, ⌈m⌉ − m) (beta–gamma algebra), so P is
 //!   the integer form at s = m/b averaged over b with 16-point Gauss–Legendre in
 //!   t = (1 − b)^{⌈m⌉−m}, which removes the beta density's end singularity.
@@ -97,76 +97,146 @@ fn mul_into(acc: &mut [f64], f: &[f64], n: usize, tmp: &mut [f64]) {
     acc[..n].copy_from_slice(&tmp[..n]);
 }
 
-/// Coefficients of L_W(s(1 − η)) to `n` terms.
-fn transform_series(s: f64, noise: f64, interferer: Fading, terms: &[Term], res: Residual, n: usize) -> Vec<f64> {
-    let mut acc = vec![0.0; n];
-    let mut f = vec![0.0; n];
-    let mut tmp = vec![0.0; n];
+/// acc ← acc · (1 − a + a (1 + x(1 − η))^{−m}) for an integer m, in O(m n): (1 − ρη)^{−1} is a
+/// running sum S_k = ρ S_{k−1} + acc_k, applied m times.
+fn mul_integer_binomial(acc: &mut [f64], a: f64, m: usize, x: f64, n: usize, tmp: &mut [f64]) {
+    let rho = x / (1.0 + x);
+    let base = if m == 1 { 1.0 / (1.0 + x) } else { (-(m as f64) * x.ln_1p()).exp() };
+    tmp[..n].copy_from_slice(&acc[..n]);
+    for _ in 0..m {
+        let mut run = 0.0;
+        for v in tmp[..n].iter_mut() {
+            run = rho * run + *v;
+            *v = run;
+        }
+    }
+    for k in 0..n {
+        acc[k] = (1.0 - a) * acc[k] + a * base * tmp[k];
+    }
+}
+
+/// The wanted signal's part of the series method, fixed per scenario: which powers of η are
+/// summed with which weights, at which rate s.
+#[derive(Debug, Clone)]
+pub struct Plan {
+    /// (rate s, weight of the whole sum, weights of η⁰ … η^{n−1}).
+    parts: Vec<(f64, f64, Vec<f64>)>,
+}
+
+impl Plan {
+    /// The plan for a Nakagami or Rician signal (`None` for other laws).
+    pub fn new(signal: Fading) -> Option<Plan> {
+        let parts = match signal.kind() {
+            FadingKind::Rayleigh => vec![(1.0, 1.0, vec![1.0])],
+            FadingKind::Nakagami { m } if (m - m.round()).abs() < 1e-9 => vec![(m, 1.0, vec![1.0; m.round() as usize])],
+            FadingKind::Nakagami { m } => {
+                let mc = m.ceil();
+                let f = mc - m;
+                let mut parts = Vec::new();
+                let mut den = 0.0;
+                for &(x, w) in &crate::math::quadrature::gauss_legendre(16) {
+                    let b = 1.0 - (0.5 * (x + 1.0)).powf(1.0 / f);
+                    if b > 0.0 {
+                        let wb = w * b.powf(m - 1.0);
+                        den += wb;
+                        parts.push((m / b, wb, vec![1.0; mc as usize]));
+                    }
+                }
+                parts.iter_mut().for_each(|p| p.1 /= den);
+                parts
+            }
+            FadingKind::Rician { k } => {
+                // Weights P[J ≥ j] for J ~ Poisson(K), cut where the tail falls below 1e−10
+                // (the coverage error of the cut is at most that).
+                let pt = super::mixture::poisson_terms(k);
+                let jmax = pt.last().map(|p| p.0 as usize).unwrap_or(0);
+                let mut tail = vec![0.0; jmax + 2];
+                for &(j, lw) in &pt {
+                    tail[j as usize] = lw.exp();
+                }
+                for j in (0..=jmax).rev() {
+                    tail[j] += tail[j + 1];
+                }
+                let n = (0..=jmax).rev().find(|&j| tail[j] > 1e-10).map(|j| j + 1).unwrap_or(1);
+                tail.truncate(n);
+                vec![(k + 1.0, 1.0, tail)]
+            }
+            FadingKind::None => return None,
+        };
+        Some(Plan { parts })
+    }
+
+    /// The longest series the plan needs.
+    fn len(&self) -> usize {
+        self.parts.iter().map(|p| p.2.len()).max().unwrap_or(1)
+    }
+}
+
+/// Coefficients of L_W(s(1 − η)) to `n` terms, into `acc` (with scratch `f`, `tmp`).
+#[allow(clippy::too_many_arguments)] // the three buffers are the caller's scratch
+fn transform_series(
+    s: f64,
+    noise: f64,
+    interferer: Fading,
+    terms: &[Term],
+    res: Residual,
+    n: usize,
+    acc: &mut [f64],
+    f: &mut [f64],
+    tmp: &mut [f64],
+) {
     // Noise: e^{−ns} e^{ns η}.
     acc[0] = (-noise * s).exp();
     for k in 1..n {
         acc[k] = acc[k - 1] * noise * s / k as f64;
     }
+    let integer_m = match interferer.kind() {
+        FadingKind::Rayleigh => Some(1),
+        FadingKind::Nakagami { m } if (m - m.round()).abs() < 1e-9 && (m.round() as usize) < n => {
+            Some(m.round() as usize)
+        }
+        _ => None,
+    };
     for &(a, c) in terms {
-        factor_series(interferer, c * s, n, &mut f);
-        f.iter_mut().for_each(|v| *v *= a);
-        f[0] += 1.0 - a;
-        mul_into(&mut acc, &f, n, &mut tmp);
+        match integer_m {
+            Some(m) => mul_integer_binomial(acc, a, m, c * s / m as f64, n, tmp),
+            None => {
+                factor_series(interferer, c * s, n, f);
+                f[..n].iter_mut().for_each(|v| *v *= a);
+                f[0] += 1.0 - a;
+                mul_into(acc, f, n, tmp);
+            }
+        }
     }
     if let Some((k, theta)) = res {
-        binomial_series(k, theta * s, n, &mut f);
-        mul_into(&mut acc, &f, n, &mut tmp);
+        binomial_series(k, theta * s, n, f);
+        mul_into(acc, f, n, tmp);
     }
-    acc
 }
 
-/// P for a gamma signal of integer shape `m` at rate `s` (s = m for Nakagami-m).
-fn integer_shape(m: usize, s: f64, noise: f64, interferer: Fading, terms: &[Term], res: Residual) -> f64 {
-    transform_series(s, noise, interferer, terms, res, m).iter().sum()
-}
-
-/// Coverage for a Nakagami or Rician signal without shadowing.
-pub fn gamma_like(signal: Fading, noise: f64, interferer: Fading, terms: &[Term], res: Residual) -> f64 {
-    let p = match signal.kind() {
-        FadingKind::Rayleigh => integer_shape(1, 1.0, noise, interferer, terms, res),
-        FadingKind::Nakagami { m } if (m - m.round()).abs() < 1e-9 => {
-            integer_shape(m.round() as usize, m, noise, interferer, terms, res)
-        }
-        FadingKind::Nakagami { m } => {
-            let mc = m.ceil();
-            let f = mc - m;
-            let gl = crate::math::quadrature::gauss_legendre(16);
-            let (mut num, mut den) = (0.0, 0.0);
-            for &(x, w) in &gl {
-                let t = 0.5 * (x + 1.0);
-                let b = 1.0 - t.powf(1.0 / f);
-                if b <= 0.0 {
-                    continue;
-                }
-                let wb = w * b.powf(m - 1.0);
-                num += wb * integer_shape(mc as usize, m / b, noise, interferer, terms, res);
-                den += wb;
-            }
-            num / den
-        }
-        FadingKind::Rician { k } => {
-            // Weights P[J ≥ j] for J ~ Poisson(K).
-            let pt = super::mixture::poisson_terms(k);
-            let jmax = pt.last().map(|p| p.0 as usize).unwrap_or(0);
-            let mut pmf = vec![0.0; jmax + 1];
-            for &(j, lw) in &pt {
-                pmf[j as usize] = lw.exp();
-            }
-            let mut tail = vec![0.0; jmax + 2];
-            for j in (0..=jmax).rev() {
-                tail[j] = tail[j + 1] + pmf[j];
-            }
-            let n = (0..=jmax).rev().find(|&j| tail[j] > 1e-13).map(|j| j + 1).unwrap_or(1);
-            let c = transform_series(k + 1.0, noise, interferer, terms, res, n);
-            c.iter().zip(&tail).map(|(a, b)| a * b).sum()
-        }
-        FadingKind::None => unreachable!("no-fading signals use `unfaded`"),
+/// Coverage for a Nakagami or Rician signal without shadowing, by its [`Plan`].
+pub fn gamma_like(plan: &Plan, noise: f64, interferer: Fading, terms: &[Term], res: Residual) -> f64 {
+    let n = plan.len();
+    // Series up to 64 terms (Rician K up to about 12 dB) live on the stack; longer ones on
+    // the heap.
+    const STACK: usize = 64;
+    let mut stack = [[0.0f64; STACK]; 3];
+    let mut heap: Vec<Vec<f64>>;
+    let [acc, f, tmp]: [&mut [f64]; 3] = if n <= STACK {
+        let [a, b, c] = &mut stack;
+        [a, b, c]
+    } else {
+        heap = vec![vec![0.0; n]; 3];
+        let (a, rest) = heap.split_at_mut(1);
+        let (b, c) = rest.split_at_mut(1);
+        [&mut a[0], &mut b[0], &mut c[0]]
     };
+    let mut p = 0.0;
+    for (s, w, weights) in &plan.parts {
+        let m = weights.len();
+        transform_series(*s, noise, interferer, terms, res, m, acc, f, tmp);
+        p += w * acc[..m].iter().zip(weights).map(|(a, b)| a * b).sum::<f64>();
+    }
     p.clamp(0.0, 1.0)
 }
 
