@@ -207,7 +207,9 @@ pub(crate) fn row_body<D: Decay, A: PairFactor, C: RxCoupling>(
                     ap -= act * q;
                     var -= (act * e2 - act * act * e1 * e1) * q * q;
                 }
-                e.cov.evaluate(sig, &strong, ap, var) as f32
+                // Not finite only for a combination the scenario check refuses.
+                let p = e.cov.evaluate(sig, &strong, ap, var);
+                if p.is_finite() { p as f32 } else { NODATA }
             };
         }
     }

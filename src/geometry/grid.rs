@@ -150,7 +150,9 @@ impl Grid {
     /// 65 and 220 MB against estimates of 47, 88 and 250 MB (BENCHMARKS.md).
     pub fn estimate_bytes(&self, layers: usize, threads: usize) -> u64 {
         let cells = self.cells() as u64;
-        let row_scratch = (self.cols as u64).saturating_mul(4 * 12).saturating_mul(threads as u64);
+        // `engine::kernels::RowBufs`: 13 four-byte arrays a column, plus the strong set's 8
+        // powers and 8 node indices.
+        let row_scratch = (self.cols as u64).saturating_mul(4 * 29).saturating_mul(threads as u64);
         cells.saturating_mul(4 * layers as u64 + 4).saturating_add(row_scratch).saturating_add(32 << 20)
     }
 }

@@ -124,10 +124,10 @@ pub struct Plan {
 }
 
 impl Plan {
-    /// The plan for a Nakagami or Rician signal (`None` for other laws).
+    /// The plan for a Nakagami or Rician signal (`None` for other laws: Rayleigh has its exact
+    /// product, no fading its inversion).
     pub fn new(signal: Fading) -> Option<Plan> {
         let parts = match signal.kind() {
-            FadingKind::Rayleigh => vec![(1.0, 1.0, vec![1.0])],
             FadingKind::Nakagami { m } if (m - m.round()).abs() < 1e-9 => vec![(m, 1.0, vec![1.0; m.round() as usize])],
             FadingKind::Nakagami { m } => {
                 let mc = m.ceil();
@@ -161,7 +161,7 @@ impl Plan {
                 tail.truncate(n);
                 vec![(k + 1.0, 1.0, tail)]
             }
-            FadingKind::None => return None,
+            FadingKind::Rayleigh | FadingKind::None => return None,
         };
         Some(Plan { parts })
     }
