@@ -183,6 +183,19 @@ fn expect_bad(toml: &str, nodes: &str, fragments: &[&str]) {
     assert_eq!(c.status.code(), Some(2));
 }
 
+/// Regression (coverage could not keep its error bound): shadowing between 0 and 2 dB on a
+/// wanted signal that does not fade is refused with the allowed values named; a fading
+/// signal under the same shadowing maps.
+#[test]
+fn slight_shadowing_of_an_unfaded_signal_is_refused() {
+    let toml = format!("{GOOD_TOML}[fading]\nmodel = \"none\"\ninterferer_model = \"rayleigh\"\nshadowing_db = 1\n");
+    expect_bad(&toml, GOOD_NODES, &["scenario.toml", "[fading]", "shadowing_db", "value 1", "at least 2 dB"]);
+    let (d, p) = site(&toml.replace("model = \"none\"", "model = \"rayleigh\""), GOOD_NODES);
+    let out = d.path().join("out");
+    let o = run(&["map", p.to_str().unwrap(), "--out", out.to_str().unwrap(), "--quiet"]);
+    assert_eq!(o.status.code(), Some(0), "{}", stderr(&o));
+}
+
 #[test]
 fn bad_toml_syntax() {
     expect_bad("name = \"x\"\n[radio\n", GOOD_NODES, &["scenario.toml"]);
