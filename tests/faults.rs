@@ -168,7 +168,7 @@ fn leftovers_are_removed_and_concurrent_runs_refused() {
 }
 
 /// Regression (SIGINT/SIGTERM left temporaries): a map interrupted at several moments exits
-/// (130 when interrupted) and leaves no temporary in its folder.
+/// (130 when interrupted) and leaves no temporary in its folder and no stage folder beside it.
 #[test]
 fn interrupted_runs_leave_no_temporaries() {
     let slow = TOML.replace("cell_m = 20", "cell_m = 0.5");
@@ -189,6 +189,8 @@ fn interrupted_runs_leave_no_temporaries() {
                 .collect();
             assert!(left.is_empty(), "after {ms} ms: {left:?}");
         }
+        // Nor a stage folder beside it.
+        assert!(hidden(d.path()).is_empty(), "after {ms} ms: {:?}", hidden(d.path()));
     }
 }
 
@@ -380,4 +382,227 @@ fn seeded_mutation_campaign() {
         "fault campaign: {cases} cases, {runs} runs: {ok} ok, {refused_n} refused cleanly, {panics} panics, {hangs} hangs, {other} other exits, {changed} cases with inputs changed, {partial} partial outputs"
     );
     assert_eq!((panics, hangs, other, changed, partial), (0, 0, 0, 0, 0));
+}
+
+/// Every file in `dir` (names starting with '.' included) with its bytes; `summary.json` has
+/// its wall-clock field blanked so two runs of one scenario compare equal.
+fn snapshot(dir: &Path) -> std::collections::BTreeMap<String, Vec<u8>> {
+    let mut m = std::collections::BTreeMap::new();
+    for e in std::fs::read_dir(dir).unwrap() {
+        let e = e.unwrap();
+        if !e.file_type().unwrap().is_file() {
+            continue;
+        }
+        let name = e.file_name().into_string().unwrap();
+        let mut bytes = std::fs::read(e.path()).unwrap();
+        if name.ends_with(".json") {
+            let text = String::from_utf8(bytes).unwrap();
+            let blank: String = text
+                .lines()
+                .map(|l| if l.trim_start().starts_with("\"elapsed_s\"") { "\"elapsed_s\": 0," } else { l })
+                .collect::<Vec<_>>()
+                .join("\n");
+            bytes = blank.into_bytes();
+        }
+        m.insert(name, bytes);
+    }
+    m
+}
+
+/// Entries of `dir` whose names start with '.' (temporaries, stage folders, journals).
+fn hidden(dir: &Path) -> Vec<String> {
+    std::fs::read_dir(dir)
+        .unwrap()
+        .filter_map(|e| e.unwrap().file_name().into_string().ok())
+        .filter(|n| n.starts_with('.'))
+        .collect()
+}
+
+/// Regression (a rerun with fewer layers left the old layer files beside the new ones, which
+/// then disagreed with summary.json): the folder holds exactly this run's map files, beside
+/// the files of other commands (links) and of the user, which stay; an input in the folder
+/// stays the same file (same bytes, same inode). Holds for a folder swapped whole and for one
+/// with a subfolder (renamed in file by file).
+#[test]
+fn a_rerun_retires_its_own_old_files_and_keeps_the_rest() {
+    use std::os::unix::fs::MetadataExt;
+    for with_subfolder in [false, true] {
+        let (d, p) = site(TOML, NODES);
+        let out = d.path();
+        if with_subfolder {
+            std::fs::create_dir(out.join("notes")).unwrap();
+            std::fs::write(out.join("notes/site.txt"), "pole 3 needs a bracket").unwrap();
+        }
+        std::fs::write(out.join("user.txt"), "mine").unwrap();
+        let ino = std::fs::metadata(out.join("nodes.geojson")).unwrap().ino();
+        let dir = out.to_str().unwrap();
+        let o = run(&["map", &p, "--out", dir, "--quiet"]);
+        assert!(o.status.success(), "{}", stderr(&o));
+        let o = run(&["links", &p, "--out", dir, "--no-maps", "--quiet"]);
+        assert!(o.status.success(), "{}", stderr(&o));
+        assert!(out.join("sinr.tif").exists() && out.join("links.csv").exists());
+        let o = run(&["map", &p, "--out", dir, "--quiet", "--layers", "total"]);
+        assert!(o.status.success(), "{}", stderr(&o));
+        let mut names: Vec<String> = snapshot(out).into_keys().collect();
+        names.sort();
+        let mut want = vec![
+            "install.csv",
+            "layout.geojson",
+            "links.csv",
+            "links.geojson",
+            "nodes.geojson",
+            "report.html",
+            "scenario.toml",
+            "summary.json",
+            "total.pgw",
+            "total.png",
+            "total.tif",
+            "user.txt",
+        ];
+        want.sort();
+        assert_eq!(names, want, "subfolder: {with_subfolder}");
+        assert_eq!(std::fs::read_to_string(out.join("nodes.geojson")).unwrap(), NODES);
+        assert_eq!(std::fs::read_to_string(out.join("scenario.toml")).unwrap(), TOML);
+        assert_eq!(std::fs::metadata(out.join("nodes.geojson")).unwrap().ino(), ino);
+        assert!(hidden(out).is_empty(), "{:?}", hidden(out));
+        if with_subfolder {
+            assert_eq!(std::fs::read_to_string(out.join("notes/site.txt")).unwrap(), "pole 3 needs a bracket");
+        }
+    }
+}
+
+/// Starts `lobemap args` with the fault-test pause, waits for the `n`-th announcement of
+/// commit step `step` on stderr, and kills it with SIGKILL there (well inside the 3 s pause
+/// that follows every announcement).
+fn kill_at_step(args: &[&str], step: &str, n: usize) {
+    use std::io::BufRead;
+    let mut child = crate::util::run::bin()
+        .args(args)
+        .env("LOBEMAP_FAULT_PAUSE_MS", "3000")
+        .stderr(std::process::Stdio::piped())
+        .spawn()
+        .unwrap();
+    let err = std::io::BufReader::new(child.stderr.take().unwrap());
+    let mut seen = 0;
+    for line in err.lines() {
+        let line = line.unwrap();
+        if line == format!("lobemap-fault-point {step}") {
+            seen += 1;
+            if seen == n {
+                break;
+            }
+        }
+    }
+    assert_eq!(seen, n, "{args:?}: step `{step}` announced {seen} times, not {n}");
+    child.kill().unwrap();
+    let status = child.wait().unwrap();
+    assert_eq!(status.code(), None, "killed by a signal");
+}
+
+/// Regression (an interrupted commit over a previous output left a mix of the two runs): a
+/// SIGKILL at each step of the commit leaves the complete previous set (before the swap) or
+/// the complete new set (after it); in a folder that cannot be swapped (it holds a subfolder)
+/// a kill between two renames is completed by the next run into the folder before it does
+/// anything else. Stage folders and temporaries left by the kill are removed by that run.
+#[test]
+fn a_killed_commit_leaves_the_previous_or_the_new_set() {
+    let small = TOML.replace("cell_m = 20", "cell_m = 25");
+    for (step, n, with_subfolder) in
+        [("before-swap", 1, false), ("after-swap", 1, false), ("rename", 1, true), ("rename", 2, true)]
+    {
+        let (d, p) = site(TOML, NODES);
+        std::fs::write(d.path().join("small.toml"), &small).unwrap();
+        let ps = d.path().join("small.toml");
+        let ps = ps.to_str().unwrap();
+        // The new set, written undisturbed into a folder of its own for comparison.
+        let reference = d.path().join("reference");
+        let o = run(&["map", ps, "--out", reference.to_str().unwrap(), "--quiet", "--layers", "total,sinr"]);
+        assert!(o.status.success(), "{}", stderr(&o));
+        let new_set = snapshot(&reference);
+        let out = d.path().join("out");
+        let dir = out.to_str().unwrap();
+        let o = run(&["map", &p, "--out", dir, "--quiet"]);
+        assert!(o.status.success(), "{}", stderr(&o));
+        if with_subfolder {
+            std::fs::create_dir(out.join("notes")).unwrap();
+        }
+        let previous = snapshot(&out);
+        kill_at_step(&["map", ps, "--out", dir, "--quiet", "--layers", "total,sinr"], step, n);
+        match step {
+            "before-swap" => assert_eq!(snapshot(&out), previous, "killed {step}"),
+            "after-swap" => assert_eq!(snapshot(&out), new_set, "killed {step}"),
+            _ => assert!(hidden(&out).iter().any(|n| n == ".lobemap-commit.json"), "{:?}", hidden(&out)),
+        }
+        // The next run into the folder (another command) first completes or clears what the
+        // killed one left.
+        let o = run(&["links", &p, "--out", dir, "--no-maps", "--quiet"]);
+        assert!(o.status.success(), "{}", stderr(&o));
+        let mut after = snapshot(&out);
+        for f in ["links.csv", "links.geojson", "install.csv", "report.html"] {
+            assert!(after.remove(f).is_some(), "{f} missing");
+        }
+        let expect = if step == "before-swap" { &previous } else { &new_set };
+        assert_eq!(&after, expect, "killed {step}, then links");
+        assert!(hidden(&out).is_empty(), "{:?}", hidden(&out));
+        assert!(hidden(d.path()).is_empty(), "stage folders left: {:?}", hidden(d.path()));
+        assert_eq!(std::fs::read_to_string(d.path().join("nodes.geojson")).unwrap(), NODES);
+    }
+}
+
+/// Mounts a tmpfs of `size` at `at`; false (and a note) where this user may not mount.
+fn mount_tmpfs(at: &Path, size: &str) -> bool {
+    std::fs::create_dir_all(at).unwrap();
+    let ok = std::process::Command::new("mount")
+        .args(["-t", "tmpfs", "-o", &format!("size={size}"), "tmpfs", at.to_str().unwrap()])
+        .status()
+        .is_ok_and(|s| s.success());
+    if !ok {
+        eprintln!("note: cannot mount a tmpfs here (needs root); full-disk and read-only cases not run");
+    }
+    ok
+}
+
+fn umount(at: &Path) {
+    let _ = std::process::Command::new("umount").arg(at).status();
+}
+
+/// Regression (disk full under a new nested `--out` left empty folders): on a full file
+/// system and on a read-only mount a map is refused (exit 2) and leaves the previous output
+/// untouched, no new folder, no temporary and no stage folder.
+#[test]
+fn full_and_read_only_file_systems_leave_the_previous_output() {
+    let (d, p) = site(TOML, NODES);
+    let fine = TOML.replace("cell_m = 20", "cell_m = 2");
+    std::fs::write(d.path().join("fine.toml"), &fine).unwrap();
+    let pf = d.path().join("fine.toml");
+    let pf = pf.to_str().unwrap();
+    let mnt = d.path().join("mnt");
+    if !mount_tmpfs(&mnt, "1m") {
+        return;
+    }
+    struct Unmount<'a>(&'a Path);
+    impl Drop for Unmount<'_> {
+        fn drop(&mut self) {
+            umount(self.0);
+        }
+    }
+    let _guard = Unmount(&mnt);
+    // A new nested folder on a full disk: nothing is left behind.
+    let nested = mnt.join("a/b/c");
+    refused(&["map", pf, "--out", nested.to_str().unwrap(), "--quiet"], "");
+    assert!(std::fs::read_dir(&mnt).unwrap().next().is_none(), "left in the mount: {:?}", hidden(&mnt));
+    // A previous output that fits, then a larger run that does not.
+    let out = mnt.join("out");
+    let o = run(&["map", &p, "--out", out.to_str().unwrap(), "--quiet"]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    let previous = snapshot(&out);
+    refused(&["map", pf, "--out", out.to_str().unwrap(), "--quiet"], "");
+    assert_eq!(snapshot(&out), previous);
+    assert!(hidden(&out).is_empty() && hidden(&mnt).is_empty(), "{:?} {:?}", hidden(&out), hidden(&mnt));
+    // Read-only: refused, previous untouched.
+    let ro = std::process::Command::new("mount").args(["-o", "remount,ro"]).arg(&mnt).status().unwrap();
+    assert!(ro.success());
+    refused(&["map", &p, "--out", out.to_str().unwrap(), "--quiet"], "Read-only");
+    assert_eq!(snapshot(&out), previous);
+    assert!(hidden(&out).is_empty() && hidden(&mnt).is_empty());
 }

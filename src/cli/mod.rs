@@ -303,8 +303,9 @@ pub fn run(cli: Cli) -> anyhow::Result<ExitCode> {
             let out = map.out.clone().unwrap_or_else(|| PathBuf::from("outputs/demo"));
             map_cmd(&sc, map, cli.quiet, Some("outputs/demo"))?;
             let spec = FieldSpec::resolve(Some(&sc), &lobemap::run::demo::field_overrides())?;
-            let res = run_aggregate(&spec, &lobemap::run::demo::aggregate_options(&out.join("aggregate")))?;
-            print_aggregate(&res, false, cli.quiet, &out.join("aggregate"));
+            let agg = lobemap::run::demo::aggregate_dir(&out);
+            let res = run_aggregate(&spec, &lobemap::run::demo::aggregate_options(&agg))?;
+            print_aggregate(&res, false, cli.quiet, &agg);
             links_cmd(&sc, Some(out), false, None, true, false, 8192, cli.quiet)
         }
         Cmd::Aggregate(a) => aggregate_cmd(*a, false),

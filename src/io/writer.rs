@@ -33,6 +33,8 @@ pub(crate) struct Context<'a> {
 /// Writes one layer in one format; returns the file names written.
 pub(crate) trait LayerWriter: Sync {
     fn write(&self, st: &mut Staging, cx: &Context, layer: &LayerOut) -> Result<Vec<String>, Error>;
+    /// Endings of every file name this writer can write for a layer (`tif` for `total.tif`).
+    fn extensions(&self) -> &'static [&'static str];
 }
 
 /// Float32 GeoTIFF of every layer.
@@ -44,6 +46,9 @@ impl LayerWriter for GeoTiff {
             crate::io::geotiff::write_geotiff(w, cx.grid, layer.data).map_err(std::io::Error::other)
         })?;
         Ok(vec![name])
+    }
+    fn extensions(&self) -> &'static [&'static str] {
+        &["tif"]
     }
 }
 
@@ -69,6 +74,9 @@ impl LayerWriter for Heatmap {
         st.write(&pgw, r.world.as_bytes())?;
         Ok(vec![png, pgw])
     }
+    fn extensions(&self) -> &'static [&'static str] {
+        &["png", "pgw"]
+    }
 }
 
 /// Every layer goes through these, in this order.
@@ -81,4 +89,9 @@ pub(crate) fn write_layer(st: &mut Staging, cx: &Context, layer: &LayerOut) -> R
         files.extend(w.write(st, cx, layer)?);
     }
     Ok(files)
+}
+
+/// Every file name a layer called `stem` can have, over all writers.
+pub(crate) fn layer_file_names(stem: &str) -> impl Iterator<Item = String> + '_ {
+    WRITERS.iter().flat_map(move |w| w.extensions().iter().map(move |e| format!("{stem}.{e}")))
 }

@@ -95,7 +95,10 @@ pub fn run_aggregate(spec: &FieldSpec, o: &AggregateOptions) -> Result<Aggregate
     }
     // Opened before the computation, so an unwritable folder fails early.
     let stage = match &o.out {
-        Some(dir) => Some(Staging::new(dir, &o.inputs.iter().map(PathBuf::as_path).collect::<Vec<_>>())?),
+        Some(dir) => {
+            let owned = ["cdf.csv", "cdf.png", "cdf.svg", "aggregate.json"].map(String::from).to_vec();
+            Some(Staging::folder(dir, &o.inputs.iter().map(PathBuf::as_path).collect::<Vec<_>>(), owned)?)
+        }
         None => None,
     };
     let req = Request {

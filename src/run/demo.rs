@@ -37,6 +37,15 @@ pub fn field_overrides() -> FieldOverrides {
     }
 }
 
+/// Where the demo's sweep goes: beside the map folder (`<out>-aggregate`), not inside it, so
+/// the map folder holds files only and is swapped whole on each run.
+pub fn aggregate_dir(out: &Path) -> std::path::PathBuf {
+    match out.file_name().and_then(|n| n.to_str()) {
+        Some(n) if n != ".." => out.with_file_name(format!("{n}-aggregate")),
+        _ => out.join("aggregate"),
+    }
+}
+
 /// The demo's sweep (beamwidth 10°, 30°, 90°), 4000 seeded realisations, P(I > −55 dBm),
 /// written into `out`.
 pub fn aggregate_options(out: &Path) -> AggregateOptions {

@@ -36,7 +36,8 @@ pub struct LinksResult {
 /// Runs the link check and writes `links.csv`, `links.geojson`, `install.csv` and
 /// `report.html` into `opts.out`.
 pub fn run_links(sc: &Scenario, opts: &LinksOptions) -> Result<LinksResult, Error> {
-    let mut st = Staging::new(&opts.out, &sc.input_files())?;
+    let owned = ["links.csv", "links.geojson", "install.csv", "report.html"].map(String::from).to_vec();
+    let mut st = Staging::folder(&opts.out, &sc.input_files(), owned)?;
     let rows = crate::jobs::links::links(sc, opts.monte_carlo);
     let sheet = crate::jobs::install::sheet(sc).map_err(|m| {
         Error::input(Problem::new(sc.path.display().to_string(), Some("[install]".into()), "declination_date", m))

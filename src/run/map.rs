@@ -89,10 +89,18 @@ pub fn markers_and_links(sc: &Scenario) -> (Vec<Marker>, Vec<(usize, usize)>) {
     (markers, links)
 }
 
+/// Every file name `map` can write: a rerun retires those it does not write again.
+pub fn map_file_names() -> Vec<String> {
+    let stems = ["total", "interference", "sinr", "server", "coverage"];
+    let mut v: Vec<String> = stems.iter().flat_map(|s| crate::io::writer::layer_file_names(s)).collect();
+    v.extend(["hotspots.geojson", "layout.geojson", "summary.json"].map(String::from));
+    v
+}
+
 /// Runs the map job and writes every output into `opts.out`.
 pub fn run_map(sc: &Scenario, opts: &MapOptions) -> Result<MapResult, Error> {
     check_memory(sc, opts.layers.count(), opts.max_memory_mib)?;
-    let mut st = Staging::new(&opts.out, &sc.input_files())?;
+    let mut st = Staging::folder(&opts.out, &sc.input_files(), map_file_names())?;
     let t0 = Instant::now();
     let eopts = Options { layers: opts.layers, cutoff_m: opts.cutoff_m, progress: opts.progress };
     let (layers, used) = match &sc.draw {
