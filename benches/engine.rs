@@ -41,6 +41,13 @@ fn layout(nodes: usize, cells_side: usize, exponent: f64, aimed: bool) -> Scenar
 }
 
 fn measure(label: &str, sc: &Scenario, layers: LayerSet, reps: usize) {
+    // `--only TEXT` runs only the cases whose label contains TEXT (for profiling one case).
+    let args: Vec<String> = std::env::args().collect();
+    if let Some(w) = args.iter().position(|a| a == "--only").and_then(|i| args.get(i + 1))
+        && !label.contains(w.as_str())
+    {
+        return;
+    }
     let eng = Engine::new(sc);
     let opts = Options { layers, cutoff_m: None, progress: false };
     let _ = eng.run(&opts); // warm-up

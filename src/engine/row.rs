@@ -213,9 +213,17 @@ pub(crate) fn row_body<D: Decay, A: PairFactor, C: RxCoupling>(
             };
         }
     }
+    // The strong-set pass leaves the aimed interference sum in `cacc`.
+    let strong_sums = l.coverage && e.cov.strong_per_cell() != 0;
     for c in 0..cols {
         let all = if full { b.other[c] + b.bestw[c] } else { b.other[c] };
-        let interf = if aimed_needed { b.iacc[c] } else { e.g_omni * b.other[c] };
+        let interf = if !aimed_needed {
+            e.g_omni * b.other[c]
+        } else if strong_sums {
+            b.cacc[c]
+        } else {
+            b.iacc[c]
+        };
         if let Some(t) = t.as_deref_mut() {
             t[c] = db(e.shadow_mean * (e.g_omni * all));
         }

@@ -80,21 +80,28 @@ fn factor_series(law: Fading, cs: f64, n: usize, out: &mut [f64]) {
 fn binomial_series(m: f64, x: f64, n: usize, out: &mut [f64]) {
     let rho = x / (1.0 + x);
     out[0] = (-m * x.ln_1p()).exp();
+    // The step factor is computed apart from the running product, so the chain from one
+    // coefficient to the next is a single multiplication.
     for k in 1..n {
-        out[k] = out[k - 1] * (m + (k - 1) as f64) / k as f64 * rho;
+        out[k] = out[k - 1] * ((m + (k - 1) as f64) / k as f64 * rho);
     }
 }
 
 /// acc ← acc · f, truncated to n terms.
+///
+/// Row by row (each acc_j times the whole of f, added to the tail from j on): every output
+/// coefficient gets its terms in the same order as the textbook double sum (so the same
+/// bits), but the inner loop carries no dependency from one step to the next and vectorises.
 fn mul_into(acc: &mut [f64], f: &[f64], n: usize, tmp: &mut [f64]) {
-    for k in 0..n {
-        let mut s = 0.0;
-        for j in 0..=k {
-            s += acc[j] * f[k - j];
+    let (acc, f, tmp) = (&mut acc[..n], &f[..n], &mut tmp[..n]);
+    tmp.fill(0.0);
+    for j in 0..n {
+        let aj = acc[j];
+        for (t, fv) in tmp[j..].iter_mut().zip(f) {
+            *t += aj * fv;
         }
-        tmp[k] = s;
     }
-    acc[..n].copy_from_slice(&tmp[..n]);
+    acc.copy_from_slice(tmp);
 }
 
 /// acc ← acc · (1 − a + a (1 + x(1 − η))^{−m}) for an integer m, in O(m n): (1 − ρη)^{−1} is a
@@ -102,6 +109,16 @@ fn mul_into(acc: &mut [f64], f: &[f64], n: usize, tmp: &mut [f64]) {
 fn mul_integer_binomial(acc: &mut [f64], a: f64, m: usize, x: f64, n: usize, tmp: &mut [f64]) {
     let rho = x / (1.0 + x);
     let base = if m == 1 { 1.0 / (1.0 + x) } else { (-(m as f64) * x.ln_1p()).exp() };
+    if m == 1 {
+        // One running sum, fused with the update (it reads each old coefficient first).
+        let (keep, take) = (1.0 - a, a * base);
+        let mut run = 0.0;
+        for v in acc[..n].iter_mut() {
+            run = rho * run + *v;
+            *v = keep * *v + take * run;
+        }
+        return;
+    }
     tmp[..n].copy_from_slice(&acc[..n]);
     for _ in 0..m {
         let mut run = 0.0;
@@ -187,8 +204,9 @@ fn transform_series(
 ) {
     // Noise: e^{−ns} e^{ns η}.
     acc[0] = (-noise * s).exp();
+    let ns = noise * s;
     for k in 1..n {
-        acc[k] = acc[k - 1] * noise * s / k as f64;
+        acc[k] = acc[k - 1] * (ns / k as f64);
     }
     let integer_m = match interferer.kind() {
         FadingKind::Rayleigh => Some(1),
@@ -197,6 +215,49 @@ fn transform_series(
         }
         _ => None,
     };
+    // Rayleigh interferers (m = 1): every factor's running sum in one sweep over the
+    // coefficients, interferer after interferer at each coefficient. Each factor sees the
+    // same inputs in the same order as when applied one by one (so the same bits), but the
+    // chains of different factors overlap instead of waiting for each other.
+    const FUSED: usize = 32;
+    if integer_m == Some(1) && terms.len() <= FUSED {
+        let (mut rho, mut keep, mut take, mut run) = ([0.0; FUSED], [0.0; FUSED], [0.0; FUSED], [0.0; FUSED]);
+        for (i, &(a, c)) in terms.iter().enumerate() {
+            let x = c * s / 1.0;
+            rho[i] = x / (1.0 + x);
+            keep[i] = 1.0 - a;
+            take[i] = a * (1.0 / (1.0 + x));
+        }
+        let t = terms.len();
+        for v in acc[..n].iter_mut() {
+            let mut u = *v;
+            for i in 0..t {
+                run[i] = rho[i] * run[i] + u;
+                u = keep[i] * u + take[i] * run[i];
+            }
+            *v = u;
+        }
+    } else {
+        multiply_factors(interferer, integer_m, s, terms, n, acc, f, tmp);
+    }
+    if let Some((k, theta)) = res {
+        binomial_series(k, theta * s, n, f);
+        mul_into(acc, f, n, tmp);
+    }
+}
+
+/// acc ← acc · Π (1 − a + a L(c s (1 − η))) over `terms`, factor by factor.
+#[allow(clippy::too_many_arguments)] // the buffers are the caller's scratch
+fn multiply_factors(
+    interferer: Fading,
+    integer_m: Option<usize>,
+    s: f64,
+    terms: &[Term],
+    n: usize,
+    acc: &mut [f64],
+    f: &mut [f64],
+    tmp: &mut [f64],
+) {
     for &(a, c) in terms {
         match integer_m {
             Some(m) => mul_integer_binomial(acc, a, m, c * s / m as f64, n, tmp),
@@ -207,10 +268,6 @@ fn transform_series(
                 mul_into(acc, f, n, tmp);
             }
         }
-    }
-    if let Some((k, theta)) = res {
-        binomial_series(k, theta * s, n, f);
-        mul_into(acc, f, n, tmp);
     }
 }
 
