@@ -348,3 +348,44 @@ fn enumerate(noise: f64, terms: &[Term], res: Residual) -> f64 {
     }
     go(0, noise, 1.0, terms, res).clamp(0.0, 1.0)
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    /// The fast forms keep the arithmetic of the textbook forms exactly (common practice for
+    /// a speed-only rewrite): the row-by-row convolution against the double sum, and the
+    /// fused sweep over Rayleigh factors against applying them one by one.
+    #[test]
+    fn fast_recurrences_give_the_same_bits_as_the_plain_ones() {
+        let n = 33;
+        let acc0: Vec<f64> = (0..n).map(|k| 0.9f64.powi(k as i32) / (1.0 + k as f64)).collect();
+        let f: Vec<f64> = (0..n).map(|k| 0.7f64.powi(k as i32) * (k as f64 + 0.3)).collect();
+        let mut plain = vec![0.0; n];
+        for k in 0..n {
+            let mut s = 0.0;
+            for j in 0..=k {
+                s += acc0[j] * f[k - j];
+            }
+            plain[k] = s;
+        }
+        let (mut acc, mut tmp) = (acc0.clone(), vec![0.0; n]);
+        mul_into(&mut acc, &f, n, &mut tmp);
+        assert_eq!(acc, plain);
+
+        let terms: Vec<Term> = (0..8).map(|i| (0.3 + 0.08 * i as f64, 0.05 * (i + 1) as f64)).collect();
+        let s = 7.9;
+        let (mut fused, mut one_by_one) = (vec![0.0; n], vec![0.0; n]);
+        let (mut fb, mut tb) = (vec![0.0; n], vec![0.0; n]);
+        transform_series(s, 0.2, Fading::RAYLEIGH, &terms, None, n, &mut fused, &mut fb, &mut tb);
+        one_by_one[0] = (-0.2 * s).exp();
+        let ns = 0.2 * s;
+        for k in 1..n {
+            one_by_one[k] = one_by_one[k - 1] * (ns / k as f64);
+        }
+        for &(a, c) in &terms {
+            mul_integer_binomial(&mut one_by_one, a, 1, c * s / 1.0, n, &mut tb);
+        }
+        assert_eq!(fused, one_by_one);
+    }
+}
