@@ -344,8 +344,9 @@ pub(crate) const STRONG: usize = crate::model::coverage::STRONG;
 const CHUNK: usize = 16;
 
 /// Coverage, strong-set form: the [`STRONG`] strongest interferers of each cell (strongest
-/// first, ties to the node inserted first) beside Σ a p g_rx (in `cacc`, also the aimed
-/// interference) and Σ (a e2 − a² e1²)(p g_rx)² over all of them. The vectorised loop writes each cell's received power to `qbuf`; a
+/// first, ties to the node inserted first) beside Σ a p g_rx (the aimed interference, in
+/// `iacc`) and Σ (a e2 − a² e1²)(p g_rx)² over all of them. The vectorised loop writes each
+/// cell's received power to `qbuf`; a
 /// second loop inserts only where it beats the cell's weakest kept one, which after the first
 /// few nodes is rare (about STRONG·ln(nodes/STRONG) insertions per cell in all).
 #[inline(always)]
@@ -363,7 +364,7 @@ pub(crate) fn pass_cov_strong<D: Decay, G: TxGain, A: PairFactor, C: RxCoupling>
     let (rcc, rmain, rside) = rx;
     let len = b.xs.len();
     let (xs, ys, ux, uy, server) = (&b.xs[..len], &b.ys[..len], &b.ux[..len], &b.uy[..len], &b.server[..len]);
-    let (acc, var, qbuf) = (&mut b.cacc[..len], &mut b.cvar[..len], &mut b.qbuf[..len]);
+    let (iacc, var, qbuf) = (&mut b.iacc[..len], &mut b.cvar[..len], &mut b.qbuf[..len]);
     for c in 0..len {
         let wx = xs[c] - n.x;
         let wy = ys[c] - n.y;
@@ -375,9 +376,8 @@ pub(crate) fn pass_cov_strong<D: Decay, G: TxGain, A: PairFactor, C: RxCoupling>
         // The server is no interferer of its own cell: its power counts as 0 everywhere.
         let own = server[c] == n.idx;
         let q = if own { 0.0 } else { p * gr };
-        // Σ a p g_rx is also the aimed interference sum: the same expression in the same
-        // order as `pass_aimed`, so one pass serves both layers.
-        acc[c] += if own { 0.0 } else { n.act * p * gr };
+        // The interference sum of `pass_aimed`, same expression: one pass serves both layers.
+        iacc[c] += if own { 0.0 } else { n.act * p * gr };
         var[c] += coef * q * q;
         qbuf[c] = q;
     }

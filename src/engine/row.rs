@@ -145,13 +145,16 @@ pub(crate) fn row_body<D: Decay, A: PairFactor, C: RxCoupling>(
             b.tinv[c] = if sig > 0.0 { t_lin / sig } else { 0.0 };
         }
         let exact = e.cov.strong_per_cell() == 0;
-        b.cacc.fill(if exact { 1.0 } else { 0.0 });
-        b.cvar.fill(0.0);
-        b.iacc.fill(0.0);
-        if !exact {
+        // The exact pass keeps a product in `cacc`; the strong-set pass the moments in
+        // `cvar` and the sets. Both sum the interference into `iacc`.
+        if exact {
+            b.cacc.fill(1.0);
+        } else {
+            b.cvar.fill(0.0);
             b.top.fill(0.0);
             b.topi.fill(u32::MAX);
         }
+        b.iacc.fill(0.0);
         let (e1, e2) = (e.cov.e1 as f32, e.cov.e2 as f32);
         for &k in &cand {
             let n = &e.nodes[k];
@@ -196,7 +199,7 @@ pub(crate) fn row_body<D: Decay, A: PairFactor, C: RxCoupling>(
             } else {
                 // The residual: the sums over every interferer less the strong ones.
                 strong.clear();
-                let (mut ap, mut var) = (b.cacc[c] as f64, b.cvar[c] as f64);
+                let (mut ap, mut var) = (b.iacc[c] as f64, b.cvar[c] as f64);
                 for j in 0..STRONG {
                     let (q, id) = (b.top[j * cols + c] as f64, b.topi[j * cols + c]);
                     if id == u32::MAX || q <= 0.0 {
@@ -213,17 +216,9 @@ pub(crate) fn row_body<D: Decay, A: PairFactor, C: RxCoupling>(
             };
         }
     }
-    // The strong-set pass leaves the aimed interference sum in `cacc`.
-    let strong_sums = l.coverage && e.cov.strong_per_cell() != 0;
     for c in 0..cols {
         let all = if full { b.other[c] + b.bestw[c] } else { b.other[c] };
-        let interf = if !aimed_needed {
-            e.g_omni * b.other[c]
-        } else if strong_sums {
-            b.cacc[c]
-        } else {
-            b.iacc[c]
-        };
+        let interf = if aimed_needed { b.iacc[c] } else { e.g_omni * b.other[c] };
         if let Some(t) = t.as_deref_mut() {
             t[c] = db(e.shadow_mean * (e.g_omni * all));
         }
