@@ -109,16 +109,6 @@ fn mul_into(acc: &mut [f64], f: &[f64], n: usize, tmp: &mut [f64]) {
 fn mul_integer_binomial(acc: &mut [f64], a: f64, m: usize, x: f64, n: usize, tmp: &mut [f64]) {
     let rho = x / (1.0 + x);
     let base = if m == 1 { 1.0 / (1.0 + x) } else { (-(m as f64) * x.ln_1p()).exp() };
-    if m == 1 {
-        // One running sum, fused with the update (it reads each old coefficient first).
-        let (keep, take) = (1.0 - a, a * base);
-        let mut run = 0.0;
-        for v in acc[..n].iter_mut() {
-            run = rho * run + *v;
-            *v = keep * *v + take * run;
-        }
-        return;
-    }
     tmp[..n].copy_from_slice(&acc[..n]);
     for _ in 0..m {
         let mut run = 0.0;
@@ -219,23 +209,25 @@ fn transform_series(
     // coefficients, interferer after interferer at each coefficient. Each factor sees the
     // same inputs in the same order as when applied one by one (so the same bits), but the
     // chains of different factors overlap instead of waiting for each other.
-    const FUSED: usize = 32;
-    if integer_m == Some(1) && terms.len() <= FUSED {
-        let (mut rho, mut keep, mut take, mut run) = ([0.0; FUSED], [0.0; FUSED], [0.0; FUSED], [0.0; FUSED]);
-        for (i, &(a, c)) in terms.iter().enumerate() {
-            let x = c * s / 1.0;
-            rho[i] = x / (1.0 + x);
-            keep[i] = 1.0 - a;
-            take[i] = a * (1.0 / (1.0 + x));
-        }
-        let t = terms.len();
-        for v in acc[..n].iter_mut() {
-            let mut u = *v;
-            for i in 0..t {
-                run[i] = rho[i] * run[i] + u;
-                u = keep[i] * u + take[i] * run[i];
+    if integer_m == Some(1) {
+        // In blocks of up to 32 factors (stack arrays); a block is applied whole.
+        const FUSED: usize = 32;
+        for block in terms.chunks(FUSED) {
+            let (mut rho, mut keep, mut take, mut run) = ([0.0; FUSED], [0.0; FUSED], [0.0; FUSED], [0.0; FUSED]);
+            for (i, &(a, c)) in block.iter().enumerate() {
+                let x = c * s;
+                rho[i] = x / (1.0 + x);
+                keep[i] = 1.0 - a;
+                take[i] = a * (1.0 / (1.0 + x));
             }
-            *v = u;
+            for v in acc[..n].iter_mut() {
+                let mut u = *v;
+                for i in 0..block.len() {
+                    run[i] = rho[i] * run[i] + u;
+                    u = keep[i] * u + take[i] * run[i];
+                }
+                *v = u;
+            }
         }
     } else {
         multiply_factors(interferer, integer_m, s, terms, n, acc, f, tmp);
@@ -373,19 +365,22 @@ mod tests {
         mul_into(&mut acc, &f, n, &mut tmp);
         assert_eq!(acc, plain);
 
-        let terms: Vec<Term> = (0..8).map(|i| (0.3 + 0.08 * i as f64, 0.05 * (i + 1) as f64)).collect();
-        let s = 7.9;
-        let (mut fused, mut one_by_one) = (vec![0.0; n], vec![0.0; n]);
-        let (mut fb, mut tb) = (vec![0.0; n], vec![0.0; n]);
-        transform_series(s, 0.2, Fading::RAYLEIGH, &terms, None, n, &mut fused, &mut fb, &mut tb);
-        one_by_one[0] = (-0.2 * s).exp();
-        let ns = 0.2 * s;
-        for k in 1..n {
-            one_by_one[k] = one_by_one[k - 1] * (ns / k as f64);
+        // 8 factors (one block) and 40 (two blocks).
+        for count in [8, 40] {
+            let terms: Vec<Term> = (0..count).map(|i| (0.3 + 0.016 * i as f64, 0.01 * (i + 1) as f64)).collect();
+            let s = 7.9;
+            let (mut fused, mut one_by_one) = (vec![0.0; n], vec![0.0; n]);
+            let (mut fb, mut tb) = (vec![0.0; n], vec![0.0; n]);
+            transform_series(s, 0.2, Fading::RAYLEIGH, &terms, None, n, &mut fused, &mut fb, &mut tb);
+            one_by_one[0] = (-0.2 * s).exp();
+            let ns = 0.2 * s;
+            for k in 1..n {
+                one_by_one[k] = one_by_one[k - 1] * (ns / k as f64);
+            }
+            for &(a, c) in &terms {
+                mul_integer_binomial(&mut one_by_one, a, 1, c * s, n, &mut tb);
+            }
+            assert_eq!(fused, one_by_one, "{count} factors");
         }
-        for &(a, c) in &terms {
-            mul_integer_binomial(&mut one_by_one, a, 1, c * s / 1.0, n, &mut tb);
-        }
-        assert_eq!(fused, one_by_one);
     }
 }
