@@ -156,12 +156,7 @@ fn leftovers_are_removed_and_concurrent_runs_refused() {
     std::fs::write(out.join(".total.tif.a1B2c3.partial"), "left by a killed run").unwrap();
     let o = run(&["map", &p, "--out", out.to_str().unwrap(), "--quiet"]);
     assert!(o.status.success(), "{}", stderr(&o));
-    let left: Vec<String> = std::fs::read_dir(&out)
-        .unwrap()
-        .filter_map(|e| e.unwrap().file_name().into_string().ok())
-        .filter(|n| n.starts_with('.'))
-        .collect();
-    assert!(left.is_empty(), "{left:?}");
+    assert!(hidden(&out).is_empty(), "{:?}", hidden(&out));
     let held = std::fs::File::open(&out).unwrap();
     held.lock().unwrap();
     refused(&["map", &p, "--out", out.to_str().unwrap(), "--quiet"], "another lobemap run");
@@ -182,12 +177,7 @@ fn interrupted_runs_leave_no_temporaries() {
         let status = child.wait().unwrap();
         assert!(matches!(status.code(), Some(0) | Some(130)), "{status:?}");
         if out.exists() {
-            let left: Vec<_> = std::fs::read_dir(&out)
-                .unwrap()
-                .filter_map(|e| e.unwrap().file_name().into_string().ok())
-                .filter(|n| n.starts_with('.'))
-                .collect();
-            assert!(left.is_empty(), "after {ms} ms: {left:?}");
+            assert!(hidden(&out).is_empty(), "after {ms} ms: {:?}", hidden(&out));
         }
         // Nor a stage folder beside it.
         assert!(hidden(d.path()).is_empty(), "after {ms} ms: {:?}", hidden(d.path()));

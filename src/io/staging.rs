@@ -433,14 +433,16 @@ impl Staging {
     fn swap(&mut self, pending: &[(PathBuf, PathBuf)]) -> Result<(), SwapError> {
         let stage = self.stage.as_ref().map(|(s, _)| s.clone()).ok_or(SwapError::Fallback)?;
         let written: Vec<&str> = pending.iter().filter_map(|(_, f)| f.file_name()?.to_str()).collect();
-        let mut kept: Vec<std::ffi::OsString> = Vec::new();
+        // Names of the previous folder the new one does not take over: the command's own
+        // kinds (written anew or retired), temporaries and a journal.
+        let dropped = |n: &std::ffi::OsStr| {
+            n.to_str().is_some_and(|s| self.owned.iter().any(|o| o == s) || is_temporary(s) || s == JOURNAL)
+        };
         if self.dir_existed {
             let entries = std::fs::read_dir(&self.dir).map_err(|_| SwapError::Fallback)?;
             for e in entries.flatten() {
                 let n = e.file_name();
-                if let Some(s) = n.to_str()
-                    && (written.contains(&s) || self.owned.iter().any(|o| o == s) || is_temporary(s) || s == JOURNAL)
-                {
+                if dropped(&n) || n.to_str().is_some_and(|s| written.contains(&s)) {
                     continue;
                 }
                 if !e.file_type().is_ok_and(|t| t.is_file() || t.is_symlink()) {
@@ -448,7 +450,6 @@ impl Staging {
                 }
                 // std::fs::hard_link links a symbolic link itself on Linux (linkat, no follow).
                 std::fs::hard_link(e.path(), stage.join(&n)).map_err(|_| SwapError::Fallback)?;
-                kept.push(n);
             }
             if let Ok(m) = std::fs::metadata(&self.dir) {
                 let _ = std::fs::set_permissions(&stage, m.permissions());
@@ -498,17 +499,13 @@ impl Staging {
         sync_dir(&parent_of(&self.dir));
         fault_point("after-swap");
         // The stage's path now holds the previous folder. Anything that appeared in it after
-        // the links were made is moved over before it is removed.
+        // the links were made (a name the new folder lacks) is moved over before it is removed.
         if self.dir_existed
             && let Ok(entries) = std::fs::read_dir(&stage)
         {
             for e in entries.flatten() {
                 let n = e.file_name();
-                let known = kept.contains(&n)
-                    || n.to_str().is_some_and(|s| {
-                        written.contains(&s) || self.owned.iter().any(|o| o == s) || is_temporary(s) || s == JOURNAL
-                    });
-                if !known && std::fs::symlink_metadata(self.dir.join(&n)).is_err() {
+                if !dropped(&n) && std::fs::symlink_metadata(self.dir.join(&n)).is_err() {
                     let _ = std::fs::rename(e.path(), self.dir.join(&n));
                 }
             }

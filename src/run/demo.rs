@@ -41,7 +41,7 @@ pub fn field_overrides() -> FieldOverrides {
 /// the map folder holds files only and is swapped whole on each run.
 pub fn aggregate_dir(out: &Path) -> std::path::PathBuf {
     match out.file_name().and_then(|n| n.to_str()) {
-        Some(n) if n != ".." => out.with_file_name(format!("{n}-aggregate")),
+        Some(n) => out.with_file_name(format!("{n}-aggregate")),
         _ => out.join("aggregate"),
     }
 }
