@@ -30,6 +30,8 @@ pub(crate) fn row_body<D: Decay, A: PairFactor, C: RxCoupling>(
     b: &mut RowBufs,
 ) -> (u64, f64) {
     let RowJob { r, l, cutoff, out } = job;
+    // Coverage by the exact per-pair product (no strong sets).
+    let exact = e.cov.strong_per_cell() == 0;
     let g = &e.sc.grid;
     let cols = g.cols();
     let (sl, cl) = g.lat_of_row(r).to_radians().sin_cos();
@@ -144,7 +146,6 @@ pub(crate) fn row_body<D: Decay, A: PairFactor, C: RxCoupling>(
             let sig = e.g_signal * b.best[c];
             b.tinv[c] = if sig > 0.0 { t_lin / sig } else { 0.0 };
         }
-        let exact = e.cov.strong_per_cell() == 0;
         // The exact pass keeps a product in `cacc`; the strong-set pass the moments in
         // `cvar` and the sets. Both sum the interference into `iacc`.
         if exact {
@@ -187,7 +188,6 @@ pub(crate) fn row_body<D: Decay, A: PairFactor, C: RxCoupling>(
     let noise = e.noise_mw as f32;
     let [mut t, mut i, mut s, mut v, cv] = out;
     if let Some(cv) = cv {
-        let exact = e.cov.strong_per_cell() == 0;
         let (e1, e2) = (e.cov.e1, e.cov.e2);
         let mut strong: Vec<(f64, f64)> = Vec::with_capacity(STRONG);
         for (c, out) in cv.iter_mut().enumerate() {
