@@ -301,7 +301,7 @@ fn demo_runs_from_the_repository() {
     assert!(o.status.success(), "{}", stderr(&o));
     let s: serde_json::Value =
         serde_json::from_str(&std::fs::read_to_string(out.join("summary.json")).unwrap()).unwrap();
-    assert_eq!(s["nodes"], 44);
+    assert_eq!(s["nodes"], 46);
     assert!(s["hotspots"].as_u64().unwrap() >= 1);
     let hs: serde_json::Value =
         serde_json::from_str(&std::fs::read_to_string(out.join("hotspots.geojson")).unwrap()).unwrap();

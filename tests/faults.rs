@@ -215,6 +215,8 @@ fn memory_estimate_bounds_the_measured_peak() {
         let d = tempfile::tempdir().unwrap();
         let text = scenario
             .replace("nodes = \"nodes.geojson\"", &format!("nodes = \"{root}/sites/harbourlight/nodes.geojson\""))
+            .replace("\"ground.tif\"", &format!("\"{root}/sites/harbourlight/ground.tif\""))
+            .replace("\"buildings.geojson\"", &format!("\"{root}/sites/harbourlight/buildings.geojson\""))
             .replace("cell_m = 4", &format!("cell_m = {cell}"));
         let p = d.path().join("s.toml");
         std::fs::write(&p, text).unwrap();

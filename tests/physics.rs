@@ -68,7 +68,10 @@ fn probe_matches_hand_calculation() {
 /// there the choice of server is a tie.
 #[test]
 fn engine_agrees_with_probe_on_demo() {
-    let sc = Scenario::load(std::path::Path::new("sites/harbourlight/scenario.toml")).unwrap();
+    // Over flat ground: the map's obstruction is a single edge from a sweep and probe's is
+    // Deygout's on the exact profile; `map_obstruction_sweep_against_the_exact_profile`
+    // measures that difference.
+    let sc = Scenario::load(std::path::Path::new("sites/harbourlight/scenario.toml")).unwrap().with_surface(None);
     let eng = Engine::new(&sc);
     let l = eng.run(&Options { layers: LayerSet::ALL, cutoff_m: None, progress: false });
     let (t, i, s) = (l.total.unwrap(), l.interference.unwrap(), l.sinr.unwrap());
@@ -297,7 +300,8 @@ fn cutoff_keeps_servers_exact_and_sinr_bounded() {
     let nodes = fixtures::random_nodes(&frame, 400, 2000.0, 9, "o", Pattern::omni(0.0), 20.0, 6.0, 1.0);
     let pl = PathLoss::new(lobemap::model::pathloss::CloseIn::new(3.0).unwrap(), 28.0, 0.0, 1.0).unwrap();
     let dense = scenario(nodes, pl, fixtures::square(&frame, 2000.0), 40.0, 1.5);
-    let layers = LayerSet { total: false, interference: true, sinr: true, server: true, coverage: false };
+    let layers =
+        LayerSet { total: false, interference: true, sinr: true, server: true, coverage: false, visible: false };
     for (sc, cutoff, must_save) in [(&demo, 300.0, false), (&dense, 600.0, true)] {
         let eng = Engine::new(sc);
         let full = eng.run(&Options { layers, cutoff_m: None, progress: false });
@@ -317,4 +321,51 @@ fn cutoff_keeps_servers_exact_and_sinr_bounded() {
             assert!(cut.pair_evaluations < full.pair_evaluations / 2, "the cutoff saved too little");
         }
     }
+}
+
+/// The map's obstruction sweep (`engine::sweep`) against the exact per-path float64
+/// single-edge loss on the same surface (`Surface::obstruction` with `Edges::One`: ITU-R
+/// P.526-16 eq. 31 on the largest-ν point of a profile sampled every quarter cell), on the demo
+/// site, for 2,000 seeded (node, cell) pairs. Prints the figures recorded in
+/// docs/obstruction-accuracy.md (measured: 99.1 % agreement, 90 % of losses within 0.8 dB).
+/// Bounds: line of sight agrees on at least 98 % of the pairs (disagreements sit on shadow
+/// edges, where a ray one cell wide and the profile's quarter-cell samples see a clipped
+/// corner differently; `engine::sweep`'s unit test shows they are only there), the loss is
+/// within 1.5 dB on 90 % of the pairs and within 1 dB on average (the sweep takes the
+/// steepest obstacle from the node, the exact profile the largest ν).
+#[test]
+fn map_obstruction_sweep_against_the_exact_profile() {
+    use lobemap::model::obstruction::Edges;
+    let sc = Scenario::load(std::path::Path::new("sites/harbourlight/scenario.toml")).unwrap();
+    let eng = Engine::new(&sc);
+    let g = sc.grid();
+    let mut rng = rand_pcg::Pcg64::seed_from_u64(19);
+    let (mut agree, mut n, mut errs) = (0usize, 0usize, Vec::new());
+    let mut shadowed = 0usize;
+    for node in 0..sc.nodes().len() {
+        let sw = eng.sweep_obstruction(node).unwrap();
+        for _ in 0..2000 / sc.nodes().len() + 1 {
+            let (r, c) = (rng.random_range(0..g.rows()), rng.random_range(0..g.cols()));
+            let (lon, lat) = (g.lon_of_col(c), g.lat_of_row(r));
+            let exact = sc.node_to_point(&sc.nodes()[node], lon, lat, Edges::One);
+            let (db, los) = sw[r * g.cols() + c];
+            n += 1;
+            agree += (los == exact.line_of_sight) as usize;
+            shadowed += (!exact.line_of_sight) as usize;
+            errs.push((db as f64 - exact.loss_db).abs());
+        }
+    }
+    errs.sort_by(f64::total_cmp);
+    let q = |p: f64| errs[((errs.len() - 1) as f64 * p) as usize];
+    let mean = errs.iter().sum::<f64>() / errs.len() as f64;
+    println!(
+        "sweep vs exact: {n} pairs ({shadowed} shadowed), line of sight agrees on {:.2} %, |error| mean {mean:.3} dB, median {:.3}, 90 % {:.3}, 99 % {:.3}, max {:.3} dB",
+        100.0 * agree as f64 / n as f64,
+        q(0.5),
+        q(0.9),
+        q(0.99),
+        q(1.0)
+    );
+    assert!(agree as f64 >= 0.98 * n as f64);
+    assert!(q(0.9) <= 1.5 && mean <= 1.0);
 }

@@ -220,8 +220,10 @@ struct MapArgs {
     /// Output folder (default: outputs/<scenario name>/, or outputs/demo/ for the demo).
     #[arg(long)]
     out: Option<PathBuf>,
-    /// Layers to compute and write, comma-separated: total, interference, sinr, server, coverage.
-    #[arg(long, default_value = "total,interference,sinr,server,coverage")]
+    /// Layers to compute and write, comma-separated: total, interference, sinr, server,
+    /// coverage, visible (nodes in line of sight; needs a [surface], and is added to the
+    /// default there).
+    #[arg(long, default_value = DEFAULT_LAYERS)]
     layers: String,
     /// Skip nodes farther than this from a grid row (m); the dropped power is bounded and
     /// reported as `neglected_db` in summary.json.
@@ -331,7 +333,8 @@ pub fn run(cli: Cli) -> anyhow::Result<ExitCode> {
         }
         Cmd::Check { scenario, max_memory_mib } => match Scenario::load(&scenario) {
             Ok(sc) => {
-                lobemap::run::map::check_memory(&sc, LayerSet::ALL.count(), max_memory_mib)?;
+                let layers = LayerSet::ALL.count() + sc.surface().is_some() as usize;
+                lobemap::run::map::check_memory(&sc, layers, max_memory_mib)?;
                 for w in lobemap::jobs::spacing::isolated_nodes(&sc) {
                     eprintln!(
                         "warning: node `{}` is {:.1} km from its nearest neighbour while the median spacing is {:.0} m: check its coordinates (GeoJSON is [lon, lat])",
@@ -348,7 +351,7 @@ pub fn run(cli: Cli) -> anyhow::Result<ExitCode> {
                     sc.grid().rows(),
                     sc.grid().cell_m(),
                     sc.noise_dbm(),
-                    sc.grid().estimate_bytes(LayerSet::ALL.count(), rayon::current_num_threads()) as f64 / 1048576.0
+                    lobemap::run::map::estimate_bytes(&sc, layers) as f64 / 1048576.0
                 );
                 Ok(ExitCode::SUCCESS)
             }
@@ -405,8 +408,21 @@ fn parse_lat_lon(s: &str) -> anyhow::Result<(f64, f64)> {
     Ok((lat, lon))
 }
 
+/// The `--layers` default.
+const DEFAULT_LAYERS: &str = "total,interference,sinr,server,coverage";
+
 fn map_cmd(sc: &Scenario, a: MapArgs, quiet: bool, default_out: Option<&str>) -> anyhow::Result<ExitCode> {
-    let layers = LayerSet::parse(&a.layers).map_err(|m| bad_flag("--layers", m))?;
+    let mut layers = LayerSet::parse(&a.layers).map_err(|m| bad_flag("--layers", m))?;
+    if layers.visible && sc.surface().is_none() {
+        return Err(bad_flag(
+            "--layers",
+            "layer `visible` counts nodes in line of sight and needs a [surface] table in the scenario".into(),
+        ));
+    }
+    // Over a surface the default layers include the line-of-sight count.
+    if a.layers == DEFAULT_LAYERS && sc.surface().is_some() {
+        layers.visible = true;
+    }
     if let Some(c) = a.cutoff_m
         && !(c.is_finite() && c > 0.0)
     {

@@ -8,6 +8,7 @@ pub(crate) mod nodes;
 pub(crate) mod range;
 pub(crate) mod raw;
 pub(crate) mod scenario;
+pub(crate) mod surface;
 
 /// Reads an input file as text, refusing anything but a regular file (a FIFO would block for
 /// ever, a device or a folder is never an input).

@@ -25,6 +25,7 @@ pub(crate) struct RawScenario {
     pub(crate) links: RawLinks,
     #[serde(default)]
     pub(crate) install: RawInstall,
+    pub(crate) surface: Option<crate::config::surface::RawSurface>,
 }
 
 #[derive(Debug, Default, Deserialize)]
@@ -91,6 +92,7 @@ pub(crate) struct RawReceiver {
     pub(crate) gain_dbi: Option<f64>,
     pub(crate) beamwidth_deg: Option<f64>,
     pub(crate) sidelobe_dbi: Option<f64>,
+    pub(crate) rooftop: Option<bool>,
 }
 
 #[derive(Debug, Deserialize)]

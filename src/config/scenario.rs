@@ -349,6 +349,34 @@ impl Scenario {
                 ),
             )));
         }
+        let frame = LocalFrame::new(clat, clon);
+        let surface = match &raw.surface {
+            None => None,
+            Some(rs) => {
+                let index: std::collections::HashMap<&str, usize> =
+                    nodes.iter().enumerate().map(|(i, n)| (n.id.as_str(), i)).collect();
+                let links: Vec<(usize, usize)> = nodes
+                    .iter()
+                    .enumerate()
+                    .filter_map(|(i, n)| n.peer.as_deref().and_then(|p| index.get(p)).map(|&j| (i, j)))
+                    .filter(|&(i, j)| i < j || nodes[j].peer.as_deref() != Some(nodes[i].id.as_str()))
+                    .collect();
+                let mut probs = Problems::default();
+                let s = crate::config::surface::build(
+                    rs,
+                    rx.rooftop.unwrap_or(true),
+                    dir,
+                    &file,
+                    &grid,
+                    &frame,
+                    &nodes,
+                    &links,
+                    &mut probs,
+                );
+                probs.into_result()?;
+                s.map(std::sync::Arc::new)
+            }
+        };
         Ok(Scenario {
             name: raw.name,
             path: path.to_path_buf(),
@@ -358,7 +386,7 @@ impl Scenario {
             pathloss,
             receiver: Receiver { height_m: rx_height, antenna: receiver_antenna },
             grid,
-            frame: LocalFrame::new(clat, clon),
+            frame,
             thresholds: thr,
             draw,
             // Incomplete defaults are fine when every node completes them.
@@ -370,6 +398,7 @@ impl Scenario {
             },
             links: LinkSettings { capacity_gap_db, max_spectral_efficiency: max_se },
             install: InstallSettings { declination_date: declination_date.unwrap_or((2026, 1)) },
+            surface,
         })
     }
 }

@@ -6,22 +6,79 @@
 
 use crate::math::fastmath::{fast_exp2, fast_log2};
 
-/// Per node–cell attenuation on the mean power (obstruction by buildings or terrain): the
-/// seam through which a surface model enters every pair. `apply` returns `p` times the
-/// factor of node `node` at column `col` of the row being computed (a model that depends on
-/// the row builds its value per row).
+/// Per node–cell attenuation on the mean power and the vertical offset of each pair
+/// (obstruction by buildings or terrain): the seam through which a surface model enters every
+/// pair. `for_node` gives the view of one node over the row being computed (`len` cells).
 pub(crate) trait PairFactor: Copy + Send + Sync {
-    /// `p` attenuated for node `node` at column `col`.
-    fn apply(self, node: u32, col: usize, p: f32) -> f32;
+    /// One node's view.
+    type Node: NodeFactor;
+    /// The view of node `node` over the row's `len` cells.
+    fn for_node(self, node: u32, len: usize) -> Self::Node;
 }
 
-/// No attenuation: line of sight on every pair (compiles to nothing).
+/// One node's attenuation over a row.
+pub(crate) trait NodeFactor: Copy {
+    /// `p` attenuated at column `col`.
+    fn apply(self, col: usize, p: f32) -> f32;
+    /// Squared 3-D distance at column `col` from the horizontal `w2` and the flat-ground
+    /// squared height difference `dz2`.
+    fn d2(self, col: usize, w2: f32, dz2: f32) -> f32;
+}
+
+/// No attenuation: line of sight on every pair over flat ground (compiles to nothing).
 #[derive(Clone, Copy)]
 pub(crate) struct Unobstructed;
 impl PairFactor for Unobstructed {
+    type Node = Unobstructed;
     #[inline(always)]
-    fn apply(self, _node: u32, _col: usize, p: f32) -> f32 {
+    fn for_node(self, _node: u32, _len: usize) -> Unobstructed {
+        Unobstructed
+    }
+}
+impl NodeFactor for Unobstructed {
+    #[inline(always)]
+    fn apply(self, _col: usize, p: f32) -> f32 {
         p
+    }
+    #[inline(always)]
+    fn d2(self, _col: usize, w2: f32, dz2: f32) -> f32 {
+        w2 + dz2
+    }
+}
+
+/// The surface's factors for one row: `f[node * stride + col]` signed (negative out of line
+/// of sight), the receiver altitude per column and each node's antenna altitude.
+#[derive(Clone, Copy)]
+pub(crate) struct Obstructed<'a> {
+    pub(crate) f: &'a [f32],
+    pub(crate) stride: usize,
+    pub(crate) zr: &'a [f32],
+    pub(crate) ztx: &'a [f32],
+}
+/// [`Obstructed`] for one node.
+#[derive(Clone, Copy)]
+pub(crate) struct ObstructedNode<'a> {
+    f: &'a [f32],
+    zr: &'a [f32],
+    z: f32,
+}
+impl<'a> PairFactor for Obstructed<'a> {
+    type Node = ObstructedNode<'a>;
+    #[inline(always)]
+    fn for_node(self, node: u32, len: usize) -> ObstructedNode<'a> {
+        let base = node as usize * self.stride;
+        ObstructedNode { f: &self.f[base..base + len], zr: &self.zr[..len], z: self.ztx[node as usize] }
+    }
+}
+impl NodeFactor for ObstructedNode<'_> {
+    #[inline(always)]
+    fn apply(self, col: usize, p: f32) -> f32 {
+        p * self.f[col].abs()
+    }
+    #[inline(always)]
+    fn d2(self, col: usize, w2: f32, _dz2: f32) -> f32 {
+        let dz = self.z - self.zr[col];
+        w2 + dz * dz
     }
 }
 
@@ -207,11 +264,12 @@ pub(crate) fn pass_sum<D: Decay, G: TxGain, A: PairFactor>(
 ) {
     let len = xs.len();
     let (ys, sum) = (&ys[..len], &mut sum[..len]);
+    let af = a.for_node(n.idx, len);
     for c in 0..len {
         let wx = xs[c] - n.x;
         let wy = ys[c] - n.y;
         let w2 = wx * wx + wy * wy;
-        let p = a.apply(n.idx, c, g.eval(n, wx, wy, w2) * d.inv(w2 + n.dz2));
+        let p = af.apply(c, g.eval(n, wx, wy, w2) * d.inv(af.d2(c, w2, n.dz2)));
         sum[c] += n.act * p;
     }
 }
@@ -222,11 +280,12 @@ pub(crate) fn pass_full<D: Decay, G: TxGain, A: PairFactor>(d: D, g: G, a: A, n:
     let (xs, ys) = (&b.xs[..len], &b.ys[..len]);
     let (best, bestw, other, server) =
         (&mut b.best[..len], &mut b.bestw[..len], &mut b.other[..len], &mut b.server[..len]);
+    let af = a.for_node(n.idx, len);
     for c in 0..len {
         let wx = xs[c] - n.x;
         let wy = ys[c] - n.y;
         let w2 = wx * wx + wy * wy;
-        let p = a.apply(n.idx, c, g.eval(n, wx, wy, w2) * d.inv(w2 + n.dz2));
+        let p = af.apply(c, g.eval(n, wx, wy, w2) * d.inv(af.d2(c, w2, n.dz2)));
         let ap = n.act * p;
         let better = p > best[c];
         // The running sum of every node but the current best: no cancellation.
@@ -251,11 +310,12 @@ pub(crate) fn pass_aimed<D: Decay, G: TxGain, A: PairFactor, C: RxCoupling>(
     let len = b.xs.len();
     let (xs, ys, ux, uy, server, iacc) =
         (&b.xs[..len], &b.ys[..len], &b.ux[..len], &b.uy[..len], &b.server[..len], &mut b.iacc[..len]);
+    let af = a.for_node(n.idx, len);
     for c in 0..len {
         let wx = xs[c] - n.x;
         let wy = ys[c] - n.y;
         let w2 = wx * wx + wy * wy;
-        let p = a.apply(n.idx, c, g.eval(n, wx, wy, w2) * d.inv(w2 + n.dz2));
+        let p = af.apply(c, g.eval(n, wx, wy, w2) * d.inv(af.d2(c, w2, n.dz2)));
         // Receiver boresight u points at the server; the node lies along −w.
         let p = cp.apply(n.idx, server[c], p);
         let t = -(ux[c] * wx + uy[c] * wy);
@@ -322,11 +382,12 @@ pub(crate) fn pass_cov_exact<D: Decay, G: TxGain, A: PairFactor, C: RxCoupling, 
     let (xs, ys, ux, uy, server, tinv) =
         (&b.xs[..len], &b.ys[..len], &b.ux[..len], &b.uy[..len], &b.server[..len], &b.tinv[..len]);
     let (acc, iacc) = (&mut b.cacc[..len], &mut b.iacc[..len]);
+    let af = a.for_node(n.idx, len);
     for c in 0..len {
         let wx = xs[c] - n.x;
         let wy = ys[c] - n.y;
         let w2 = wx * wx + wy * wy;
-        let p = a.apply(n.idx, c, g.eval(n, wx, wy, w2) * d.inv(w2 + n.dz2));
+        let p = af.apply(c, g.eval(n, wx, wy, w2) * d.inv(af.d2(c, w2, n.dz2)));
         let p = cp.apply(n.idx, server[c], p);
         let t = -(ux[c] * wx + uy[c] * wy);
         let gr = if t * t.abs() >= rcc * w2 { rmain } else { rside };
@@ -365,11 +426,12 @@ pub(crate) fn pass_cov_strong<D: Decay, G: TxGain, A: PairFactor, C: RxCoupling>
     let len = b.xs.len();
     let (xs, ys, ux, uy, server) = (&b.xs[..len], &b.ys[..len], &b.ux[..len], &b.uy[..len], &b.server[..len]);
     let (iacc, var, qbuf) = (&mut b.iacc[..len], &mut b.cvar[..len], &mut b.qbuf[..len]);
+    let af = a.for_node(n.idx, len);
     for c in 0..len {
         let wx = xs[c] - n.x;
         let wy = ys[c] - n.y;
         let w2 = wx * wx + wy * wy;
-        let p = a.apply(n.idx, c, g.eval(n, wx, wy, w2) * d.inv(w2 + n.dz2));
+        let p = af.apply(c, g.eval(n, wx, wy, w2) * d.inv(af.d2(c, w2, n.dz2)));
         let p = cp.apply(n.idx, server[c], p);
         let t = -(ux[c] * wx + uy[c] * wy);
         let gr = if t * t.abs() >= rcc * w2 { rmain } else { rside };

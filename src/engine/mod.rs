@@ -18,8 +18,9 @@
 //! - With log-normal shadowing of σ dB every mean power is E\[10^(X/10)\] = exp((σ ln10/10)²/2)
 //!   times the unshadowed one; the best server (an argmax) does not change.
 
-use crate::engine::kernels::{CoChannel, Cube, Decay, Fast, NodeK, Quart, RowBufs, Sq, Unobstructed};
+use crate::engine::kernels::{CoChannel, Cube, Decay, Fast, NodeK, Obstructed, Quart, RowBufs, Sq, Unobstructed};
 use crate::engine::row::{RowJob, row};
+use crate::engine::sweep::{SweepNode, SweepSpec, sweep};
 use crate::model::scenario::Scenario;
 use crate::model::units::lin_to_db;
 use rayon::prelude::*;
@@ -28,6 +29,7 @@ use rstar::{RTree, primitives::GeomWithData};
 pub(crate) mod kernels;
 mod prepare;
 mod row;
+mod sweep;
 
 /// Which layers to compute and write.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
@@ -42,18 +44,22 @@ pub struct LayerSet {
     pub server: bool,
     /// Coverage probability P\[SINR ≥ T\] with fading.
     pub coverage: bool,
+    /// Number of transmitting nodes in line of sight (needs a surface).
+    pub visible: bool,
 }
 
 impl LayerSet {
-    /// Every layer.
-    pub const ALL: LayerSet = LayerSet { total: true, interference: true, sinr: true, server: true, coverage: true };
+    /// Every layer but `visible` (which needs a surface).
+    pub const ALL: LayerSet =
+        LayerSet { total: true, interference: true, sinr: true, server: true, coverage: true, visible: false };
     /// Only `total`.
     pub const TOTAL: LayerSet =
-        LayerSet { total: true, interference: false, sinr: false, server: false, coverage: false };
+        LayerSet { total: true, interference: false, sinr: false, server: false, coverage: false, visible: false };
 
     /// Parses a comma-separated list such as `total,sinr`.
     pub fn parse(s: &str) -> Result<LayerSet, String> {
-        let mut l = LayerSet { total: false, interference: false, sinr: false, server: false, coverage: false };
+        let mut l =
+            LayerSet { total: false, interference: false, sinr: false, server: false, coverage: false, visible: false };
         for name in s.split(',').map(str::trim).filter(|x| !x.is_empty()) {
             match name {
                 "total" => l.total = true,
@@ -61,22 +67,26 @@ impl LayerSet {
                 "sinr" => l.sinr = true,
                 "server" => l.server = true,
                 "coverage" => l.coverage = true,
+                "visible" => l.visible = true,
                 other => {
                     return Err(format!(
-                        "unknown layer `{other}`; allowed: total, interference, sinr, server, coverage"
+                        "unknown layer `{other}`; allowed: total, interference, sinr, server, coverage, visible"
                     ));
                 }
             }
         }
         if l.count() == 0 {
-            return Err("no layer named; allowed: total, interference, sinr, server, coverage".into());
+            return Err("no layer named; allowed: total, interference, sinr, server, coverage, visible".into());
         }
         Ok(l)
     }
 
     /// Number of layers selected.
     pub fn count(&self) -> usize {
-        [self.total, self.interference, self.sinr, self.server, self.coverage].iter().filter(|b| **b).count()
+        [self.total, self.interference, self.sinr, self.server, self.coverage, self.visible]
+            .iter()
+            .filter(|b| **b)
+            .count()
     }
 
     fn needs_server(&self) -> bool {
@@ -110,6 +120,8 @@ pub struct Layers {
     pub server: Option<Vec<f32>>,
     /// `coverage`, probability 0..1.
     pub coverage: Option<Vec<f32>>,
+    /// `visible`, transmitting nodes in line of sight.
+    pub visible: Option<Vec<f32>>,
     /// Node-cell pair evaluations performed.
     pub pair_evaluations: u64,
     /// With a cutoff: the worst cell's upper bound on the dropped power, dB relative to noise.
@@ -134,9 +146,42 @@ pub struct Engine<'s> {
     /// layers are means of the shadowed powers.
     pub(crate) shadow_mean: f32,
     pub(crate) cov: crate::model::coverage::CoverageModel,
+    /// With a surface: what the sweep and the obstructed kernels need.
+    pub(crate) obs: Option<ObsPrep>,
 }
 
+/// The surface prepared for the map: each node's lattice position and antenna altitude.
+pub(crate) struct ObsPrep {
+    pub(crate) nodes: Vec<SweepNode>,
+    pub(crate) ztx: Vec<f32>,
+    pub(crate) wavelength_m: f32,
+}
+
+/// Memory for one band of sweep factors (4 bytes a node a cell), bytes: the map is computed
+/// in bands of rows that fit.
+pub const SWEEP_BAND_BYTES: usize = 256 << 20;
+
 impl Engine<'_> {
+    /// The map's obstruction of node `node` on every grid cell (row-major): loss in dB and
+    /// whether the cell is in line of sight, as the map's sweep computes them; `None` without
+    /// a surface. For checks against the exact profile ([`crate::model::surface::Surface::obstruction`]).
+    pub fn sweep_obstruction(&self, node: usize) -> Option<Vec<(f32, bool)>> {
+        let (o, surf) = (self.obs.as_ref()?, self.sc.surface()?);
+        let g = &self.sc.grid;
+        let (rows, cols) = (g.rows(), g.cols());
+        let rx_h = self.sc.receiver.height_m as f32;
+        let zr: Vec<f32> = (0..rows * cols)
+            .map(|k| {
+                let i = (k / cols + surf.r0) * surf.cols + k % cols + surf.c0;
+                (if surf.rooftop { surf.top[i] } else { surf.ground[i] }) + rx_h
+            })
+            .collect();
+        let spec = SweepSpec { surface: surf, wavelength_m: o.wavelength_m, band: (0, rows), map_cols: cols, zr: &zr };
+        let mut out = vec![0f32; rows * cols];
+        sweep(&spec, &o.nodes[node], &mut out);
+        Some(out.into_iter().map(|f| (-10.0 * f.abs().log10(), f > 0.0)).collect())
+    }
+
     /// How the coverage layer is computed.
     pub fn coverage_method(&self) -> crate::model::coverage::Method {
         self.cov.method
@@ -169,6 +214,7 @@ impl Engine<'_> {
         let mut sinr = alloc(l.sinr);
         let mut server = alloc(l.server);
         let mut coverage = alloc(l.coverage);
+        let mut visible = alloc(l.visible && self.obs.is_some());
         fn chunks(v: &mut Option<Vec<f32>>, cols: usize, rows: usize) -> Vec<Option<&mut [f32]>> {
             match v {
                 Some(v) => v.chunks_mut(cols).map(Some).collect(),
@@ -195,23 +241,91 @@ impl Engine<'_> {
         } else {
             indicatif::ProgressBar::hidden()
         };
-        let per_row: Vec<(u64, f64)> = work
-            .into_par_iter()
-            .map_init(
+        let mut per_row: Vec<(u64, f64)> = Vec::with_capacity(rows);
+        match (&self.obs, self.sc.surface()) {
+            (Some(o), Some(surf)) => {
+                let band = (SWEEP_BAND_BYTES / (4 * cols * self.nodes.len().max(1))).clamp(1, rows);
+                let mut visible_out = visible.as_deref_mut().map(|v| v.chunks_mut(band * cols));
+                let mut fbuf = vec![0f32; self.nodes.len() * band * cols];
+                let mut work = work.into_iter();
+                let rx_h = self.sc.receiver.height_m as f32;
+                for b0 in (0..rows).step_by(band) {
+                    let b1 = (b0 + band).min(rows);
+                    let stride = (b1 - b0) * cols;
+                    // Receiver altitudes of the band's cells.
+                    let mut zr = vec![0f32; stride];
+                    for (k, z) in zr.iter_mut().enumerate() {
+                        let (r, c) = (b0 + k / cols + surf.r0, k % cols + surf.c0);
+                        let i = r * surf.cols + c;
+                        *z = if surf.rooftop { surf.top[i] } else { surf.ground[i] } + rx_h;
+                    }
+                    let spec = SweepSpec {
+                        surface: surf,
+                        wavelength_m: o.wavelength_m,
+                        band: (b0, b1),
+                        map_cols: cols,
+                        zr: &zr,
+                    };
+                    fbuf[..self.nodes.len() * stride].par_chunks_mut(stride).enumerate().for_each(|(i, out)| {
+                        if self.nodes[i].act > 0.0 {
+                            sweep(&spec, &o.nodes[i], out);
+                        } else {
+                            out.fill(0.0);
+                        }
+                    });
+                    let fb = &fbuf[..self.nodes.len() * stride];
+                    if let Some(vis) = visible_out.as_mut().and_then(|it| it.next()) {
+                        vis.par_chunks_mut(cols).enumerate().for_each(|(rb, vrow)| {
+                            for &k in &self.active {
+                                let f = &fb[k * stride + rb * cols..k * stride + (rb + 1) * cols];
+                                for (v, x) in vrow.iter_mut().zip(f) {
+                                    *v += if *x > 0.0 { 1.0 } else { 0.0 };
+                                }
+                            }
+                        });
+                    }
+                    let band_work: Vec<_> = work.by_ref().take(b1 - b0).collect();
+                    per_row.par_extend(band_work.into_par_iter().map_init(
+                        || RowBufs::new(cols),
+                        |bufs, (r, out)| {
+                            let rb = r - b0;
+                            let a = Obstructed {
+                                f: &fb[rb * cols..],
+                                stride,
+                                zr: &zr[rb * cols..(rb + 1) * cols],
+                                ztx: &o.ztx,
+                            };
+                            let res = row(self, d, a, CoChannel, RowJob { r, l, cutoff: opts.cutoff_m, out }, bufs);
+                            bar.inc(1);
+                            res
+                        },
+                    ));
+                }
+            }
+            _ => per_row.par_extend(work.into_par_iter().map_init(
                 || RowBufs::new(cols),
                 |bufs, (r, out)| {
                     let out = row(self, d, Unobstructed, CoChannel, RowJob { r, l, cutoff: opts.cutoff_m, out }, bufs);
                     bar.inc(1);
                     out
                 },
-            )
-            .collect();
+            )),
+        }
         bar.finish_and_clear();
         let pairs = per_row.iter().map(|x| x.0).sum();
         let neglected = opts.cutoff_m.map(|_| {
             let worst = per_row.iter().map(|x| x.1).fold(0.0, f64::max);
             if worst > 0.0 { lin_to_db(worst / self.noise_mw) } else { -300.0 }
         });
-        Layers { total, interference, sinr, server, coverage, pair_evaluations: pairs, neglected_db: neglected }
+        Layers {
+            total,
+            interference,
+            sinr,
+            server,
+            coverage,
+            visible,
+            pair_evaluations: pairs,
+            neglected_db: neglected,
+        }
     }
 }

@@ -1,9 +1,11 @@
 //! Preparing a scenario for the kernels: local coordinates, unit boresights, linear powers
 //! with the 1 m loss folded in, pattern tables, the receiver's lowered form and the R-tree.
 
-use crate::engine::Engine;
 use crate::engine::kernels::{LUT_LEN, NodeK};
+use crate::engine::sweep::SweepNode;
+use crate::engine::{Engine, ObsPrep};
 use crate::model::antenna::{AntennaPattern, GainForm, Pattern, signed_cos_sq_half_beam};
+use crate::model::obstruction::wavelength_m;
 use crate::model::scenario::{ReceiverAntenna, Scenario};
 use crate::model::units::{db_to_lin, dbm_to_mw};
 use rstar::{RTree, primitives::GeomWithData};
@@ -38,7 +40,9 @@ impl<'s> Engine<'s> {
                 NodeK {
                     x: x as f32,
                     y: y as f32,
-                    dz2: ((n.height_m - rx_h) * (n.height_m - rx_h)) as f32,
+                    // Over a surface the kernels take each pair's height difference from the
+                    // altitudes; 0 here keeps the cutoff's bound an upper bound.
+                    dz2: if sc.surface.is_some() { 0.0 } else { ((n.height_m - rx_h) * (n.height_m - rx_h)) as f32 },
                     bx: az.sin() as f32,
                     by: az.cos() as f32,
                     cc: n.pattern.signed_cos_sq_half_beam() as f32,
@@ -66,6 +70,18 @@ impl<'s> Engine<'s> {
             )),
         };
         let active = nodes.iter().filter(|n| n.act > 0.0).map(|n| n.idx as usize).collect();
+        let obs = sc.surface().map(|s| {
+            let (nodes, ztx) = sc
+                .nodes
+                .iter()
+                .map(|n| {
+                    let (u, v) = s.position(n.lon, n.lat);
+                    let z = sc.node_alt_m(n) as f32;
+                    (SweepNode { u, v, z }, z)
+                })
+                .unzip();
+            ObsPrep { nodes, ztx, wavelength_m: wavelength_m(sc.pathloss.frequency_ghz()) as f32 }
+        });
         Engine {
             sc,
             nodes,
@@ -80,6 +96,7 @@ impl<'s> Engine<'s> {
             g_signal: db_to_lin(sc.receiver.max_gain_dbi()) as f32,
             shadow_mean: sc.fading.shadow_mean() as f32,
             cov: crate::model::coverage::CoverageModel::new(sc.fading, sc.thresholds.sinr_db, sc.noise_dbm()),
+            obs,
         }
     }
 }

@@ -51,6 +51,8 @@ pub struct MapSpec<'a> {
     pub links: &'a [(usize, usize)],
     /// Polygon rings (lon, lat) outlined over the map, e.g. hot spots.
     pub outlines: &'a [Vec<(f64, f64)>],
+    /// Building footprints (outer rings, lon/lat), drawn as thin grey outlines.
+    pub footprints: &'a [Vec<(f64, f64)>],
 }
 
 /// Unit label of probability layers, always drawn on a fixed 0..1 scale.
@@ -137,6 +139,11 @@ pub fn render(spec: &MapSpec) -> Result<Rendered, String> {
         let root = BitMapBackend::with_buffer(&mut buf, (w, h)).into_drawing_area();
         let e = |x: DrawingAreaErrorKind<_>| x.to_string();
         let ink = RGBColor(20, 24, 32);
+        // Building footprints beneath everything else.
+        for ring in spec.footprints {
+            let pts: Vec<(i32, i32)> = ring.iter().map(|&(lon, lat)| to_px(lon, lat)).collect();
+            root.draw(&PathElement::new(pts, RGBColor(70, 70, 70).stroke_width(1))).map_err(e)?;
+        }
         // Planned links.
         for &(a, bb) in spec.links {
             let (p, q) = (&spec.markers[a], &spec.markers[bb]);

@@ -28,6 +28,7 @@ pub(crate) struct Context<'a> {
     pub(crate) grid: &'a Grid,
     pub(crate) markers: &'a [Marker],
     pub(crate) links: &'a [(usize, usize)],
+    pub(crate) footprints: &'a [Vec<(f64, f64)>],
 }
 
 /// Writes one layer in one format; returns the file names written.
@@ -67,6 +68,7 @@ impl LayerWriter for Heatmap {
             markers: cx.markers,
             links: cx.links,
             outlines: &layer.outlines,
+            footprints: cx.footprints,
         })
         .map_err(|e| Error::Output { path: st.dir().join(layer.name), source: std::io::Error::other(e) })?;
         let (png, pgw) = (format!("{}.png", layer.name), format!("{}.pgw", layer.name));

@@ -15,7 +15,8 @@
 
 use crate::jobs::links::angle_diff;
 use crate::jobs::links::link_azimuths;
-use crate::model::link::{Budget, Endpoint, Geometry};
+use crate::model::link::{Budget, Geometry};
+use crate::model::obstruction::{EARTH_RADIUS_M, Edges};
 use crate::model::scenario::Scenario;
 use serde::Serialize;
 use world_magnetic_model::GeomagneticField;
@@ -129,14 +130,18 @@ pub fn sheet(sc: &Scenario) -> Result<InstallSheet, String> {
         let (set_deg, tilt, expected) = match peer {
             Some(p) => {
                 let (to_peer, _) = link_azimuths(n, p);
-                let (e0, e1) = (
-                    Endpoint::at(&sc.frame, n.lon, n.lat, n.height_m),
-                    Endpoint::at(&sc.frame, p.lon, p.lat, p.height_m),
-                );
+                let (e0, e1) = (sc.node_end(n), sc.node_end(p));
                 let g = Geometry::between(&e0, &e1);
                 let horiz = g.east_m.hypot(g.north_m);
-                let tilt = (n.height_m - p.height_m).atan2(horiz).to_degrees();
-                let level = Budget::aligned(&sc.pathloss, n, g).received_dbm(p.pattern.max_gain_dbi());
+                // Over a surface the ends' altitudes differ by the ground too, and the Earth
+                // drops by d/(2·k·a) radians of apparent elevation (common practice).
+                let drop = sc.surface().map_or(0.0, |s| horiz / (2.0 * s.earth_k() * EARTH_RADIUS_M));
+                let tilt = ((e0.height_m - e1.height_m) / horiz.max(1e-9)).atan().to_degrees() + drop.to_degrees();
+                let tilt =
+                    if sc.surface().is_some() { tilt } else { (n.height_m - p.height_m).atan2(horiz).to_degrees() };
+                let obs = sc.node_to_node(n, p, Edges::Three);
+                let level =
+                    Budget::aligned(&sc.pathloss, n, g).obstructed(obs.loss_db).received_dbm(p.pattern.max_gain_dbi());
                 (to_peer, Some((tilt * 100.0).round() / 100.0), Some((level * 100.0).round() / 100.0))
             }
             None => (n.azimuth_deg, None, None),

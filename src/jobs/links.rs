@@ -14,6 +14,7 @@ use crate::jobs::probe::McCheck;
 use crate::model::coverage::CoverageModel;
 use crate::model::link::{Budget, Endpoint, Geometry, gain_toward};
 use crate::model::node::Node;
+use crate::model::obstruction::Edges;
 use crate::model::scenario::Scenario;
 use crate::model::units::{db_to_lin, dbm_to_mw, mw_to_dbm, round_dp};
 use rayon::prelude::*;
@@ -77,6 +78,17 @@ pub struct LinkRow {
     pub top_interferers: Vec<Share>,
     /// SINR ≥ threshold and coverage ≥ target.
     pub passes: bool,
+    /// Whether the straight ray between the antennas clears the surface.
+    pub line_of_sight: bool,
+    /// Least clearance over the first Fresnel zone radius (negative when the ray is blocked);
+    /// none without a surface or interior point.
+    pub clearance_f1: Option<f64>,
+    /// Whether the clearance meets the 60 % rule ([`CLEARANCE_RULE`]).
+    pub clearance_ok: bool,
+    /// Obstruction (diffraction) loss on the link, dB.
+    pub obstruction_db: f64,
+    /// What limits the clearance: a building's label or "ground at N m" (from the `from` end).
+    pub limited_by: Option<String>,
     /// Monte Carlo check of `coverage`.
     #[serde(skip_serializing_if = "Option::is_none")]
     pub monte_carlo: Option<McCheck>,
@@ -94,9 +106,13 @@ pub fn angle_diff(a: f64, b: f64) -> f64 {
     if d > 180.0 { d - 360.0 } else { d }
 }
 
+/// Least clearance over the first Fresnel zone radius a link needs: 0.6 (common practice;
+/// ITU-R P.530 gives clearance criteria of this kind for line-of-sight links).
+pub const CLEARANCE_RULE: f64 = 0.6;
+
 /// Computes every planned link, in node order; `mc` = (trials, seed) adds Monte Carlo checks.
 pub fn links(sc: &Scenario, mc: Option<(usize, u64)>) -> Vec<LinkRow> {
-    let pos: Vec<Endpoint> = sc.nodes.iter().map(|n| Endpoint::at(&sc.frame, n.lon, n.lat, n.height_m)).collect();
+    let pos: Vec<Endpoint> = sc.nodes.iter().map(|n| sc.node_end(n)).collect();
     let index: std::collections::HashMap<&str, usize> =
         sc.nodes.iter().enumerate().map(|(i, n)| (n.id.as_str(), i)).collect();
     let pairs: Vec<(usize, usize)> = sc
@@ -134,7 +150,8 @@ fn one(
     // so the azimuth to set is right on long links far from the grid centre.
     let (brg, back) = link_azimuths(a, b);
     let path = Geometry::between(&pos[f], &pos[t]).with_bearings(brg, back);
-    let link = Budget::new(&sc.pathloss, a, path);
+    let obs = sc.node_to_node(a, b, Edges::Three);
+    let link = Budget::new(&sc.pathloss, a, path).obstructed(obs.loss_db);
     let length_m = link.geometry.distance_m;
     let mis_a = angle_diff(a.azimuth_deg, brg);
     let mis_b = angle_diff(b.azimuth_deg, back);
@@ -148,7 +165,8 @@ fn one(
         if i == f || i == t {
             continue;
         }
-        let path = Budget::new(&sc.pathloss, n, Geometry::between(&pos[i], &pos[t]));
+        let path = Budget::new(&sc.pathloss, n, Geometry::between(&pos[i], &pos[t]))
+            .obstructed(sc.node_to_node(n, b, Edges::Three).loss_db);
         let g_rx = gain_toward(b, path.geometry.bearing_from_rx_deg);
         contrib.push((i, n.activity, dbm_to_mw(path.received_dbm(g_rx))));
     }
@@ -204,6 +222,11 @@ fn one(
         capacity_mbps: round_dp(bw_hz * se / 1e6, 1),
         top_interferers,
         passes: sinr_db >= sc.thresholds.sinr_db && coverage >= sc.thresholds.coverage_target,
+        line_of_sight: obs.line_of_sight,
+        clearance_f1: obs.clearance_f1.is_finite().then(|| round_dp(obs.clearance_f1, 3)),
+        clearance_ok: obs.clearance_f1 >= CLEARANCE_RULE,
+        obstruction_db: round_dp(obs.loss_db, 2),
+        limited_by: obs.limit.and_then(|l| sc.surface().map(|s| s.describe(&l))),
         monte_carlo,
     }
 }
@@ -215,7 +238,7 @@ fn tops(r: &LinkRow) -> String {
 /// CSV with one row per link.
 pub fn csv(rows: &[LinkRow]) -> String {
     let mut s = String::from(
-        "from,to,length_m,bearing_deg,misalign_from_deg,misalign_to_deg,misaligned_from,misaligned_to,azimuth_from_should_deg,azimuth_to_should_deg,tx_gain_dbi,rx_gain_dbi,path_loss_db,signal_dbm,interference_dbm,noise_dbm,sinr_db,coverage,margin_db,capacity_mbps,passes,top_interferers,mc_estimate,mc_low,mc_high\n",
+        "from,to,length_m,bearing_deg,misalign_from_deg,misalign_to_deg,misaligned_from,misaligned_to,azimuth_from_should_deg,azimuth_to_should_deg,tx_gain_dbi,rx_gain_dbi,path_loss_db,signal_dbm,interference_dbm,noise_dbm,sinr_db,coverage,margin_db,capacity_mbps,passes,line_of_sight,clearance_f1,clearance_ok,obstruction_db,limited_by,top_interferers,mc_estimate,mc_low,mc_high\n",
     );
     for r in rows {
         let mc = r
@@ -224,7 +247,7 @@ pub fn csv(rows: &[LinkRow]) -> String {
             .map(|m| format!("{:.4},{:.4},{:.4}", m.estimate, m.low, m.high))
             .unwrap_or(",,".into());
         s += &format!(
-            "{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},\"{}\",{}\n",
+            "{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},\"{}\",\"{}\",{}\n",
             r.from,
             r.to,
             r.length_m,
@@ -246,6 +269,11 @@ pub fn csv(rows: &[LinkRow]) -> String {
             r.margin_db,
             r.capacity_mbps,
             r.passes,
+            r.line_of_sight,
+            r.clearance_f1.map(|v| v.to_string()).unwrap_or_default(),
+            r.clearance_ok,
+            r.obstruction_db,
+            r.limited_by.as_deref().unwrap_or(""),
             tops(r),
             mc
         );

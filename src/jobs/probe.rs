@@ -2,7 +2,8 @@
 //! path loss and received power, then total, best server, interference, noise and SINR.
 //! It follows the engine's definitions (see [`crate::engine`]) and serves as its reference.
 
-use crate::model::link::{Budget, Endpoint, Geometry};
+use crate::model::link::{Budget, Geometry};
+use crate::model::obstruction::{Edges, Obstruction};
 use crate::model::scenario::Scenario;
 use crate::model::units::{dbm_to_mw, mw_to_dbm};
 use serde::Serialize;
@@ -28,6 +29,16 @@ pub struct Contribution {
     pub power_dbm: f64,
     /// Fraction of time the node transmits.
     pub activity: f64,
+    /// Whether the straight ray from the node clears the surface.
+    pub line_of_sight: bool,
+    /// Obstruction (diffraction) loss, dB, included in `power_dbm`.
+    pub obstruction_db: f64,
+    /// ν of the point of least clearance (with a surface).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub nu: Option<f64>,
+    /// What limits the path: a building's label or "ground at N m" from the node.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub limited_by: Option<String>,
 }
 
 /// The full breakdown.
@@ -85,13 +96,13 @@ pub fn probe_with(sc: &Scenario, lat: f64, lon: f64, mc: Option<(usize, u64)>) -
     let rx = &sc.receiver;
     let g_omni = rx.omni_gain_dbi();
     // First pass: the transmit side of every path (the receiver's aim needs the server).
-    let point = Endpoint::at(&sc.frame, lon, lat, rx.height_m);
+    let point = sc.receiver_end(lon, lat);
+    let obs: Vec<Obstruction> = sc.nodes.iter().map(|n| sc.node_to_point(n, lon, lat, Edges::Three)).collect();
     let budgets: Vec<Budget> = sc
         .nodes
         .iter()
-        .map(|n| {
-            Budget::new(&sc.pathloss, n, Geometry::between(&Endpoint::at(&sc.frame, n.lon, n.lat, n.height_m), &point))
-        })
+        .zip(&obs)
+        .map(|(n, o)| Budget::new(&sc.pathloss, n, Geometry::between(&sc.node_end(n), &point)).obstructed(o.loss_db))
         .collect();
     // The server is the strongest node that transmits (the configuration refuses a layout in
     // which none does).
@@ -120,6 +131,10 @@ pub fn probe_with(sc: &Scenario, lat: f64, lon: f64, mc: Option<(usize, u64)>) -
                 path_loss_db: b.path_loss_db,
                 power_dbm: b.received_dbm(rx_gain),
                 activity: n.activity,
+                line_of_sight: obs[i].line_of_sight,
+                obstruction_db: b.obstruction_db,
+                nu: sc.surface().and(obs[i].limit).map(|l| l.nu),
+                limited_by: obs[i].limit.and_then(|l| sc.surface().map(|s| s.describe(&l))),
             }
         })
         .collect();
@@ -165,21 +180,27 @@ impl Probe {
     pub fn to_table(&self) -> String {
         let mut s = format!("point {:.6}, {:.6}\n", self.lat, self.lon);
         s += &format!(
-            "{:<14} {:>10} {:>8} {:>8} {:>8} {:>9} {:>10} {:>6}\n",
-            "node", "dist_m", "brg_deg", "tx_dBi", "rx_dBi", "loss_dB", "rx_dBm", "act"
+            "{:<14} {:>10} {:>8} {:>8} {:>8} {:>9} {:>8} {:>10} {:>6}\n",
+            "node", "dist_m", "brg_deg", "tx_dBi", "rx_dBi", "loss_dB", "obst_dB", "rx_dBm", "act"
         );
         for c in &self.contributions {
             s += &format!(
-                "{:<14} {:>10.1} {:>8.1} {:>8.2} {:>8.2} {:>9.2} {:>10.2} {:>6.2}\n",
+                "{:<14} {:>10.1} {:>8.1} {:>8.2} {:>8.2} {:>9.2} {:>7.2}{:1} {:>10.2} {:>6.2}{}\n",
                 c.id,
                 c.distance_m,
                 c.bearing_deg,
                 c.tx_gain_dbi,
                 c.rx_gain_dbi,
                 c.path_loss_db,
+                c.obstruction_db,
+                if c.line_of_sight { "" } else { "*" },
                 c.power_dbm,
-                c.activity
+                c.activity,
+                c.limited_by.as_deref().map(|l| format!("  {l}")).unwrap_or_default()
             );
+        }
+        if self.contributions.iter().any(|c| !c.line_of_sight) {
+            s += "'*' marks a node out of line of sight (the ray is blocked); the last column names the obstacle\n";
         }
         s += &format!("total         {:>10.2} dBm\n", self.total_dbm);
         s += &format!("best server   {:>10}\n", self.server);

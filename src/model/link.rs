@@ -3,8 +3,9 @@
 //! links, the installer sheet and the hot-spot ranking all go through it; the f32 engine is
 //! tested against it.
 //!
-//! Received power P_r = P_t + G_t(φ_t) + G_r(φ_r) − L(d), in dBm, with φ the off-axis angles
-//! and d the 3-D slant range (common practice; e.g. the Friis transmission equation in dB).
+//! Received power P_r = P_t + G_t(φ_t) + G_r(φ_r) − L(d) − A, in dBm, with φ the off-axis
+//! angles, d the 3-D slant range (common practice; e.g. the Friis transmission equation in dB)
+//! and A the obstruction loss of the surface ([`crate::model::obstruction`]), 0 without one.
 //!
 //! # Units
 //! Metres, degrees clockwise from north, dB, dBm, dBi.
@@ -88,13 +89,26 @@ pub struct Budget {
     pub tx_gain_dbi: f64,
     /// Path loss, dB.
     pub path_loss_db: f64,
+    /// Loss by obstruction of the surface (diffraction), dB; 0 with no surface.
+    pub obstruction_db: f64,
 }
 
 impl Budget {
     /// The budget of `tx` as installed (its boresight) along `geometry`.
     pub fn new(pathloss: &PathLoss, tx: &Node, geometry: Geometry) -> Budget {
         let tx_gain_dbi = tx.pattern.gain_dbi(geometry.bearing_from_tx_deg - tx.azimuth_deg);
-        Budget { geometry, power_dbm: tx.power_dbm, tx_gain_dbi, path_loss_db: pathloss.loss_db(geometry.distance_m) }
+        Budget {
+            geometry,
+            power_dbm: tx.power_dbm,
+            tx_gain_dbi,
+            path_loss_db: pathloss.loss_db(geometry.distance_m),
+            obstruction_db: 0.0,
+        }
+    }
+
+    /// The same budget with an obstruction loss of `db`.
+    pub fn obstructed(self, db: f64) -> Budget {
+        Budget { obstruction_db: db, ..self }
     }
 
     /// The budget of `tx` with its main lobe on the receiver (an aligned link).
@@ -104,17 +118,18 @@ impl Budget {
             power_dbm: tx.power_dbm,
             tx_gain_dbi: tx.pattern.max_gain_dbi(),
             path_loss_db: pathloss.loss_db(geometry.distance_m),
+            obstruction_db: 0.0,
         }
     }
 
     /// Received power with a 0 dBi receiving antenna, dBm.
     pub fn isotropic_dbm(&self) -> f64 {
-        self.power_dbm + self.tx_gain_dbi - self.path_loss_db
+        self.power_dbm + self.tx_gain_dbi - self.path_loss_db - self.obstruction_db
     }
 
     /// Received power with a receiving antenna of `rx_gain_dbi` toward the transmitter, dBm.
     pub fn received_dbm(&self, rx_gain_dbi: f64) -> f64 {
-        self.power_dbm + self.tx_gain_dbi + rx_gain_dbi - self.path_loss_db
+        self.power_dbm + self.tx_gain_dbi + rx_gain_dbi - self.path_loss_db - self.obstruction_db
     }
 }
 

@@ -7,6 +7,8 @@ pub mod fading;
 pub mod link;
 pub mod node;
 pub mod noise;
+pub mod obstruction;
 pub mod pathloss;
 pub mod scenario;
+pub mod surface;
 pub mod units;

@@ -7,8 +7,11 @@ use crate::geometry::grid::Grid;
 use crate::model::antenna::{AntennaPattern, Pattern, Sector};
 use crate::model::draw::DrawSpec;
 use crate::model::fading::FadingSpec;
+use crate::model::link::Endpoint;
 use crate::model::node::Node;
+use crate::model::obstruction::{Edges, Obstruction};
 use crate::model::pathloss::PathLoss;
+use crate::model::surface::Surface;
 use std::path::PathBuf;
 
 /// `[radio]`: the receiver's noise bandwidth and figure (the carrier frequency is the path-loss
@@ -134,6 +137,8 @@ pub struct Scenario {
     pub(crate) links: LinkSettings,
     /// Installer-sheet settings.
     pub(crate) install: InstallSettings,
+    /// Ground and buildings (`[surface]`), if given: every path is checked against it.
+    pub(crate) surface: Option<std::sync::Arc<Surface>>,
 }
 
 impl Scenario {
@@ -193,14 +198,65 @@ impl Scenario {
     pub fn install(&self) -> &InstallSettings {
         &self.install
     }
-    /// Every file the scenario was read from (scenario, nodes, draw areas): no output may
-    /// overwrite one.
+    /// Every file the scenario was read from (scenario, nodes, draw areas, surface): no
+    /// output may overwrite one.
     pub fn input_files(&self) -> Vec<&std::path::Path> {
         let mut v = vec![self.path.as_path(), self.nodes_path.as_path()];
         if let Some(a) = self.draw.as_ref().and_then(|d| d.areas_path.as_deref()) {
             v.push(a);
         }
+        if let Some(s) = &self.surface {
+            v.extend(s.files.iter().map(|p| p.as_path()));
+        }
         v
+    }
+    /// Ground and buildings, if the scenario has a `[surface]`.
+    pub fn surface(&self) -> Option<&Surface> {
+        self.surface.as_deref()
+    }
+    /// The same scenario with a surface (or none).
+    pub fn with_surface(self, surface: Option<Surface>) -> Scenario {
+        Scenario { surface: surface.map(std::sync::Arc::new), ..self }
+    }
+    /// Altitude of a node's antenna, m: its height above the ground under it (above 0 with no
+    /// surface).
+    pub fn node_alt_m(&self, n: &Node) -> f64 {
+        match &self.surface {
+            Some(s) => s.antenna_alt_m(n.lon, n.lat, n.height_m),
+            None => n.height_m,
+        }
+    }
+    /// Altitude of the map's receiver at a point, m (on the roof inside a footprint when
+    /// receivers stand on roofs).
+    pub fn receiver_alt_m(&self, lon: f64, lat: f64) -> f64 {
+        match &self.surface {
+            Some(s) => s.receiver_alt_m(lon, lat, self.receiver.height_m),
+            None => self.receiver.height_m,
+        }
+    }
+    /// A node as a path end.
+    pub fn node_end(&self, n: &Node) -> Endpoint {
+        Endpoint::at(&self.frame, n.lon, n.lat, self.node_alt_m(n))
+    }
+    /// The map's receiver at a point as a path end.
+    pub fn receiver_end(&self, lon: f64, lat: f64) -> Endpoint {
+        Endpoint::at(&self.frame, lon, lat, self.receiver_alt_m(lon, lat))
+    }
+    /// The obstruction of the path between two points (lon, lat, altitude); clear with no
+    /// surface.
+    pub fn obstruction(&self, a: (f64, f64, f64), b: (f64, f64, f64), edges: Edges) -> Obstruction {
+        match &self.surface {
+            Some(s) => s.obstruction(&self.frame, a, b, self.pathloss.frequency_ghz(), edges),
+            None => Obstruction::CLEAR,
+        }
+    }
+    /// The obstruction between node `n` and the map's receiver at (lon, lat).
+    pub fn node_to_point(&self, n: &Node, lon: f64, lat: f64, edges: Edges) -> Obstruction {
+        self.obstruction((n.lon, n.lat, self.node_alt_m(n)), (lon, lat, self.receiver_alt_m(lon, lat)), edges)
+    }
+    /// The obstruction between two nodes.
+    pub fn node_to_node(&self, a: &Node, b: &Node, edges: Edges) -> Obstruction {
+        self.obstruction((a.lon, a.lat, self.node_alt_m(a)), (b.lon, b.lat, self.node_alt_m(b)), edges)
     }
     /// The same scenario with other fading and shadowing.
     pub fn with_fading(self, fading: FadingSpec) -> Scenario {
@@ -237,6 +293,7 @@ impl Scenario {
             fading: FadingSpec::default(),
             links: LinkSettings { capacity_gap_db: 3.0, max_spectral_efficiency: 8.0 },
             install: InstallSettings { declination_date: (2026, 1) },
+            surface: None,
         }
     }
 

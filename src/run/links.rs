@@ -44,7 +44,8 @@ pub fn run_links(sc: &Scenario, opts: &LinksOptions) -> Result<LinksResult, Erro
     })?;
     let mut maps = Vec::new();
     if opts.maps {
-        let layers = LayerSet { interference: true, sinr: true, coverage: true, total: false, server: false };
+        let layers =
+            LayerSet { interference: true, sinr: true, coverage: true, total: false, server: false, visible: false };
         check_memory(sc, layers.count(), opts.max_memory_mib)?;
         let l = Engine::new(sc).run(&Options { layers, cutoff_m: None, progress: false });
         let (markers, links) = markers_and_links(sc);
@@ -64,6 +65,7 @@ pub fn run_links(sc: &Scenario, opts: &LinksOptions) -> Result<LinksResult, Erro
                 markers: &markers,
                 links: &links,
                 outlines: &outlines,
+                footprints: sc.surface().map_or(&[][..], |s| s.outlines()),
             })
             .map_err(|e| Error::Output { path: opts.out.join("report.html"), source: std::io::Error::other(e) })?;
             maps.push(crate::io::report::MapImage { title, png: r.png, caption });

@@ -44,9 +44,26 @@ pub struct MapResult {
     pub files: Vec<PathBuf>,
 }
 
+/// Estimated peak memory of a map of `layers` layers, bytes: the grid's estimate
+/// ([`crate::geometry::grid::Grid::estimate_bytes`]) and, over a surface, the lattice (12
+/// bytes a cell), one band of sweep factors (4 bytes a node a cell, at most
+/// [`crate::engine::SWEEP_BAND_BYTES`]), and per band cell the receiver altitudes plus each
+/// thread's nearest-ray offsets (4 bytes each).
+pub fn estimate_bytes(sc: &Scenario, layers: usize) -> u64 {
+    let threads = rayon::current_num_threads();
+    let mut need = sc.grid.estimate_bytes(layers, threads);
+    if let Some(s) = sc.surface() {
+        let (rows, cols, nodes) = (sc.grid.rows() as u64, sc.grid.cols() as u64, sc.nodes.len().max(1) as u64);
+        let band_rows = (crate::engine::SWEEP_BAND_BYTES as u64 / (4 * cols * nodes)).clamp(1, rows);
+        let band_cells = band_rows * cols;
+        need += s.cells() as u64 * 12 + band_cells * 4 * (nodes + 1 + threads as u64);
+    }
+    need
+}
+
 /// Refuses grids whose layers would not fit in `max_memory_mib`.
 pub fn check_memory(sc: &Scenario, layers: usize, max_memory_mib: u64) -> Result<(), Error> {
-    let need = sc.grid.estimate_bytes(layers, rayon::current_num_threads());
+    let need = estimate_bytes(sc, layers);
     if need > max_memory_mib.saturating_mul(1024 * 1024) {
         return Err(Error::input(Problem::new(
             sc.path.display().to_string(),
@@ -91,7 +108,7 @@ pub fn markers_and_links(sc: &Scenario) -> (Vec<Marker>, Vec<(usize, usize)>) {
 
 /// Every file name `map` can write: a rerun retires those it does not write again.
 pub fn map_file_names() -> Vec<String> {
-    let stems = ["total", "interference", "sinr", "server", "coverage"];
+    let stems = ["total", "interference", "sinr", "server", "coverage", "visible"];
     let mut v: Vec<String> = stems.iter().flat_map(|s| crate::io::writer::layer_file_names(s)).collect();
     v.extend(["hotspots.geojson", "layout.geojson", "summary.json"].map(String::from));
     v
@@ -112,7 +129,8 @@ pub fn run_map(sc: &Scenario, opts: &MapOptions) -> Result<MapResult, Error> {
     let noise_dbm = sc.noise_dbm();
     let grid = &sc.grid;
     let (markers, links) = markers_and_links(sc);
-    let cx = Context { grid, markers: &markers, links: &links };
+    let footprints = sc.surface().map_or(&[][..], |s| s.outlines());
+    let cx = Context { grid, markers: &markers, links: &links, footprints };
     let mut files: Vec<String> = Vec::new();
     let hot = layers.interference.as_deref().map(|i| hotspots(sc, i));
     let low = layers.coverage.as_deref().map(|c| outage_zones(sc, c));
@@ -153,6 +171,10 @@ pub fn run_map(sc: &Scenario, opts: &MapOptions) -> Result<MapResult, Error> {
     if let Some(v) = layers.server.as_ref().filter(|_| opts.realizations <= 1) {
         files.extend(write_layer(&mut st, &cx, &layer("server", "Best server", "", v, Vec::new()))?);
     }
+    if let Some(v) = &layers.visible {
+        let title = "Nodes in line of sight";
+        files.extend(write_layer(&mut st, &cx, &layer("visible", title, "nodes", v, Vec::new()))?);
+    }
     st.write("layout.geojson", layout_geojson(&sc.nodes).to_string().as_bytes())?;
     files.push("layout.geojson".into());
     let b = grid.bbox();
@@ -166,6 +188,7 @@ pub fn run_map(sc: &Scenario, opts: &MapOptions) -> Result<MapResult, Error> {
         ("sinr", layers.sinr.is_some()),
         ("server", server_written),
         ("coverage", layers.coverage.is_some()),
+        ("visible", layers.visible.is_some()),
     ]
     .into_iter()
     .filter(|(_, on)| *on)
