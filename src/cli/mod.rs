@@ -60,7 +60,8 @@ enum Cmd {
         /// Output folder (default: outputs/<scenario name>/).
         #[arg(long)]
         out: Option<PathBuf>,
-        /// Exit with code 3 when any link misses its SINR threshold or coverage target.
+        /// Exit with code 3 when any link misses its SINR threshold or coverage target, or (over
+        /// a [surface]) has less than 60 % of its first Fresnel zone clear.
         #[arg(long)]
         strict: bool,
         /// Cross-check each link's coverage with this many seeded Monte Carlo trials.
@@ -547,7 +548,7 @@ fn links_cmd(
     if !quiet {
         eprintln!("wrote {} files to {}", res.files.len(), out.display());
     }
-    if strict && res.rows.iter().any(|r| !r.passes) {
+    if strict && res.rows.iter().any(|r| !r.passes || !r.clearance_ok) {
         return Ok(ExitCode::from(3));
     }
     Ok(ExitCode::SUCCESS)

@@ -6,6 +6,7 @@ pub(crate) mod geotiff;
 pub(crate) mod heatmap;
 pub(crate) mod hotspots;
 pub(crate) mod layout;
+pub(crate) mod profile;
 pub(crate) mod report;
 pub(crate) mod staging;
 pub(crate) mod summary;

@@ -17,6 +17,27 @@ pub struct MapImage {
     pub caption: String,
 }
 
+/// One link's path profile (an SVG document).
+pub struct ProfileImage {
+    /// Heading.
+    pub title: String,
+    /// SVG text.
+    pub svg: String,
+}
+
+/// How a link's path reads in a table: clear, clear but inside the 60 % rule, or blocked.
+pub fn path_verdict(r: &LinkRow) -> String {
+    let what = r.limited_by.as_deref().unwrap_or("the surface");
+    match (r.line_of_sight, r.clearance_f1) {
+        (false, _) => format!("blocked by {what}, {:.1} dB", r.obstruction_db),
+        (true, Some(c)) if !r.clearance_ok => {
+            format!("clear by {:.0} % of F1 over {what} (below 60 %), {:.1} dB", c * 100.0, r.obstruction_db)
+        }
+        (true, Some(c)) => format!("clear, {:.0} % of F1", (c * 100.0).min(999.0)),
+        (true, None) => "clear".into(),
+    }
+}
+
 /// Escapes text for HTML element content and attribute values.
 pub fn esc(s: &str) -> String {
     s.replace('&', "&amp;").replace('<', "&lt;").replace('>', "&gt;").replace('"', "&quot;").replace('\'', "&#39;")
@@ -32,6 +53,14 @@ th,td{border:1px solid #d8d4c8;padding:4px 6px;text-align:right;white-space:nowr
 td.l,th.l{text-align:left}tr.fail td{background:#fbe3e3}td.warn{color:#a11d1d;font-weight:600}.scroll{overflow-x:auto}\
 .small{font-size:12px;color:#44506a}";
 
+/// An SVG document without its XML declaration, for inlining in HTML.
+fn strip_xml_header(svg: &str) -> &str {
+    match svg.find("<svg") {
+        Some(i) => &svg[i..],
+        None => svg,
+    }
+}
+
 /// The cautions shown at the top of the report (and in README terms).
 pub fn cautions(sheet: &InstallSheet) -> Vec<String> {
     vec![
@@ -41,12 +70,18 @@ pub fn cautions(sheet: &InstallSheet) -> Vec<String> {
         ),
         "Work at height: mounting and aligning antennas means poles, masts and roofs. Only trained people with fall protection, a rescue plan and the permits local safety codes require.".into(),
         "Transmit power, EIRP and licensing: this report does not check regulatory limits. Power, EIRP, frequency and channel use must comply with the licence or licence-exempt rules in force at the site.".into(),
-        "Estimates: all figures come from a model (line of sight, ideal antenna patterns, mean powers with statistical fading). Confirm on site by measurement, and defer to local codes and licensed practice.".into(),
+        "Estimates: all figures come from a model (ideal antenna patterns, mean powers with statistical fading, and line of sight over the ground and buildings given, if any). Confirm the path on site (a clear view between the antennas, nothing growing or being built into it) and by measurement, and defer to local codes and licensed practice.".into(),
     ]
 }
 
 /// The report page.
-pub fn html(sc: &Scenario, links: &[LinkRow], sheet: &InstallSheet, maps: &[MapImage]) -> String {
+pub fn html(
+    sc: &Scenario,
+    links: &[LinkRow],
+    sheet: &InstallSheet,
+    maps: &[MapImage],
+    profiles: &[ProfileImage],
+) -> String {
     let mut h = String::with_capacity(1 << 20);
     h += "<!DOCTYPE html>\n<html lang=\"en\"><head><meta charset=\"utf-8\">";
     h += "<meta name=\"viewport\" content=\"width=device-width, initial-scale=1\">";
@@ -95,11 +130,12 @@ pub fn html(sc: &Scenario, links: &[LinkRow], sheet: &InstallSheet, maps: &[MapI
         "margin dB",
         "Mbit/s",
         "status",
+        "path",
         "top interferers",
     ] {
         h += &format!(
             "<th class=\"{}\">{}</th>",
-            if c.starts_with("top") || c == "from" || c == "to" { "l" } else { "" },
+            if c.starts_with("top") || c == "from" || c == "to" || c == "path" { "l" } else { "" },
             esc(c)
         );
     }
@@ -115,7 +151,7 @@ pub fn html(sc: &Scenario, links: &[LinkRow], sheet: &InstallSheet, maps: &[MapI
             .collect::<Vec<_>>()
             .join(", ");
         h += &format!(
-            "<tr class=\"{}\"><td class=\"l\">{}</td><td class=\"l\">{}</td><td>{:.1}</td><td>{:.1}</td>{}{}<td>{:.1}</td><td>{}</td><td>{:.2}</td><td>{:.4}</td><td>{:.2}</td><td>{:.0}</td><td>{}</td><td class=\"l\">{}</td></tr>",
+            "<tr class=\"{}\"><td class=\"l\">{}</td><td class=\"l\">{}</td><td>{:.1}</td><td>{:.1}</td>{}{}<td>{:.1}</td><td>{}</td><td>{:.2}</td><td>{:.4}</td><td>{:.2}</td><td>{:.0}</td><td>{}</td><td class=\"l{}\">{}</td><td class=\"l\">{}</td></tr>",
             if r.passes { "" } else { "fail" },
             esc(&r.from),
             esc(&r.to),
@@ -130,6 +166,8 @@ pub fn html(sc: &Scenario, links: &[LinkRow], sheet: &InstallSheet, maps: &[MapI
             r.margin_db,
             r.capacity_mbps,
             if r.passes { "ok" } else { "FAIL" },
+            if r.clearance_ok { "" } else { " warn" },
+            esc(&path_verdict(r)),
             tops
         );
     }
@@ -188,6 +226,20 @@ pub fn html(sc: &Scenario, links: &[LinkRow], sheet: &InstallSheet, maps: &[MapI
         );
     }
     h += "</tbody></table></div></section>";
-    h += "<p class=\"small\">Generated by lobemap. Model: line of sight, horizontal antenna cuts, mean powers; see the README for assumptions and limits.</p></main></body></html>\n";
+    if !profiles.is_empty() {
+        h += "<section><h2>Path profiles</h2><p class=\"small\">Ground and buildings raised by the Earth bulge, the ray between the antennas and the first Fresnel zone around it. The common rule for a line-of-sight link keeps 60 % of the first Fresnel zone clear.</p>";
+        for p in profiles {
+            h += &format!("<figure>{}<figcaption>{}</figcaption></figure>", strip_xml_header(&p.svg), esc(&p.title));
+        }
+        h += "</section>";
+    }
+    let model = if sc.surface.is_some() {
+        "line of sight and knife-edge diffraction over the given ground and buildings"
+    } else {
+        "line of sight over flat ground (no [surface] given)"
+    };
+    h += &format!(
+        "<p class=\"small\">Generated by lobemap. Model: {model}, horizontal antenna cuts, mean powers; see the README for assumptions and limits.</p></main></body></html>\n"
+    );
     h
 }

@@ -357,5 +357,19 @@ pub fn table(rows: &[LinkRow], sinr_db: f64, target: f64) -> String {
         sinr_db,
         target
     );
+    for r in rows.iter().filter(|r| !r.clearance_ok) {
+        let what = r.limited_by.as_deref().unwrap_or("the surface");
+        s += &match (r.line_of_sight, r.clearance_f1) {
+            (false, _) => format!("{}-{}: blocked by {what} ({:.1} dB obstruction)\n", r.from, r.to, r.obstruction_db),
+            (true, Some(c)) => format!(
+                "{}-{}: clear of {what} by {:.0} % of the first Fresnel zone, below the 60 % rule ({:.1} dB obstruction)\n",
+                r.from,
+                r.to,
+                c * 100.0,
+                r.obstruction_db
+            ),
+            (true, None) => String::new(),
+        };
+    }
     s
 }

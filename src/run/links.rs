@@ -36,7 +36,8 @@ pub struct LinksResult {
 /// Runs the link check and writes `links.csv`, `links.geojson`, `install.csv` and
 /// `report.html` into `opts.out`.
 pub fn run_links(sc: &Scenario, opts: &LinksOptions) -> Result<LinksResult, Error> {
-    let owned = ["links.csv", "links.geojson", "install.csv", "report.html"].map(String::from).to_vec();
+    let mut owned = ["links.csv", "links.geojson", "install.csv", "report.html"].map(String::from).to_vec();
+    owned.extend(link_pairs(sc).iter().map(|&(a, b)| profile_file(&sc.nodes[a].id, &sc.nodes[b].id)));
     let mut st = Staging::folder(&opts.out, &sc.input_files(), owned)?;
     let rows = crate::jobs::links::links(sc, opts.monte_carlo);
     let sheet = crate::jobs::install::sheet(sc).map_err(|m| {
@@ -106,10 +107,63 @@ pub fn run_links(sc: &Scenario, opts: &LinksOptions) -> Result<LinksResult, Erro
             )?;
         }
     }
+    let profiles = link_profiles(sc, &rows)
+        .map_err(|e| Error::Output { path: opts.out.join("report.html"), source: std::io::Error::other(e) })?;
+    for (name, p) in &profiles {
+        st.write(name, p.svg.as_bytes())?;
+    }
+    let profiles: Vec<_> = profiles.into_iter().map(|(_, p)| p).collect();
     st.write("links.csv", crate::jobs::links::csv(&rows).as_bytes())?;
     st.write("links.geojson", crate::jobs::links::geojson(sc, &rows).to_string().as_bytes())?;
     st.write("install.csv", crate::jobs::install::csv(&sheet).as_bytes())?;
-    st.write("report.html", crate::io::report::html(sc, &rows, &sheet, &maps).as_bytes())?;
+    st.write("report.html", crate::io::report::html(sc, &rows, &sheet, &maps, &profiles).as_bytes())?;
     let files = st.commit()?;
     Ok(LinksResult { rows, sheet, files })
+}
+
+/// The planned links as unordered pairs of node indices, each once, in node order.
+fn link_pairs(sc: &Scenario) -> Vec<(usize, usize)> {
+    markers_and_links(sc).1
+}
+
+/// The file name of a link's profile: `profile-<from>-<to>.svg`, with any character of the ids
+/// other than letters, digits, `-`, `_` and `.` written as `_`.
+pub fn profile_file(a: &str, b: &str) -> String {
+    let clean = |s: &str| {
+        s.chars().map(|c| if c.is_ascii_alphanumeric() || "-_.".contains(c) { c } else { '_' }).collect::<String>()
+    };
+    format!("profile-{}-{}.svg", clean(a), clean(b))
+}
+
+/// One profile per planned link (both directions share it) when the scenario has a surface.
+fn link_profiles(
+    sc: &Scenario,
+    rows: &[crate::jobs::links::LinkRow],
+) -> Result<Vec<(String, crate::io::report::ProfileImage)>, String> {
+    let Some(surface) = sc.surface() else { return Ok(Vec::new()) };
+    let lambda = crate::model::obstruction::wavelength_m(sc.pathloss.frequency_ghz());
+    let mut out = Vec::new();
+    for (a, b) in link_pairs(sc) {
+        let (na, nb) = (&sc.nodes[a], &sc.nodes[b]);
+        let profile =
+            surface.profile(&sc.frame, (na.lon, na.lat, sc.node_alt_m(na)), (nb.lon, nb.lat, sc.node_alt_m(nb)));
+        let verdict = rows
+            .iter()
+            .find(|r| (r.from == na.id && r.to == nb.id) || (r.from == nb.id && r.to == na.id))
+            .map(crate::io::report::path_verdict)
+            .unwrap_or_default();
+        let title = format!("{} – {}", na.id, nb.id);
+        let svg = crate::io::profile::svg(&crate::io::profile::ProfileSpec {
+            title: &title,
+            verdict: &verdict,
+            profile: &profile,
+            wavelength_m: lambda,
+            earth_k: surface.earth_k(),
+        })?;
+        out.push((
+            profile_file(&na.id, &nb.id),
+            crate::io::report::ProfileImage { title: format!("{title}: {verdict}"), svg },
+        ));
+    }
+    Ok(out)
 }
