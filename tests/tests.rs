@@ -11,3 +11,4 @@ mod faults;
 mod physics;
 mod random;
 mod report;
+mod surface;
