@@ -20,6 +20,7 @@
 //! Factors are written signed: positive for a cell in line of sight of the node, negative
 //! out of it, so one buffer serves the power and the `visible` count.
 
+use crate::math::fastmath::{fast_exp2, fast_log2};
 use crate::model::obstruction::EARTH_RADIUS_M;
 use crate::model::surface::Surface;
 
@@ -34,14 +35,16 @@ pub(crate) struct SweepNode {
 /// Lower than any slope: no obstacle yet.
 const NONE: f32 = -1e30;
 
-/// Knife-edge loss J(ν) in float32 (ITU-R P.526-16 eq. 31), 0 for ν ≤ −0.78.
+/// Knife-edge loss J(ν) in float32 (ITU-R P.526-16 eq. 31), 0 for ν ≤ −0.78, with the
+/// crate's arithmetic log2 (no libm call, whose result could depend on the instruction set).
 #[inline]
 fn knife_edge_f32(nu: f32) -> f32 {
     if nu <= -0.78 {
         0.0
     } else {
         let v = nu - 0.1;
-        6.9 + 20.0 * ((v * v + 1.0).sqrt() + v).log10()
+        // 20 log10(x) = 20 log10(2) · log2(x).
+        6.9 + 6.020_6 * fast_log2((v * v + 1.0).sqrt() + v)
     }
 }
 
@@ -70,66 +73,103 @@ pub(crate) fn sweep(sp: &SweepSpec<'_>, nd: &SweepNode, out: &mut [f32]) {
     let (rlo, rhi) = (nr.min(br0), nr.max(br1 - 1));
     let cell = s.cell_m as f32;
     let inv_2ka = 1.0 / (2.0 * s.earth_k * EARTH_RADIUS_M) as f32;
-    let (cap, lambda) = (s.cap_db as f32, sp.wavelength_m);
-    // Each band cell keeps the value of the ray passing closest to its centre.
-    out.fill(1.0);
-    let mut best = vec![f32::INFINITY; out.len()];
+    let top = &s.top[..];
+    let z = nd.z;
+    // Per band cell, from the ray passing closest to its centre: that ray's offset from the
+    // centre and the horizon (slope, distance) it had reached there.
+    let n = out.len();
+    // (offset, slope, distance) together: one cache line a visit.
+    let mut st = vec![[f32::INFINITY, NONE, 0.0]; n];
+    let map_cols = sp.map_cols;
+    // One ray from the node toward the centre of cell (re, ce), one column (or row) a step.
     let mut cast = |re: usize, ce: usize| {
         let (dx, dy) = (ce as f32 + 0.5 - u, re as f32 + 0.5 - v);
         let len = (dx * dx + dy * dy).sqrt() * cell;
-        let along_cols = dx.abs() >= dy.abs();
-        let steps = if along_cols { ce.abs_diff(nc) } else { re.abs_diff(nr) };
         let (mut h, mut hd) = (NONE, 0f32);
-        for k in 1..=steps {
-            // The crossing of the ray with the k-th column (or row) centre line from the node.
-            let (r, c, off, t) = if along_cols {
-                let c = if dx > 0.0 { nc + k } else { nc - k };
-                let t = (c as f32 + 0.5 - u) / dx;
+        if dx.abs() >= dy.abs() {
+            let steps = ce.abs_diff(nc);
+            let sx = if dx > 0.0 { 1isize } else { -1 };
+            // t at the first column centre beyond the node's cell (positive, as the node lies
+            // inside its cell) and its step; y and d follow t.
+            let dt = 1.0 / dx.abs();
+            let t0 = (nc as f32 + 0.5 + sx as f32 - u) / dx;
+            for k in 0..steps {
+                let t = t0 + k as f32 * dt;
+                let c = (nc as isize + sx * (k as isize + 1)) as usize;
                 let y = v + t * dy;
-                let r = (y.floor().max(rlo as f32) as usize).min(rhi);
-                (r, c, (y - (r as f32 + 0.5)).abs(), t)
-            } else {
-                let r = if dy > 0.0 { nr + k } else { nr - k };
-                let t = (r as f32 + 0.5 - v) / dy;
-                let x = u + t * dx;
-                let c = (x.floor().max(clo as f32) as usize).min(chi);
-                (r, c, (x - (c as f32 + 0.5)).abs(), t)
-            };
-            if t <= 0.0 {
-                continue;
-            }
-            let d = t * len;
-            let drop = d * d * inv_2ka;
-            if r >= br0 && r < br1 && c >= mc0 && c < mc1 {
-                let o = (r - br0) * sp.map_cols + c - mc0;
-                if off < best[o] {
-                    best[o] = off;
-                    let srx = (sp.zr[o] - drop - nd.z) / d;
-                    let los = srx > h;
-                    let j = if h > NONE && hd > 0.0 && hd < d {
-                        let nu = hd * (h - srx) * (2.0 * d / (lambda * hd * (d - hd))).sqrt();
-                        knife_edge_f32(nu).min(cap)
-                    } else {
-                        0.0
-                    };
-                    let f = 10f32.powf(-j / 10.0);
-                    out[o] = if los { f } else { -f };
+                let r = (y.max(rlo as f32) as usize).min(rhi);
+                let d = t * len;
+                if r >= br0 && r < br1 && c >= mc0 && c < mc1 {
+                    let o = (r - br0) * map_cols + c - mc0;
+                    let off = (y - (r as f32 + 0.5)).abs();
+                    if off < st[o][0] {
+                        st[o] = [off, h, hd];
+                    }
+                }
+                let rise = top[r * cols + c] - d * d * inv_2ka - z;
+                if rise > h * d {
+                    h = rise / d;
+                    hd = d;
                 }
             }
-            let own = (s.top[r * cols + c] - drop - nd.z) / d;
-            if own > h {
-                h = own;
-                hd = d;
+        } else {
+            let steps = re.abs_diff(nr);
+            let sy = if dy > 0.0 { 1isize } else { -1 };
+            let dt = 1.0 / dy.abs();
+            let t0 = (nr as f32 + 0.5 + sy as f32 - v) / dy;
+            for k in 0..steps {
+                let t = t0 + k as f32 * dt;
+                let r = (nr as isize + sy * (k as isize + 1)) as usize;
+                let x = u + t * dx;
+                let c = (x.max(clo as f32) as usize).min(chi);
+                let d = t * len;
+                if r >= br0 && r < br1 && c >= mc0 && c < mc1 {
+                    let o = (r - br0) * map_cols + c - mc0;
+                    let off = (x - (c as f32 + 0.5)).abs();
+                    if off < st[o][0] {
+                        st[o] = [off, h, hd];
+                    }
+                }
+                let rise = top[r * cols + c] - d * d * inv_2ka - z;
+                if rise > h * d {
+                    h = rise / d;
+                    hd = d;
+                }
             }
         }
     };
-    for c in clo..=chi {
-        cast(rlo, c);
-        cast(rhi, c);
+    // Rays to the region's border cells within the band's rows (the others never reach it),
+    // in turn around the border so that consecutive rays share most of their cells in cache.
+    if rlo >= br0 {
+        (clo..=chi).for_each(|c| cast(rlo, c));
     }
-    for r in rlo + 1..rhi {
-        cast(r, clo);
-        cast(r, chi);
+    ((rlo + 1).max(br0)..rhi.min(br1)).for_each(|r| cast(r, chi));
+    if rhi < br1 {
+        (clo..=chi).rev().for_each(|c| cast(rhi, c));
+    }
+    ((rlo + 1).max(br0)..rhi.min(br1)).rev().for_each(|r| cast(r, clo));
+    // The verdict of each band cell from its ray's horizon, at the cell's centre.
+    let (cap, lambda) = (s.cap_db as f32, sp.wavelength_m);
+    for (o, f) in out.iter_mut().enumerate() {
+        let (r, c) = (o / map_cols + br0, o % map_cols + mc0);
+        let (dx, dy) = (c as f32 + 0.5 - u, r as f32 + 0.5 - v);
+        let d = (dx * dx + dy * dy).sqrt() * cell;
+        let [_, h, hd] = st[o];
+        *f = if h <= NONE || d <= 0.0 {
+            1.0
+        } else {
+            let srx = (sp.zr[o] - d * d * inv_2ka - z) / d;
+            let los = srx > h;
+            let j = if hd > 0.0 && hd < d {
+                let nu = hd * (h - srx) * (2.0 * d / (lambda * hd * (d - hd))).sqrt();
+                knife_edge_f32(nu).min(cap)
+            } else {
+                0.0
+            };
+            // 10^(−J/10) = 2^(−J · log2(10)/10).
+            let f = if j > 0.0 { fast_exp2(-j * 0.332_192_8) } else { 1.0 };
+            if los { f } else { -f }
+        };
     }
 }
 
