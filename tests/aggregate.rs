@@ -220,6 +220,9 @@ fn demo_sweep_gamma_quantiles_match_scipy_and_warn() {
         lobemap::model::scenario::Scenario::load(std::path::Path::new("sites/harbourlight/scenario.toml")).unwrap();
     let mut o = lobemap::run::demo::field_overrides();
     o.beamwidth_deg = Some(10.0);
+    // The field without the blockage the site's footprints now add (the values below are for
+    // it; blockage has its own test).
+    o.no_blockage = true;
     let f = FieldSpec::resolve(Some(&sc), &o).unwrap().build().unwrap();
     let r = characterise(&f, &Request { thresholds_dbm: vec![], realizations: 0, seed: 1, table_points: 160 });
     let (k, th) = (0.021855834572081442, 1.1712739105156186e-05);
@@ -230,4 +233,32 @@ fn demo_sweep_gamma_quantiles_match_scipy_and_warn() {
     }
     assert!(q.p90 < q.p99 && q.p99 < q.p999);
     assert!(r.warnings.iter().any(|w| w.contains("gamma fit is far")), "{:?}", r.warnings);
+}
+
+/// Blockage (Bai, Vaze and Heath 2014: P(LOS) = e^{−βr}, a blocked link on its own law) in
+/// every part of the characterisation: Campbell's mean with blockage, ∫ [e^{−βr} ℓ_L +
+/// (1 − e^{−βr}) ℓ_N] dA, against the seeded Monte Carlo (4 standard errors), and the exact
+/// CDF against it by the Kolmogorov–Smirnov distance (the DKW bound at 1e−3, as above). The
+/// blockage must also matter: the mean drops below the unblocked one by more than the
+/// sampling error.
+#[test]
+fn blockage_enters_the_cumulants_the_exact_cdf_and_the_monte_carlo() {
+    use lobemap::model::pathloss::CloseIn;
+    use lobemap::random::field::Blockage;
+    let base = field(Fading::RAYLEIGH, 60.0, 6.0, -6.0);
+    let nlos = PathLoss::new(CloseIn::new(4.0).unwrap(), 28.0, 0.0, 1.0).unwrap();
+    let f = base.clone().with_blockage(Some(Blockage { beta_per_m: 0.01, nlos })).unwrap();
+    let rad = f.radial();
+    let (k1, k2) = (f.cumulant(1, &rad), f.cumulant(2, &rad));
+    let k1_open = base.cumulant(1, &base.radial());
+    let n = 20_000;
+    let (v, _) = simulate(&f, n, 17);
+    let (m, _) = mean_var(&v);
+    let se = (k2 / n as f64).sqrt();
+    assert!((m - k1).abs() < tol::SIGMAS * se, "mean {m:e} vs κ1 {k1:e}");
+    assert!(k1_open - k1 > 10.0 * se, "blockage changes the mean too little: {k1:e} vs {k1_open:e}");
+    let r = characterise(&f, &Request { thresholds_dbm: vec![], realizations: n, seed: 5, table_points: 160 });
+    let bound = ((2.0f64 / 1e-3).ln() / (2.0 * n as f64)).sqrt();
+    let ks = r.ks.unwrap().exact_vs_mc;
+    assert!(ks < bound, "exact KS {ks} > {bound}");
 }

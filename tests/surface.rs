@@ -317,3 +317,19 @@ fn bad_surface_inputs_are_refused_by_name() {
     let e = refused("earth_k = 0.1\nobstruction_cap_db = -5", &[]);
     assert!(e.contains("earth_k") && e.contains("obstruction_cap_db"), "{e}");
 }
+
+/// β from the demo's own footprints (λ_b E[perimeter]/π, Bai, Vaze and Heath 2014) against
+/// the line-of-sight fraction measured on those footprints (4000 seeded segments a distance,
+/// both ends outdoors): the footprints are no Boolean model (rows of houses, a quay line), so
+/// the check is loose, 0.05 at every distance reported (measured: within 0.015).
+#[test]
+fn site_line_of_sight_follows_the_boolean_model_of_its_footprints() {
+    let sc = Scenario::load(Path::new("sites/harbourlight/scenario.toml")).unwrap();
+    let b = lobemap::random::blockage::site_blockage(sc.surface().unwrap(), sc.frame(), 1).unwrap();
+    assert_eq!(b.buildings, 64);
+    assert!(b.los_by_distance.len() >= 5);
+    for l in &b.los_by_distance {
+        assert_eq!(l.segments, lobemap::random::blockage::SEGMENTS_PER_DISTANCE);
+        assert!((l.measured - l.model).abs() < 0.05, "{l:?}");
+    }
+}

@@ -173,6 +173,17 @@ struct AggArgs {
     /// Minimum distance (clamp), m [default: scenario, else 1].
     #[arg(long)]
     min_distance_m: Option<f64>,
+    /// Blockage by buildings: a link of length r is in line of sight with probability
+    /// exp(-B r), B per m [default: derived from the scenario's footprints, if any, else no
+    /// blockage].
+    #[arg(long, value_name = "B")]
+    los_beta_per_m: Option<f64>,
+    /// Path-loss exponent of blocked links (close-in law) [default: 3.19].
+    #[arg(long)]
+    nlos_exponent: Option<f64>,
+    /// No blockage, even with a scenario that has building footprints.
+    #[arg(long)]
+    no_blockage: bool,
     /// Fading of each interfering link: none, rayleigh, nakagami, rician [default: the
     /// scenario's interferer fading, else rayleigh].
     #[arg(long)]
@@ -268,6 +279,9 @@ impl AggArgs {
             m: self.m,
             density_swept: self.sweep.as_deref().is_some_and(|s| s.starts_with("density_per_km2=")),
             pattern: self.pattern.clone(),
+            los_beta_per_m: self.los_beta_per_m,
+            nlos_exponent: self.nlos_exponent,
+            no_blockage: self.no_blockage,
         }
     }
 
@@ -503,6 +517,15 @@ fn print_aggregate(res: &AggregateResult, json: bool, quiet: bool, out: &Path) {
         println!("{}", serde_json::to_string_pretty(&res.json()).unwrap_or_default());
     } else if !quiet {
         println!("{}", lobemap::io::tables::inputs_line(&res.spec));
+        if let Some(site) = res.spec.blockage.as_ref().and_then(|b| b.site.as_ref()) {
+            println!(
+                "site footprints: {} buildings, {:.1} per km², mean perimeter {:.1} m: beta {:.5} per m; line of sight measured / exp(-beta r):",
+                site.buildings, site.density_per_km2, site.mean_perimeter_m, site.beta_per_m
+            );
+            for l in &site.los_by_distance {
+                println!("  {:>5} m  {:.3} / {:.3}", l.distance_m, l.measured, l.model);
+            }
+        }
         for (l, r) in &res.reports {
             print!("{}", lobemap::io::tables::table(l, r));
         }

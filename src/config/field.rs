@@ -45,7 +45,30 @@ pub struct FieldSpec {
     pub absorption_db_per_km: f64,
     /// Minimum distance, m.
     pub min_distance_m: f64,
+    /// Blockage by buildings, if on.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub blockage: Option<BlockageSpec>,
 }
+
+/// Blockage of the random field's links ([`crate::random::field::Blockage`]) as given or
+/// derived.
+#[derive(Debug, Clone, PartialEq, serde::Serialize)]
+pub struct BlockageSpec {
+    /// β of P(LOS) = e^{−βr}, per m.
+    pub beta_per_m: f64,
+    /// Exponent of the blocked links' close-in law.
+    pub nlos_exponent: f64,
+    /// Where β came from: `flag` or `footprints`.
+    pub source: String,
+    /// β derived from the scenario's footprints and the line-of-sight fraction measured on
+    /// them, when the scenario has footprints.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub site: Option<crate::random::blockage::SiteBlockage>,
+}
+
+/// Default exponent of blocked links: the close-in model's urban-microcell NLOS fit at
+/// 28 GHz, n = 3.19 (Sun et al., IEEE Trans. Veh. Technol. 65(5), 2016; from memory).
+pub const NLOS_EXPONENT: f64 = 3.19;
 
 impl FieldSpec {
     /// Checks every value and builds the field; problems name the command-line flag.
@@ -75,6 +98,20 @@ impl FieldSpec {
         chk("--rx-beamwidth-deg", self.rx.0, Range::BEAMWIDTH);
         chk("--rx-gain-dbi", self.rx.1, Range::GAIN);
         chk("--rx-sidelobe-dbi", self.rx.2, Range::closed(-60.0, self.rx.1, "dBi (not above --rx-gain-dbi)"));
+        let nlos = self.blockage.as_ref().and_then(|b| {
+            chk("--los-beta-per-m", b.beta_per_m, Range::left_open(0.0, 1.0, "per m"));
+            let lo = if self.model == "free-space" { 2.0 } else { self.exponent.max(2.0) };
+            chk("--nlos-exponent", b.nlos_exponent, Range::closed(lo, 8.0, "(not below the line-of-sight exponent)"));
+            crate::model::pathloss::CloseIn::new(b.nlos_exponent).ok().and_then(|law| {
+                crate::model::pathloss::PathLoss::new(
+                    law,
+                    self.frequency_ghz,
+                    self.absorption_db_per_km,
+                    self.min_distance_m,
+                )
+                .ok()
+            })
+        });
         // Interferers per realisation grow with density × area: refuse what would not fit.
         let reach = self.radius_m + self.hard_core_m;
         let per_realisation = self.density_per_km2 * self.keep * std::f64::consts::PI * reach * reach / 1e6;
@@ -151,6 +188,10 @@ impl FieldSpec {
         let (Some(fading), Some(pathloss), Some(tx_law)) = (fading, pl, tx_law) else {
             unreachable!("problems were recorded")
         };
+        let blockage = match (&self.blockage, nlos) {
+            (Some(b), Some(nlos)) => Some(crate::random::field::Blockage { beta_per_m: b.beta_per_m, nlos }),
+            _ => None,
+        };
         Ok(Field {
             density_per_m2: self.density_per_km2 / 1e6,
             keep: self.keep,
@@ -162,6 +203,7 @@ impl FieldSpec {
             rx: GainLaw::two_level(self.rx.0 / 360.0, self.rx.1, self.rx.2),
             fading,
             pathloss,
+            blockage,
         })
     }
 
@@ -194,6 +236,23 @@ impl FieldSpec {
             }
         }
         Ok(s)
+    }
+}
+
+/// Blockage from the flags, or from the scenario's footprints: β = λ_b E[perimeter]/π of the
+/// footprints with the measured line-of-sight fraction beside it (seed 1).
+fn blockage_of(sc: Option<&crate::model::scenario::Scenario>, a: &FieldOverrides) -> Option<BlockageSpec> {
+    let site = sc.and_then(|s| s.surface().and_then(|surf| crate::random::blockage::site_blockage(surf, s.frame(), 1)));
+    let nlos_exponent = a.nlos_exponent.unwrap_or(NLOS_EXPONENT);
+    match (a.los_beta_per_m, site) {
+        (Some(beta_per_m), site) => Some(BlockageSpec { beta_per_m, nlos_exponent, source: "flag".into(), site }),
+        (None, Some(site)) => Some(BlockageSpec {
+            beta_per_m: site.beta_per_m,
+            nlos_exponent,
+            source: "footprints".into(),
+            site: Some(site),
+        }),
+        (None, None) => None,
     }
 }
 
@@ -263,6 +322,12 @@ pub struct FieldOverrides {
     pub density_swept: bool,
     /// Interferer pattern name (`sector`, `parabolic`, `omni`).
     pub pattern: Option<String>,
+    /// β of the line-of-sight probability e^{−βr}, per m (turns blockage on).
+    pub los_beta_per_m: Option<f64>,
+    /// Exponent of blocked links (close-in law).
+    pub nlos_exponent: Option<f64>,
+    /// No blockage even with a scenario that has footprints.
+    pub no_blockage: bool,
 }
 
 impl FieldSpec {
@@ -344,6 +409,7 @@ impl FieldSpec {
             frequency_ghz: a.frequency_ghz.or(pl.map(|p| p.frequency_ghz())).unwrap_or(28.0),
             absorption_db_per_km: a.absorption_db_per_km.or(pl.map(|p| p.absorption_db_per_km())).unwrap_or(0.0),
             min_distance_m: a.min_distance_m.or(pl.map(|p| p.min_distance_m())).unwrap_or(1.0),
+            blockage: if a.no_blockage { None } else { blockage_of(sc, a) },
         })
     }
 }

@@ -31,7 +31,13 @@ pub fn inputs_line(s: &FieldSpec) -> String {
             "nakagami" => format!(" m = {}", s.m),
             _ => String::new(),
         }
-    )
+    ) + &match &s.blockage {
+        None => String::new(),
+        Some(b) => format!(
+            "; blockage P(LOS) = exp(-{:.5} r) ({}), blocked links n = {}",
+            b.beta_per_m, b.source, b.nlos_exponent
+        ),
+    }
 }
 
 /// CSV of the CDF tables (one block per curve set).

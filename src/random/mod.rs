@@ -1,5 +1,6 @@
 //! Random fields: point processes, the aggregate-interference field, Monte Carlo, characterisation.
 
+pub mod blockage;
 pub mod characterise;
 pub mod field;
 pub mod layout;
