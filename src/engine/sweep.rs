@@ -78,8 +78,11 @@ pub(crate) fn sweep(sp: &SweepSpec<'_>, nd: &SweepNode, out: &mut [f32]) {
     // Per band cell, from the ray passing closest to its centre: that ray's offset from the
     // centre and the horizon (slope, distance) it had reached there.
     let n = out.len();
-    // (offset, slope, distance) together: one cache line a visit.
-    let mut st = vec![[f32::INFINITY, NONE, 0.0]; n];
+    // Per cell the closest ray's offset, quantised to a byte (1/510 cell; the first ray wins
+    // a tie) so the array every visit reads stays in cache, and that ray's horizon (slope,
+    // distance), written only when a closer ray arrives.
+    let mut best = vec![u8::MAX; n];
+    let mut st = vec![[NONE, 0.0f32]; n];
     let map_cols = sp.map_cols;
     // One ray from the node toward the centre of cell (re, ce), one column (or row) a step.
     let mut cast = |re: usize, ce: usize| {
@@ -101,9 +104,10 @@ pub(crate) fn sweep(sp: &SweepSpec<'_>, nd: &SweepNode, out: &mut [f32]) {
                 let d = t * len;
                 if r >= br0 && r < br1 && c >= mc0 && c < mc1 {
                     let o = (r - br0) * map_cols + c - mc0;
-                    let off = (y - (r as f32 + 0.5)).abs();
-                    if off < st[o][0] {
-                        st[o] = [off, h, hd];
+                    let q = ((y - (r as f32 + 0.5)).abs() * 510.0) as u8;
+                    if q < best[o] {
+                        best[o] = q;
+                        st[o] = [h, hd];
                     }
                 }
                 let rise = top[r * cols + c] - d * d * inv_2ka - z;
@@ -125,9 +129,10 @@ pub(crate) fn sweep(sp: &SweepSpec<'_>, nd: &SweepNode, out: &mut [f32]) {
                 let d = t * len;
                 if r >= br0 && r < br1 && c >= mc0 && c < mc1 {
                     let o = (r - br0) * map_cols + c - mc0;
-                    let off = (x - (c as f32 + 0.5)).abs();
-                    if off < st[o][0] {
-                        st[o] = [off, h, hd];
+                    let q = ((x - (c as f32 + 0.5)).abs() * 510.0) as u8;
+                    if q < best[o] {
+                        best[o] = q;
+                        st[o] = [h, hd];
                     }
                 }
                 let rise = top[r * cols + c] - d * d * inv_2ka - z;
@@ -154,7 +159,7 @@ pub(crate) fn sweep(sp: &SweepSpec<'_>, nd: &SweepNode, out: &mut [f32]) {
         let (r, c) = (o / map_cols + br0, o % map_cols + mc0);
         let (dx, dy) = (c as f32 + 0.5 - u, r as f32 + 0.5 - v);
         let d = (dx * dx + dy * dy).sqrt() * cell;
-        let [_, h, hd] = st[o];
+        let [h, hd] = st[o];
         *f = if h <= NONE || d <= 0.0 {
             1.0
         } else {
