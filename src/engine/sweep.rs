@@ -75,8 +75,6 @@ pub(crate) fn sweep(sp: &SweepSpec<'_>, nd: &SweepNode, out: &mut [f32]) {
     let inv_2ka = 1.0 / (2.0 * s.earth_k * EARTH_RADIUS_M) as f32;
     let top = &s.top[..];
     let z = nd.z;
-    // Per band cell, from the ray passing closest to its centre: that ray's offset from the
-    // centre and the horizon (slope, distance) it had reached there.
     let n = out.len();
     // Per cell the closest ray's offset, quantised to a byte (1/510 cell; the first ray wins
     // a tie) so the array every visit reads stays in cache, and that ray's horizon (slope,
@@ -89,57 +87,38 @@ pub(crate) fn sweep(sp: &SweepSpec<'_>, nd: &SweepNode, out: &mut [f32]) {
         let (dx, dy) = (ce as f32 + 0.5 - u, re as f32 + 0.5 - v);
         let len = (dx * dx + dy * dy).sqrt() * cell;
         let (mut h, mut hd) = (NONE, 0f32);
-        if dx.abs() >= dy.abs() {
-            let steps = ce.abs_diff(nc);
-            let sx = if dx > 0.0 { 1isize } else { -1 };
-            // t at the first column centre beyond the node's cell (positive, as the node lies
-            // inside its cell) and its step; y and d follow t.
-            let dt = 1.0 / dx.abs();
-            let t0 = (nc as f32 + 0.5 + sx as f32 - u) / dx;
-            for k in 0..steps {
-                let t = t0 + k as f32 * dt;
-                let c = (nc as isize + sx * (k as isize + 1)) as usize;
-                let y = v + t * dy;
-                let r = (y.max(rlo as f32) as usize).min(rhi);
-                let d = t * len;
-                if r >= br0 && r < br1 && c >= mc0 && c < mc1 {
-                    let o = (r - br0) * map_cols + c - mc0;
-                    let q = ((y - (r as f32 + 0.5)).abs() * 510.0) as u8;
-                    if q < best[o] {
-                        best[o] = q;
-                        st[o] = [h, hd];
-                    }
-                }
-                let rise = top[r * cols + c] - d * d * inv_2ka - z;
-                if rise > h * d {
-                    h = rise / d;
-                    hd = d;
+        // The ray steps along its major axis (columns when it runs closer to east-west, else
+        // rows) one cell centre line at a time; `m` is its minor coordinate there.
+        let cols_major = dx.abs() >= dy.abs();
+        let (a0, dmaj, m0, dmin, mlo, mhi, steps) = if cols_major {
+            (nc, dx, v, dy, rlo, rhi, ce.abs_diff(nc))
+        } else {
+            (nr, dy, u, dx, clo, chi, re.abs_diff(nr))
+        };
+        let sgn = if dmaj > 0.0 { 1isize } else { -1 };
+        // t at the first centre line beyond the node's cell (positive, as the node lies inside
+        // its cell) and its step; the minor coordinate and the distance follow t.
+        let dt = 1.0 / dmaj.abs();
+        let t0 = (a0 as f32 + 0.5 + sgn as f32 - if cols_major { u } else { v }) / dmaj;
+        for k in 0..steps {
+            let t = t0 + k as f32 * dt;
+            let a = (a0 as isize + sgn * (k as isize + 1)) as usize;
+            let m = m0 + t * dmin;
+            let b = (m.max(mlo as f32) as usize).min(mhi);
+            let (r, c) = if cols_major { (b, a) } else { (a, b) };
+            let d = t * len;
+            if r >= br0 && r < br1 && c >= mc0 && c < mc1 {
+                let o = (r - br0) * map_cols + c - mc0;
+                let q = ((m - (b as f32 + 0.5)).abs() * 510.0) as u8;
+                if q < best[o] {
+                    best[o] = q;
+                    st[o] = [h, hd];
                 }
             }
-        } else {
-            let steps = re.abs_diff(nr);
-            let sy = if dy > 0.0 { 1isize } else { -1 };
-            let dt = 1.0 / dy.abs();
-            let t0 = (nr as f32 + 0.5 + sy as f32 - v) / dy;
-            for k in 0..steps {
-                let t = t0 + k as f32 * dt;
-                let r = (nr as isize + sy * (k as isize + 1)) as usize;
-                let x = u + t * dx;
-                let c = (x.max(clo as f32) as usize).min(chi);
-                let d = t * len;
-                if r >= br0 && r < br1 && c >= mc0 && c < mc1 {
-                    let o = (r - br0) * map_cols + c - mc0;
-                    let q = ((x - (c as f32 + 0.5)).abs() * 510.0) as u8;
-                    if q < best[o] {
-                        best[o] = q;
-                        st[o] = [h, hd];
-                    }
-                }
-                let rise = top[r * cols + c] - d * d * inv_2ka - z;
-                if rise > h * d {
-                    h = rise / d;
-                    hd = d;
-                }
+            let rise = top[r * cols + c] - d * d * inv_2ka - z;
+            if rise > h * d {
+                h = rise / d;
+                hd = d;
             }
         }
     };
