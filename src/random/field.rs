@@ -64,7 +64,7 @@ pub struct Field {
 /// Line-of-sight blockage of a Boolean model of buildings (Bai, Vaze and Heath, IEEE Trans.
 /// Wireless Commun. 13(9), 2014): a link of length r is in line of sight with probability
 /// e^{−βr}, β = λ_b E\[perimeter\] / π for buildings of density λ_b with random orientation;
-/// a blocked link follows `nlos` (the constant e^{−λ_b E[area]} of the exact Boolean model is
+/// a blocked link follows `nlos` (the constant e^{−λ_b E\[area\]} of the exact Boolean model is
 /// left out: both ends stand outdoors).
 #[derive(Debug, Clone)]
 pub struct Blockage {
