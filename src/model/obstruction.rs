@@ -21,9 +21,6 @@
 /// Mean Earth radius, m (ITU-R P.834; common practice).
 pub const EARTH_RADIUS_M: f64 = 6_371_000.0;
 
-/// Speed of light, m/s.
-pub const C_M_S: f64 = 299_792_458.0;
-
 /// Knife-edge diffraction loss J(ν), dB (ITU-R P.526-16 eq. 31; 0 for ν ≤ −0.78).
 ///
 /// ```
@@ -58,7 +55,7 @@ pub fn nu(h_m: f64, wavelength_m: f64, d1_m: f64, d2_m: f64) -> f64 {
 
 /// Wavelength of a carrier, m.
 pub fn wavelength_m(frequency_ghz: f64) -> f64 {
-    C_M_S / (frequency_ghz * 1e9)
+    crate::model::pathloss::SPEED_OF_LIGHT / (frequency_ghz * 1e9)
 }
 
 /// One sample of a path profile.
