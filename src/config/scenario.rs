@@ -353,14 +353,7 @@ impl Scenario {
         let surface = match &raw.surface {
             None => None,
             Some(rs) => {
-                let index: std::collections::HashMap<&str, usize> =
-                    nodes.iter().enumerate().map(|(i, n)| (n.id.as_str(), i)).collect();
-                let links: Vec<(usize, usize)> = nodes
-                    .iter()
-                    .enumerate()
-                    .filter_map(|(i, n)| n.peer.as_deref().and_then(|p| index.get(p)).map(|&j| (i, j)))
-                    .filter(|&(i, j)| i < j || nodes[j].peer.as_deref() != Some(nodes[i].id.as_str()))
-                    .collect();
+                let links = crate::model::node::peer_links(&nodes);
                 let mut probs = Problems::default();
                 let s = crate::config::surface::build(
                     rs,

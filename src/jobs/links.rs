@@ -113,14 +113,7 @@ pub const CLEARANCE_RULE: f64 = 0.6;
 /// Computes every planned link, in node order; `mc` = (trials, seed) adds Monte Carlo checks.
 pub fn links(sc: &Scenario, mc: Option<(usize, u64)>) -> Vec<LinkRow> {
     let pos: Vec<Endpoint> = sc.nodes.iter().map(|n| sc.node_end(n)).collect();
-    let index: std::collections::HashMap<&str, usize> =
-        sc.nodes.iter().enumerate().map(|(i, n)| (n.id.as_str(), i)).collect();
-    let pairs: Vec<(usize, usize)> = sc
-        .nodes
-        .iter()
-        .enumerate()
-        .filter_map(|(i, n)| n.peer.as_deref().and_then(|p| index.get(p)).map(|&j| (i, j)))
-        .collect();
+    let pairs = crate::model::node::peer_pairs(&sc.nodes);
     let noise_dbm = sc.noise_dbm();
     let cov = CoverageModel::new(sc.fading, sc.thresholds.sinr_db, noise_dbm);
     pairs

@@ -33,3 +33,23 @@ impl Node {
         self.power_dbm + self.pattern.max_gain_dbi()
     }
 }
+
+/// The planned links as (from, to) indices: every node naming an existing `peer`, in node
+/// order (a mutual pair appears in both directions).
+pub fn peer_pairs(nodes: &[Node]) -> Vec<(usize, usize)> {
+    let index: std::collections::HashMap<&str, usize> =
+        nodes.iter().enumerate().map(|(i, n)| (n.id.as_str(), i)).collect();
+    nodes
+        .iter()
+        .enumerate()
+        .filter_map(|(i, n)| n.peer.as_deref().and_then(|p| index.get(p)).map(|&j| (i, j)))
+        .collect()
+}
+
+/// The planned links as unordered pairs (lower index first), each once, sorted.
+pub fn peer_links(nodes: &[Node]) -> Vec<(usize, usize)> {
+    let mut v: Vec<(usize, usize)> = peer_pairs(nodes).into_iter().map(|(i, j)| (i.min(j), i.max(j))).collect();
+    v.sort_unstable();
+    v.dedup();
+    v
+}

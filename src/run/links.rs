@@ -37,7 +37,9 @@ pub struct LinksResult {
 /// `report.html` into `opts.out`.
 pub fn run_links(sc: &Scenario, opts: &LinksOptions) -> Result<LinksResult, Error> {
     let mut owned = ["links.csv", "links.geojson", "install.csv", "report.html"].map(String::from).to_vec();
-    owned.extend(link_pairs(sc).iter().map(|&(a, b)| profile_file(&sc.nodes[a].id, &sc.nodes[b].id)));
+    owned.extend(
+        crate::model::node::peer_links(&sc.nodes).iter().map(|&(a, b)| profile_file(&sc.nodes[a].id, &sc.nodes[b].id)),
+    );
     let mut st = Staging::folder(&opts.out, &sc.input_files(), owned)?;
     let rows = crate::jobs::links::links(sc, opts.monte_carlo);
     let sheet = crate::jobs::install::sheet(sc).map_err(|m| {
@@ -121,11 +123,6 @@ pub fn run_links(sc: &Scenario, opts: &LinksOptions) -> Result<LinksResult, Erro
     Ok(LinksResult { rows, sheet, files })
 }
 
-/// The planned links as unordered pairs of node indices, each once, in node order.
-fn link_pairs(sc: &Scenario) -> Vec<(usize, usize)> {
-    markers_and_links(sc).1
-}
-
 /// The file name of a link's profile: `profile-<from>-<to>.svg`, with any character of the ids
 /// other than letters, digits, `-`, `_` and `.` written as `_`.
 pub fn profile_file(a: &str, b: &str) -> String {
@@ -143,7 +140,7 @@ fn link_profiles(
     let Some(surface) = sc.surface() else { return Ok(Vec::new()) };
     let lambda = crate::model::obstruction::wavelength_m(sc.pathloss.frequency_ghz());
     let mut out = Vec::new();
-    for (a, b) in link_pairs(sc) {
+    for (a, b) in crate::model::node::peer_links(&sc.nodes) {
         let (na, nb) = (&sc.nodes[a], &sc.nodes[b]);
         let profile =
             surface.profile(&sc.frame, (na.lon, na.lat, sc.node_alt_m(na)), (nb.lon, nb.lat, sc.node_alt_m(nb)));

@@ -93,17 +93,7 @@ pub fn markers_and_links(sc: &Scenario) -> (Vec<Marker>, Vec<(usize, usize)>) {
             beamwidth_deg: n.pattern.beamwidth_deg(),
         })
         .collect();
-    let index: std::collections::HashMap<&str, usize> =
-        sc.nodes.iter().enumerate().map(|(i, n)| (n.id.as_str(), i)).collect();
-    let mut links: Vec<(usize, usize)> = sc
-        .nodes
-        .iter()
-        .enumerate()
-        .filter_map(|(i, n)| n.peer.as_deref().and_then(|p| index.get(p)).map(|&j| (i.min(j), i.max(j))))
-        .collect();
-    links.sort_unstable();
-    links.dedup();
-    (markers, links)
+    (markers, crate::model::node::peer_links(&sc.nodes))
 }
 
 /// Every file name `map` can write: a rerun retires those it does not write again.
