@@ -25,19 +25,6 @@ pub struct ProfileImage {
     pub svg: String,
 }
 
-/// How a link's path reads in a table: clear, clear but inside the 60 % rule, or blocked.
-pub fn path_verdict(r: &LinkRow) -> String {
-    let what = r.limited_by.as_deref().unwrap_or("the surface");
-    match (r.line_of_sight, r.clearance_f1) {
-        (false, _) => format!("blocked by {what}, {:.1} dB", r.obstruction_db),
-        (true, Some(c)) if !r.clearance_ok => {
-            format!("clear by {:.0} % of F1 over {what} (below 60 %), {:.1} dB", c * 100.0, r.obstruction_db)
-        }
-        (true, Some(c)) => format!("clear, {:.0} % of F1", (c * 100.0).min(999.0)),
-        (true, None) => "clear".into(),
-    }
-}
-
 /// Escapes text for HTML element content and attribute values.
 pub fn esc(s: &str) -> String {
     s.replace('&', "&amp;").replace('<', "&lt;").replace('>', "&gt;").replace('"', "&quot;").replace('\'', "&#39;")
@@ -167,7 +154,7 @@ pub fn html(
             r.capacity_mbps,
             if r.passes { "ok" } else { "FAIL" },
             if r.clearance_ok { "" } else { " warn" },
-            esc(&path_verdict(r)),
+            esc(&r.path_verdict()),
             tops
         );
     }

@@ -224,6 +224,22 @@ fn one(
     }
 }
 
+impl LinkRow {
+    /// How the path reads: clear, clear but short of the 60 % rule, or blocked, with what
+    /// limits it and the obstruction loss.
+    pub fn path_verdict(&self) -> String {
+        let what = self.limited_by.as_deref().unwrap_or("the surface");
+        match (self.line_of_sight, self.clearance_f1) {
+            (false, _) => format!("blocked by {what}, {:.1} dB", self.obstruction_db),
+            (true, Some(c)) if !self.clearance_ok => {
+                format!("clear by {:.0} % of F1 over {what} (below 60 %), {:.1} dB", c * 100.0, self.obstruction_db)
+            }
+            (true, Some(c)) => format!("clear, {:.0} % of F1", (c * 100.0).min(999.0)),
+            (true, None) => "clear".into(),
+        }
+    }
+}
+
 fn tops(r: &LinkRow) -> String {
     r.top_interferers.iter().map(|s| format!("{} {:.0}%", s.id, s.share * 100.0)).collect::<Vec<_>>().join("; ")
 }
@@ -351,18 +367,7 @@ pub fn table(rows: &[LinkRow], sinr_db: f64, target: f64) -> String {
         target
     );
     for r in rows.iter().filter(|r| !r.clearance_ok) {
-        let what = r.limited_by.as_deref().unwrap_or("the surface");
-        s += &match (r.line_of_sight, r.clearance_f1) {
-            (false, _) => format!("{}-{}: blocked by {what} ({:.1} dB obstruction)\n", r.from, r.to, r.obstruction_db),
-            (true, Some(c)) => format!(
-                "{}-{}: clear of {what} by {:.0} % of the first Fresnel zone, below the 60 % rule ({:.1} dB obstruction)\n",
-                r.from,
-                r.to,
-                c * 100.0,
-                r.obstruction_db
-            ),
-            (true, None) => String::new(),
-        };
+        s += &format!("{}-{}: {}\n", r.from, r.to, r.path_verdict());
     }
     s
 }

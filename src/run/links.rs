@@ -147,7 +147,7 @@ fn link_profiles(
         let verdict = rows
             .iter()
             .find(|r| (r.from == na.id && r.to == nb.id) || (r.from == nb.id && r.to == na.id))
-            .map(crate::io::report::path_verdict)
+            .map(|r| r.path_verdict())
             .unwrap_or_default();
         let title = format!("{} – {}", na.id, nb.id);
         let svg = crate::io::profile::svg(&crate::io::profile::ProfileSpec {
