@@ -136,9 +136,7 @@ pub fn sheet(sc: &Scenario) -> Result<InstallSheet, String> {
                 // Over a surface the ends' altitudes differ by the ground too, and the Earth
                 // drops by d/(2·k·a) radians of apparent elevation (common practice).
                 let drop = sc.surface().map_or(0.0, |s| horiz / (2.0 * s.earth_k() * EARTH_RADIUS_M));
-                let tilt = ((e0.height_m - e1.height_m) / horiz.max(1e-9)).atan().to_degrees() + drop.to_degrees();
-                let tilt =
-                    if sc.surface().is_some() { tilt } else { (n.height_m - p.height_m).atan2(horiz).to_degrees() };
+                let tilt = (e0.height_m - e1.height_m).atan2(horiz).to_degrees() + drop.to_degrees();
                 let obs = sc.node_to_node(n, p, Edges::Three);
                 let level =
                     Budget::aligned(&sc.pathloss, n, g).obstructed(obs.loss_db).received_dbm(p.pattern.max_gain_dbi());
