@@ -47,13 +47,13 @@ impl NodeFactor for Unobstructed {
 }
 
 /// The surface's factors for one row: `f[node * stride + col]` signed (negative out of line
-/// of sight), the receiver altitude per column and each node's antenna altitude.
+/// of sight), the receiver altitude per column and the nodes (their antenna altitudes).
 #[derive(Clone, Copy)]
 pub(crate) struct Obstructed<'a> {
     pub(crate) f: &'a [f32],
     pub(crate) stride: usize,
     pub(crate) zr: &'a [f32],
-    pub(crate) ztx: &'a [f32],
+    pub(crate) nodes: &'a [crate::engine::sweep::SweepNode],
 }
 /// [`Obstructed`] for one node.
 #[derive(Clone, Copy)]
@@ -67,7 +67,7 @@ impl<'a> PairFactor for Obstructed<'a> {
     #[inline(always)]
     fn for_node(self, node: u32, len: usize) -> ObstructedNode<'a> {
         let base = node as usize * self.stride;
-        ObstructedNode { f: &self.f[base..base + len], zr: &self.zr[..len], z: self.ztx[node as usize] }
+        ObstructedNode { f: &self.f[base..base + len], zr: &self.zr[..len], z: self.nodes[node as usize].z }
     }
 }
 impl NodeFactor for ObstructedNode<'_> {

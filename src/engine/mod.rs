@@ -20,7 +20,7 @@
 
 use crate::engine::kernels::{CoChannel, Cube, Decay, Fast, NodeK, Obstructed, Quart, RowBufs, Sq, Unobstructed};
 use crate::engine::row::{RowJob, row};
-use crate::engine::sweep::{SweepNode, SweepSpec, sweep};
+use crate::engine::sweep::{Scratch, SweepNode, SweepSpec, sweep};
 use crate::model::scenario::Scenario;
 use crate::model::units::lin_to_db;
 use rayon::prelude::*;
@@ -153,13 +153,17 @@ pub struct Engine<'s> {
 /// The surface prepared for the map: each node's lattice position and antenna altitude.
 pub(crate) struct ObsPrep {
     pub(crate) nodes: Vec<SweepNode>,
-    pub(crate) ztx: Vec<f32>,
     pub(crate) wavelength_m: f32,
 }
 
 /// Memory for one band of sweep factors (4 bytes a node a cell), bytes: the map is computed
 /// in bands of rows that fit.
 pub const SWEEP_BAND_BYTES: usize = 256 << 20;
+
+/// Rows per band over a surface for a grid of `rows` × `cols` cells and `nodes` nodes.
+pub fn band_rows(rows: usize, cols: usize, nodes: usize) -> usize {
+    (SWEEP_BAND_BYTES / (4 * cols * nodes.max(1))).clamp(1, rows)
+}
 
 impl Engine<'_> {
     /// The map's obstruction of node `node` on every grid cell (row-major): loss in dB and
@@ -169,16 +173,10 @@ impl Engine<'_> {
         let (o, surf) = (self.obs.as_ref()?, self.sc.surface()?);
         let g = &self.sc.grid;
         let (rows, cols) = (g.rows(), g.cols());
-        let rx_h = self.sc.receiver.height_m as f32;
-        let zr: Vec<f32> = (0..rows * cols)
-            .map(|k| {
-                let i = (k / cols + surf.r0) * surf.cols + k % cols + surf.c0;
-                (if surf.rooftop { surf.top[i] } else { surf.ground[i] }) + rx_h
-            })
-            .collect();
+        let zr = surf.receiver_alts(0..rows, cols, self.sc.receiver.height_m as f32);
         let spec = SweepSpec { surface: surf, wavelength_m: o.wavelength_m, band: (0, rows), map_cols: cols, zr: &zr };
         let mut out = vec![0f32; rows * cols];
-        sweep(&spec, &o.nodes[node], &mut out);
+        sweep(&spec, &o.nodes[node], &mut out, &mut Scratch::default());
         Some(out.into_iter().map(|f| (-10.0 * f.abs().log10(), f > 0.0)).collect())
     }
 
@@ -244,21 +242,14 @@ impl Engine<'_> {
         let mut per_row: Vec<(u64, f64)> = Vec::with_capacity(rows);
         match (&self.obs, self.sc.surface()) {
             (Some(o), Some(surf)) => {
-                let band = (SWEEP_BAND_BYTES / (4 * cols * self.nodes.len().max(1))).clamp(1, rows);
+                let band = band_rows(rows, cols, self.nodes.len());
                 let mut visible_out = visible.as_deref_mut().map(|v| v.chunks_mut(band * cols));
                 let mut fbuf = vec![0f32; self.nodes.len() * band * cols];
                 let mut work = work.into_iter();
-                let rx_h = self.sc.receiver.height_m as f32;
                 for b0 in (0..rows).step_by(band) {
                     let b1 = (b0 + band).min(rows);
                     let stride = (b1 - b0) * cols;
-                    // Receiver altitudes of the band's cells.
-                    let mut zr = vec![0f32; stride];
-                    for (k, z) in zr.iter_mut().enumerate() {
-                        let (r, c) = (b0 + k / cols + surf.r0, k % cols + surf.c0);
-                        let i = r * surf.cols + c;
-                        *z = if surf.rooftop { surf.top[i] } else { surf.ground[i] } + rx_h;
-                    }
+                    let zr = surf.receiver_alts(b0..b1, cols, self.sc.receiver.height_m as f32);
                     let spec = SweepSpec {
                         surface: surf,
                         wavelength_m: o.wavelength_m,
@@ -266,13 +257,16 @@ impl Engine<'_> {
                         map_cols: cols,
                         zr: &zr,
                     };
-                    fbuf[..self.nodes.len() * stride].par_chunks_mut(stride).enumerate().for_each(|(i, out)| {
-                        if self.nodes[i].act > 0.0 {
-                            sweep(&spec, &o.nodes[i], out);
-                        } else {
-                            out.fill(0.0);
-                        }
-                    });
+                    fbuf[..self.nodes.len() * stride].par_chunks_mut(stride).enumerate().for_each_init(
+                        Scratch::default,
+                        |scratch, (i, out)| {
+                            if self.nodes[i].act > 0.0 {
+                                sweep(&spec, &o.nodes[i], out, scratch);
+                            } else {
+                                out.fill(0.0);
+                            }
+                        },
+                    );
                     let fb = &fbuf[..self.nodes.len() * stride];
                     if let Some(vis) = visible_out.as_mut().and_then(|it| it.next()) {
                         vis.par_chunks_mut(cols).enumerate().for_each(|(rb, vrow)| {
@@ -293,7 +287,7 @@ impl Engine<'_> {
                                 f: &fb[rb * cols..],
                                 stride,
                                 zr: &zr[rb * cols..(rb + 1) * cols],
-                                ztx: &o.ztx,
+                                nodes: &o.nodes,
                             };
                             let res = row(self, d, a, CoChannel, RowJob { r, l, cutoff: opts.cutoff_m, out }, bufs);
                             bar.inc(1);

@@ -71,16 +71,15 @@ impl<'s> Engine<'s> {
         };
         let active = nodes.iter().filter(|n| n.act > 0.0).map(|n| n.idx as usize).collect();
         let obs = sc.surface().map(|s| {
-            let (nodes, ztx) = sc
+            let nodes = sc
                 .nodes
                 .iter()
                 .map(|n| {
                     let (u, v) = s.position(n.lon, n.lat);
-                    let z = sc.node_alt_m(n) as f32;
-                    (SweepNode { u, v, z }, z)
+                    SweepNode { u, v, z: sc.node_alt_m(n) as f32 }
                 })
-                .unzip();
-            ObsPrep { nodes, ztx, wavelength_m: wavelength_m(sc.pathloss.frequency_ghz()) as f32 }
+                .collect();
+            ObsPrep { nodes, wavelength_m: wavelength_m(sc.pathloss.frequency_ghz()) as f32 }
         });
         Engine {
             sc,

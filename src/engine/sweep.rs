@@ -59,9 +59,16 @@ pub(crate) struct SweepSpec<'a> {
     pub(crate) zr: &'a [f32],
 }
 
+/// One thread's scratch for [`sweep`], reused from node to node.
+#[derive(Default)]
+pub(crate) struct Scratch {
+    best: Vec<u8>,
+    st: Vec<[f32; 2]>,
+}
+
 /// Writes node `nd`'s signed factor for every cell of the band into `out` (band rows × map
 /// columns).
-pub(crate) fn sweep(sp: &SweepSpec<'_>, nd: &SweepNode, out: &mut [f32]) {
+pub(crate) fn sweep(sp: &SweepSpec<'_>, nd: &SweepNode, out: &mut [f32], scratch: &mut Scratch) {
     let s = sp.surface;
     let (rows, cols) = (s.rows, s.cols);
     let (u, v) = (nd.u as f32, nd.v as f32);
@@ -79,8 +86,11 @@ pub(crate) fn sweep(sp: &SweepSpec<'_>, nd: &SweepNode, out: &mut [f32]) {
     // Per cell the closest ray's offset, quantised to a byte (1/510 cell; the first ray wins
     // a tie) so the array every visit reads stays in cache, and that ray's horizon (slope,
     // distance), written only when a closer ray arrives.
-    let mut best = vec![u8::MAX; n];
-    let mut st = vec![[NONE, 0.0f32]; n];
+    let Scratch { best, st } = scratch;
+    best.clear();
+    best.resize(n, u8::MAX);
+    st.clear();
+    st.resize(n, [NONE, 0.0]);
     let map_cols = sp.map_cols;
     // One ray from the node toward the centre of cell (re, ce), one column (or row) a step.
     let mut cast = |re: usize, ce: usize| {
@@ -214,7 +224,7 @@ mod tests {
         let zr = vec![1.0f32; n * n];
         let sp = SweepSpec { surface: &s, wavelength_m: 0.005, band: (0, n), map_cols: n, zr: &zr };
         let mut out = vec![0f32; n * n];
-        sweep(&sp, &nd, &mut out);
+        sweep(&sp, &nd, &mut out, &mut Scratch::default());
         let exact: Vec<bool> = (0..n * n)
             .map(|k| {
                 let b = (s.lon_of_col(k % n), s.lat_of_row(k / n), 1.0);

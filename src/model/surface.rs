@@ -159,6 +159,18 @@ impl Surface {
         (if self.rooftop { self.top_m(lon, lat) } else { self.ground_m(lon, lat) }) + height_m
     }
 
+    /// The map receiver's altitude (`height_m` above the roof or the ground, as
+    /// [`Self::receiver_alt_m`]) at every cell of map rows `rows` (`map_cols` columns), row by
+    /// row.
+    pub(crate) fn receiver_alts(&self, rows: std::ops::Range<usize>, map_cols: usize, height_m: f32) -> Vec<f32> {
+        let base = if self.rooftop { &self.top } else { &self.ground };
+        rows.flat_map(|r| {
+            let i = (r + self.r0) * self.cols + self.c0;
+            base[i..i + map_cols].iter().map(move |z| z + height_m)
+        })
+        .collect()
+    }
+
     /// The profile from (`a` lon, lat, altitude) to `b`, sampled every quarter cell; each
     /// sample takes the heights of the cell it falls in. The samples lie on the straight line
     /// in longitude and latitude, which at lobemap's extents is the plane's straight line to

@@ -47,16 +47,15 @@ pub struct MapResult {
 /// Estimated peak memory of a map of `layers` layers, bytes: the grid's estimate
 /// ([`crate::geometry::grid::Grid::estimate_bytes`]) and, over a surface, the lattice (12
 /// bytes a cell), one band of sweep factors (4 bytes a node a cell, at most
-/// [`crate::engine::SWEEP_BAND_BYTES`]), and per band cell the receiver altitudes plus each
-/// thread's nearest-ray offsets (4 bytes each).
+/// [`crate::engine::SWEEP_BAND_BYTES`]), and per band cell the receiver altitudes (4 bytes)
+/// and each thread's sweep scratch (a one-byte ray offset and an 8-byte horizon).
 pub fn estimate_bytes(sc: &Scenario, layers: usize) -> u64 {
     let threads = rayon::current_num_threads();
     let mut need = sc.grid.estimate_bytes(layers, threads);
     if let Some(s) = sc.surface() {
         let (rows, cols, nodes) = (sc.grid.rows() as u64, sc.grid.cols() as u64, sc.nodes.len().max(1) as u64);
-        let band_rows = (crate::engine::SWEEP_BAND_BYTES as u64 / (4 * cols * nodes)).clamp(1, rows);
-        let band_cells = band_rows * cols;
-        need += s.cells() as u64 * 12 + band_cells * 4 * (nodes + 1 + threads as u64);
+        let band_cells = crate::engine::band_rows(rows as usize, cols as usize, nodes as usize) as u64 * cols;
+        need += s.cells() as u64 * 12 + band_cells * (4 * nodes + 4 + 9 * threads as u64);
     }
     need
 }
