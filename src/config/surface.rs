@@ -420,6 +420,12 @@ pub(crate) fn build(
     }
     let lon_of = |c: usize| west + (c as f64 + 0.5) * grid.dlon();
     let lat_of = |r: usize| north - (r as f64 + 0.5) * grid.dlat();
+    // The lattice cell holding a point (points outside take the nearest edge cell).
+    let cell = |lon: f64, lat: f64| {
+        let c = (((lon - west) / grid.dlon()).max(0.0) as usize).min(cols - 1);
+        let r = (((north - lat) / grid.dlat()).max(0.0) as usize).min(rows - 1);
+        r * cols + c
+    };
     // Ground per cell: NaN for nodata, −∞ outside the raster.
     let mut ground = vec![0f32; rows * cols];
     if let Some((dem, label)) = &dem {
@@ -464,11 +470,6 @@ pub(crate) fn build(
             ));
             return None;
         }
-        let cell = |lon: f64, lat: f64| {
-            let c = (((lon - west) / grid.dlon()).max(0.0) as usize).min(cols - 1);
-            let r = (((north - lat) / grid.dlat()).max(0.0) as usize).min(rows - 1);
-            r * cols + c
-        };
         for n in nodes {
             if ground[cell(n.lon, n.lat)].is_nan() {
                 probs.push(Problem::new(
@@ -553,9 +554,7 @@ pub(crate) fn build(
         }
         // A node inside a footprint must stand above its roof.
         for n in nodes {
-            let c = (((n.lon - west) / grid.dlon()).max(0.0) as usize).min(cols - 1);
-            let r = (((north - n.lat) / grid.dlat()).max(0.0) as usize).min(rows - 1);
-            let b = building[r * cols + c];
+            let b = building[cell(n.lon, n.lat)];
             if b != NO_BUILDING && n.height_m < buildings[b as usize].height_m {
                 let bl = &buildings[b as usize];
                 probs.push(Problem::new(

@@ -95,10 +95,6 @@ impl Surface {
     pub fn earth_k(&self) -> f64 {
         self.earth_k
     }
-    /// Obstruction loss cap, dB.
-    pub fn cap_db(&self) -> f64 {
-        self.cap_db
-    }
     /// Outer rings of the footprints (lon, lat).
     pub fn outlines(&self) -> &[Vec<(f64, f64)>] {
         &self.outlines
@@ -106,10 +102,6 @@ impl Surface {
     /// The buildings.
     pub fn buildings(&self) -> &[Building] {
         &self.buildings
-    }
-    /// Cell size, m.
-    pub fn cell_m(&self) -> f64 {
-        self.cell_m
     }
     /// Longitude of the centre of surface column `c`.
     pub fn lon_of_col(&self, c: usize) -> f64 {
@@ -122,12 +114,6 @@ impl Surface {
     /// Fractional lattice position (column, row) of a point: cell (r, c) spans [c, c+1).
     pub(crate) fn position(&self, lon: f64, lat: f64) -> (f64, f64) {
         ((lon - self.west) / self.dlon, (self.north - lat) / self.dlat)
-    }
-    /// The cell containing a point, if inside.
-    pub fn cell_of(&self, lon: f64, lat: f64) -> Option<(usize, usize)> {
-        let (u, v) = self.position(lon, lat);
-        (u >= 0.0 && v >= 0.0 && (u as usize) < self.cols && (v as usize) < self.rows)
-            .then_some((v as usize, u as usize))
     }
     fn at(&self, lon: f64, lat: f64) -> usize {
         // Points outside take the nearest edge cell (the lattice contains every node).
@@ -143,11 +129,6 @@ impl Surface {
     /// Top of the surface (ground or roof) at a point, m.
     pub fn top_m(&self, lon: f64, lat: f64) -> f64 {
         self.top[self.at(lon, lat)] as f64
-    }
-    /// The building at a point, if any.
-    pub fn building_at(&self, lon: f64, lat: f64) -> Option<u32> {
-        let b = self.building[self.at(lon, lat)];
-        (b != NO_BUILDING).then_some(b)
     }
     /// Altitude of an antenna `height_m` above the ground at a point (a node), m.
     pub fn antenna_alt_m(&self, lon: f64, lat: f64, height_m: f64) -> f64 {
