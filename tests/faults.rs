@@ -209,15 +209,10 @@ fn memory_estimate_bounds_the_measured_peak() {
         eprintln!("/usr/bin/time not installed; memory case not run");
         return;
     }
-    let root = env!("CARGO_MANIFEST_DIR");
-    let scenario = std::fs::read_to_string(format!("{root}/sites/harbourlight/scenario.toml")).unwrap();
+    let scenario = crate::util::demo_scenario();
     for cell in ["2", "1"] {
         let d = tempfile::tempdir().unwrap();
-        let text = scenario
-            .replace("nodes = \"nodes.geojson\"", &format!("nodes = \"{root}/sites/harbourlight/nodes.geojson\""))
-            .replace("\"ground.tif\"", &format!("\"{root}/sites/harbourlight/ground.tif\""))
-            .replace("\"buildings.geojson\"", &format!("\"{root}/sites/harbourlight/buildings.geojson\""))
-            .replace("cell_m = 4", &format!("cell_m = {cell}"));
+        let text = scenario.replace("cell_m = 4", &format!("cell_m = {cell}"));
         let p = d.path().join("s.toml");
         std::fs::write(&p, text).unwrap();
         let c = run(&["check", p.to_str().unwrap()]);

@@ -67,20 +67,18 @@ fn have_gdal() -> bool {
     Command::new("gdal_viewshed").arg("--version").output().is_ok_and(|o| !o.stdout.is_empty())
 }
 
-/// A scenario of one node on the hills, written beside the ground model.
-fn hill_scenario(dir: &Path, bbox: BBox, node: (f64, f64)) -> std::path::PathBuf {
+/// A scenario folder of one node on the hills (`util::site`); the ground model goes into it
+/// as `dem.tif`.
+fn hill_scenario(bbox: BBox, node: (f64, f64)) -> (tempfile::TempDir, std::path::PathBuf) {
     let nodes = format!(
         r#"{{"type":"FeatureCollection","features":[{{"type":"Feature","geometry":{{"type":"Point","coordinates":[{}, {}]}},"properties":{{"id":"N1","pattern":"omni","gain_dbi":10,"power_dbm":20,"height_m":10,"activity":1,"azimuth_deg":0}}}}]}}"#,
         node.0, node.1
     );
-    std::fs::write(dir.join("nodes.geojson"), nodes).unwrap();
     let text = format!(
         "name = \"hills\"\nnodes = \"nodes.geojson\"\n[radio]\nfrequency_ghz = 28\nbandwidth_mhz = 400\nnoise_figure_db = 7\n[propagation]\nmodel = \"free-space\"\n[receiver]\nheight_m = 2\n[grid]\ncell_m = 5\nbbox = [{}, {}, {}, {}]\n[surface]\nground = \"dem.tif\"\nearth_k = 1000000\n",
         bbox.west, bbox.south, bbox.east, bbox.north
     );
-    let p = dir.join("s.toml");
-    std::fs::write(&p, text).unwrap();
-    p
+    crate::util::site(&text, &nodes)
 }
 
 /// Line of sight of one node over smooth invented hills against `gdal_viewshed` (GDAL 3.6,
@@ -94,16 +92,16 @@ fn line_of_sight_agrees_with_gdal_viewshed() {
         eprintln!("SKIPPED: gdal_viewshed not installed (Debian gdal-bin); line of sight not compared with GDAL");
         return;
     }
-    let d = tempfile::tempdir().unwrap();
     let bbox = BBox { west: 7.0, south: 46.0, east: 7.02, north: 46.014 };
     let grid = Grid::new(bbox, 5.0).unwrap();
-    let n = grid.rows().max(grid.cols());
-    let z: Vec<f64> = (0..grid.rows() * grid.cols()).map(|k| hills(k / grid.cols(), k % grid.cols(), n)).collect();
-    write_dem(d.path(), &grid, &z);
     // The node at a cell centre (GDAL places its observer in a cell).
     let (nr, nc) = (grid.rows() * 2 / 3, grid.cols() / 4);
     let node = (grid.lon_of_col(nc), grid.lat_of_row(nr));
-    let sc = Scenario::load(&hill_scenario(d.path(), bbox, node)).unwrap();
+    let (d, p) = hill_scenario(bbox, node);
+    let n = grid.rows().max(grid.cols());
+    let z: Vec<f64> = (0..grid.rows() * grid.cols()).map(|k| hills(k / grid.cols(), k % grid.cols(), n)).collect();
+    write_dem(d.path(), &grid, &z);
+    let sc = Scenario::load(&p).unwrap();
     assert_eq!((sc.grid().rows(), sc.grid().cols()), (grid.rows(), grid.cols()));
     let layers = LayerSet { visible: true, ..LayerSet::TOTAL };
     let ours = Engine::new(&sc).run(&Options { layers, cutoff_m: None, progress: false }).visible.unwrap();
@@ -151,7 +149,8 @@ fn a_utm_ground_model_is_placed_where_pyproj_puts_it() {
         eprintln!("SKIPPED: gdal_translate not installed (Debian gdal-bin); UTM placement not checked");
         return;
     }
-    let d = tempfile::tempdir().unwrap();
+    let bbox = BBox { west: -4.8008, south: 45.4994, east: -4.7992, north: 45.5006 };
+    let (d, p) = hill_scenario(bbox, (-4.8, 45.5));
     // 41 × 41 pixels of 5 m with the point in the middle of the centre pixel.
     let (e, n) = (359_372.128_733_414, 5_040_072.317_008_098);
     let (x0, y0) = (e - 20.5 * 5.0, n + 20.5 * 5.0);
@@ -169,8 +168,6 @@ fn a_utm_ground_model_is_placed_where_pyproj_puts_it() {
         .output()
         .unwrap();
     assert!(o.status.success());
-    let bbox = BBox { west: -4.8008, south: 45.4994, east: -4.7992, north: 45.5006 };
-    let p = hill_scenario(d.path(), bbox, (-4.8, 45.5));
     let text = std::fs::read_to_string(&p).unwrap().replace("cell_m = 5", "cell_m = 1");
     std::fs::write(&p, text).unwrap();
     let sc = Scenario::load(&p).unwrap();
@@ -183,12 +180,8 @@ fn a_utm_ground_model_is_placed_where_pyproj_puts_it() {
 fn refused(surface: &str, files: &[(&str, &[u8])]) -> String {
     let d = tempfile::tempdir().unwrap();
     let root = env!("CARGO_MANIFEST_DIR");
-    let text = std::fs::read_to_string(format!("{root}/sites/harbourlight/scenario.toml")).unwrap();
-    let head = text
-        .split("[surface]")
-        .next()
-        .unwrap()
-        .replace("nodes = \"nodes.geojson\"", &format!("nodes = \"{root}/sites/harbourlight/nodes.geojson\""));
+    let text = crate::util::demo_scenario();
+    let head = text.split("[surface]").next().unwrap();
     let text = format!("{head}[surface]\n{}\n", surface.replace("ROOT", root));
     for (name, body) in files {
         std::fs::write(d.path().join(name), body).unwrap();

@@ -16,3 +16,13 @@ pub fn site(toml: &str, nodes: &str) -> (tempfile::TempDir, std::path::PathBuf) 
     let p = d.path().join("scenario.toml");
     (d, p)
 }
+
+/// The demo's scenario text with every input path (nodes, ground, buildings) made absolute,
+/// so a test can write a changed copy anywhere.
+pub fn demo_scenario() -> String {
+    let root = env!("CARGO_MANIFEST_DIR");
+    let text = std::fs::read_to_string(format!("{root}/sites/harbourlight/scenario.toml")).unwrap();
+    ["nodes.geojson", "ground.tif", "buildings.geojson"]
+        .iter()
+        .fold(text, |t, f| t.replace(&format!("\"{f}\""), &format!("\"{root}/sites/harbourlight/{f}\"")))
+}
