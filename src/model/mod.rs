@@ -12,3 +12,4 @@ pub mod pathloss;
 pub mod scenario;
 pub mod surface;
 pub mod units;
+pub mod weather;
