@@ -73,6 +73,7 @@ fn andrews_baccelli_ganti_coverage() {
                         activity: 1.0,
                         peer: None,
                         name: None,
+                        polarisation: Default::default(),
                     }
                 })
                 .collect();

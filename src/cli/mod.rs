@@ -60,8 +60,9 @@ enum Cmd {
         /// Output folder (default: outputs/<scenario name>/).
         #[arg(long)]
         out: Option<PathBuf>,
-        /// Exit with code 3 when any link misses its SINR threshold or coverage target, or (over
-        /// a [surface]) has less than 60 % of its first Fresnel zone clear.
+        /// Exit with code 3 when any link misses its SINR threshold or coverage target, (over
+        /// a [surface]) has less than 60 % of its first Fresnel zone clear, or (with [rain])
+        /// falls below the availability target.
         #[arg(long)]
         strict: bool,
         /// Cross-check each link's coverage with this many seeded Monte Carlo trials.
@@ -566,12 +567,12 @@ fn links_cmd(
     if json {
         println!("{}", serde_json::to_string_pretty(&res.rows)?);
     } else if !quiet {
-        print!("{}", lobemap::jobs::links::table(&res.rows, sc.thresholds().sinr_db, sc.thresholds().coverage_target));
+        print!("{}", lobemap::jobs::links::table(&res.rows, sc));
     }
     if !quiet {
         eprintln!("wrote {} files to {}", res.files.len(), out.display());
     }
-    if strict && res.rows.iter().any(|r| !r.passes || !r.clearance_ok) {
+    if strict && res.rows.iter().any(|r| !r.passes || !r.clearance_ok || r.meets_target == Some(false)) {
         return Ok(ExitCode::from(3));
     }
     Ok(ExitCode::SUCCESS)

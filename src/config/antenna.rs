@@ -22,6 +22,8 @@ pub struct AntennaDefaults {
     pub height_m: Option<f64>,
     /// Fraction of time transmitting (default 1).
     pub activity: Option<f64>,
+    /// Polarisation, `V` or `H` (default `V`).
+    pub polarisation: Option<String>,
 }
 
 /// Default antenna height when neither the node nor `[antenna]` gives one, m.

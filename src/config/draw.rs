@@ -23,6 +23,7 @@ impl DrawSpec {
         file: &str,
     ) -> Result<DrawSpec, Vec<Problem>> {
         let mut probs = Vec::new();
+        let antenna_pol = antenna.polarisation.as_deref();
         let mut bad = |field: &str, msg: String| probs.push(Problem::new(file, Some("[draw]".into()), field, msg));
         let keep = keep.unwrap_or(1.0);
         let hard_core_m = hard_core_m.unwrap_or(0.0);
@@ -137,6 +138,7 @@ impl DrawSpec {
                 areas_path,
                 exclude,
                 antenna,
+                polarisation: antenna_pol.and_then(crate::model::node::Polarisation::parse).unwrap_or_default(),
             });
         }
         Err(probs)

@@ -23,19 +23,26 @@ pub(crate) const KEYS: &[(&str, &[&str])] = &[
             "links",
             "install",
             "surface",
+            "atmosphere",
+            "rain",
         ],
     ),
     ("radio", &["frequency_ghz", "bandwidth_mhz", "noise_figure_db"]),
     ("propagation", &["model", "exponent", "loss_at_1m_db", "absorption_db_per_km", "min_distance_m"]),
-    ("antenna", &["pattern", "beamwidth_deg", "gain_dbi", "sidelobe_dbi", "power_dbm", "height_m", "activity"]),
+    (
+        "antenna",
+        &["pattern", "beamwidth_deg", "gain_dbi", "sidelobe_dbi", "power_dbm", "height_m", "activity", "polarisation"],
+    ),
     ("receiver", &["height_m", "antenna", "gain_dbi", "beamwidth_deg", "sidelobe_dbi", "rooftop"]),
     ("grid", &["cell_m", "margin_m", "bbox"]),
     ("thresholds", &["sinr_db", "hotspot_i_over_n_db", "coverage_target"]),
     ("draw", &["density_per_km2", "areas", "keep", "hard_core_m", "azimuth", "toward", "seed", "mode"]),
     ("fading", &["model", "m", "k_db", "interferer_model", "interferer_m", "interferer_k_db", "shadowing_db"]),
-    ("links", &["capacity_gap_db", "max_spectral_efficiency"]),
+    ("links", &["capacity_gap_db", "max_spectral_efficiency", "availability_target_pct"]),
     ("install", &["declination_date"]),
     ("surface", &["ground", "buildings", "earth_k", "obstruction_cap_db", "nodata_fill_m"]),
+    ("atmosphere", &["pressure_hpa", "temperature_c", "water_vapour_g_m3"]),
+    ("rain", &["rate_mm_h", "scaling", "interferers_fade"]),
 ];
 
 /// 1-based line and column of byte `offset` in `text`.

@@ -9,7 +9,7 @@
 use crate::config::antenna::AntennaDefaults;
 use crate::config::range::Range;
 use crate::error::{Problem, Problems};
-use crate::model::node::Node;
+use crate::model::node::{Node, Polarisation};
 use serde_json::Value;
 
 /// Property keys a node feature may carry. `index` and `eirp_dbm` are what lobemap writes
@@ -25,6 +25,7 @@ pub const NODE_KEYS: &[&str] = &[
     "power_dbm",
     "height_m",
     "activity",
+    "polarisation",
     "peer",
     "name",
     "note",
@@ -292,6 +293,7 @@ fn parse_feature(
         power_dbm: num("power_dbm", Some(&Range::POWER)),
         height_m: num("height_m", Some(&Range::HEIGHT)),
         activity: num("activity", Some(&Range::ACTIVITY)),
+        polarisation: None,
     };
     let mut text = |key: &str| -> Option<String> {
         match props.get(key) {
@@ -307,6 +309,7 @@ fn parse_feature(
     let pattern_name = text("pattern");
     let peer = text("peer");
     let name = text("name");
+    let pol_name = text("polarisation");
     let merged = AntennaDefaults {
         pattern: pattern_name.or_else(|| d.pattern.clone()),
         beamwidth_deg: local.beamwidth_deg.or(d.beamwidth_deg),
@@ -315,6 +318,15 @@ fn parse_feature(
         power_dbm: local.power_dbm.or(d.power_dbm),
         height_m: local.height_m.or(d.height_m),
         activity: local.activity.or(d.activity),
+        polarisation: None,
+    };
+    // A bad `[antenna]` default is reported once, by the scenario's check.
+    let polarisation = match pol_name.as_deref() {
+        None => d.polarisation.as_deref().and_then(Polarisation::parse).unwrap_or_default(),
+        Some(s) => Polarisation::parse(s).unwrap_or_else(|| {
+            push("polarisation", format!("value `{s}` is not {}", Polarisation::NAMES));
+            Polarisation::default()
+        }),
     };
     let resolved = merged.resolve(&mut |field, msg| push(field, msg));
     let azimuth_deg = match (az, &resolved) {
@@ -344,5 +356,5 @@ fn parse_feature(
         return None;
     }
     let (pattern, power_dbm, height_m, activity) = resolved?;
-    Some(Node { id: id?, lon, lat, azimuth_deg, pattern, power_dbm, height_m, activity, peer, name })
+    Some(Node { id: id?, lon, lat, azimuth_deg, pattern, power_dbm, height_m, activity, peer, name, polarisation })
 }

@@ -26,6 +26,24 @@ pub(crate) struct RawScenario {
     #[serde(default)]
     pub(crate) install: RawInstall,
     pub(crate) surface: Option<crate::config::surface::RawSurface>,
+    pub(crate) atmosphere: Option<RawAtmosphere>,
+    pub(crate) rain: Option<RawRain>,
+}
+
+#[derive(Debug, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub(crate) struct RawAtmosphere {
+    pub(crate) pressure_hpa: Option<f64>,
+    pub(crate) temperature_c: Option<f64>,
+    pub(crate) water_vapour_g_m3: Option<f64>,
+}
+
+#[derive(Debug, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub(crate) struct RawRain {
+    pub(crate) rate_mm_h: f64,
+    pub(crate) scaling: Option<String>,
+    pub(crate) interferers_fade: Option<bool>,
 }
 
 #[derive(Debug, Default, Deserialize)]
@@ -45,6 +63,7 @@ pub(crate) struct RawFading {
 pub(crate) struct RawLinks {
     pub(crate) capacity_gap_db: Option<f64>,
     pub(crate) max_spectral_efficiency: Option<f64>,
+    pub(crate) availability_target_pct: Option<f64>,
 }
 
 #[derive(Debug, Default, Deserialize)]

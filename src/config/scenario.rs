@@ -13,6 +13,9 @@ use crate::model::antenna::Sector;
 use crate::model::fading::FadingSpec;
 use crate::model::pathloss::{LawParams, PathLoss};
 use crate::model::scenario::{InstallSettings, LinkSettings, Radio, Receiver, ReceiverAntenna, Scenario, Thresholds};
+use crate::model::weather::gas::Atmosphere;
+use crate::model::weather::rain::{Rain, Scaling};
+use crate::model::weather::{DEFAULT_TARGET_PCT, GasSource, InterfererFade, Weather};
 use std::path::Path;
 
 /// Most nodes a `[draw]` table may draw on average (each costs about 200 bytes, and a map costs
@@ -100,6 +103,90 @@ pub fn parse_date(s: &str) -> Option<(i32, u16)> {
     }
     let ordinal = days[..(m - 1) as usize].iter().sum::<u32>() + d;
     Some((y, ordinal as u16))
+}
+
+/// Frequencies the weather models cover as lobemap implements them, GHz: ITU-R P.676-12
+/// Annex 1 and P.838-3 hold from 1 GHz (to 1000 GHz; lobemap's carriers stop at 300).
+const WEATHER_MIN_GHZ: f64 = 1.0;
+
+/// `[atmosphere]`, `[rain]` and the availability target, every problem recorded.
+fn weather(raw: &RawScenario, file: &str, probs: &mut Problems) -> Weather {
+    let mut w = Weather::default();
+    let f = raw.radio.frequency_ghz;
+    let low_f = |table: &str, probs: &mut Problems| {
+        if f.is_finite() && f < WEATHER_MIN_GHZ {
+            probs.push(Problem::new(
+                file,
+                Some("[radio]".into()),
+                "frequency_ghz",
+                format!(
+                    "value {f} is below {WEATHER_MIN_GHZ} GHz, where the [{table}] model (ITU-R P.676-12 / P.838-3) does not hold; remove [{table}] or raise the carrier"
+                ),
+            ));
+        }
+    };
+    let user_gas = raw.propagation.absorption_db_per_km.is_some();
+    if let Some(a) = &raw.atmosphere {
+        low_f("atmosphere", probs);
+        let d = Atmosphere::default();
+        match Atmosphere::new(
+            a.pressure_hpa.unwrap_or(d.pressure_hpa),
+            a.temperature_c.unwrap_or(d.temperature_c),
+            a.water_vapour_g_m3.unwrap_or(d.water_vapour_g_m3),
+        ) {
+            Ok(a) => w.gas = if user_gas { GasSource::User } else { GasSource::P676(a) },
+            Err(errs) => {
+                for e in errs {
+                    probs.push(Problem::new(file, Some("[atmosphere]".into()), e.key, e.message));
+                }
+            }
+        }
+    } else if user_gas {
+        w.gas = GasSource::User;
+    }
+    if let Some(r) = &raw.rain {
+        low_f("rain", probs);
+        let scaling = match r.scaling.as_deref().unwrap_or("frequency") {
+            "frequency" => Some(Scaling::Frequency),
+            "latitude" => Some(Scaling::Latitude),
+            other => {
+                probs.push(Problem::new(
+                    file,
+                    Some("[rain]".into()),
+                    "scaling",
+                    format!(
+                        "value `{other}` is not `frequency` (ITU-R P.530-17, the default) or `latitude` (the rule of editions up to P.530-16)"
+                    ),
+                ));
+                None
+            }
+        };
+        match Rain::new(r.rate_mm_h, scaling.unwrap_or(Scaling::Frequency)) {
+            Ok(rain) if scaling.is_some() => w.rain = Some(rain),
+            Ok(_) => {}
+            Err(e) => probs.push(Problem::new(file, Some("[rain]".into()), e.key, e.message)),
+        }
+        if r.interferers_fade == Some(true) {
+            w.interferers = InterfererFade::Together;
+        }
+    }
+    let target = raw.links.availability_target_pct.unwrap_or(DEFAULT_TARGET_PCT);
+    let range = Range::closed(
+        100.0 - crate::model::weather::rain::P_MAX,
+        100.0 - crate::model::weather::rain::P_MIN,
+        "% (the range ITU-R P.530 covers: 0.001 % to 1 % of the time)",
+    );
+    if !range.contains(target) {
+        probs.push(Problem::new(
+            file,
+            Some("[links]".into()),
+            "availability_target_pct",
+            format!("value {target} is outside the allowed range {range}"),
+        ));
+    } else {
+        w.target_pct = target;
+    }
+    w
 }
 
 impl Scenario {
@@ -234,22 +321,34 @@ impl Scenario {
                 }
             },
         };
+        if let Some(pol) = raw.antenna.polarisation.as_deref()
+            && crate::model::node::Polarisation::parse(pol).is_none()
+        {
+            probs.push(Problem::new(
+                &file,
+                Some("[antenna]".into()),
+                "polarisation",
+                format!("value `{pol}` is not {}", crate::model::node::Polarisation::NAMES),
+            ));
+        }
+        let weather = weather(&raw, &file, &mut probs);
         let p = &raw.propagation;
         let params = LawParams { exponent: p.exponent, loss_at_1m_db: p.loss_at_1m_db };
-        let pathloss = PathLoss::from_name(
-            &p.model,
-            &params,
-            r.frequency_ghz,
-            p.absorption_db_per_km.unwrap_or(0.0),
-            p.min_distance_m.unwrap_or(1.0),
-        )
-        .map_err(|e| {
-            for q in e {
-                let table = if q.key == "frequency_ghz" { "[radio]" } else { "[propagation]" };
-                probs.push(Problem::new(&file, Some(table.into()), q.key, q.message));
-            }
-        })
-        .ok();
+        // The gaseous loss: the user's dB/km overrides P.676 at the carrier.
+        let absorption = match (p.absorption_db_per_km, weather.gas) {
+            (Some(v), _) => v,
+            (None, GasSource::P676(a)) if r.frequency_ghz >= 1.0 => a.gamma_db_per_km(r.frequency_ghz),
+            _ => 0.0,
+        };
+        let pathloss =
+            PathLoss::from_name(&p.model, &params, r.frequency_ghz, absorption, p.min_distance_m.unwrap_or(1.0))
+                .map_err(|e| {
+                    for q in e {
+                        let table = if q.key == "frequency_ghz" { "[radio]" } else { "[propagation]" };
+                        probs.push(Problem::new(&file, Some(table.into()), q.key, q.message));
+                    }
+                })
+                .ok();
 
         let dir = path.parent().unwrap_or(Path::new("."));
         let nodes_path = dir.join(&raw.nodes);
@@ -390,6 +489,7 @@ impl Scenario {
                 shadowing_db,
             },
             links: LinkSettings { capacity_gap_db, max_spectral_efficiency: max_se },
+            weather,
             install: InstallSettings { declination_date: declination_date.unwrap_or((2026, 1)) },
             surface,
         })

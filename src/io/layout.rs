@@ -26,6 +26,7 @@ pub fn layout_geojson(nodes: &[Node]) -> geojson::FeatureCollection {
             p.insert("eirp_dbm".into(), n.eirp_dbm().into());
             p.insert("height_m".into(), n.height_m.into());
             p.insert("activity".into(), n.activity.into());
+            p.insert("polarisation".into(), n.polarisation.name().into());
             if let Some(peer) = &n.peer {
                 p.insert("peer".into(), peer.clone().into());
             }

@@ -61,6 +61,77 @@ pub fn cautions(sheet: &InstallSheet) -> Vec<String> {
     ]
 }
 
+/// The gaseous loss and, with `[rain]`, each link's fade margin, rain fade at the target,
+/// availability and outage.
+fn weather_section(sc: &Scenario, links: &[LinkRow]) -> String {
+    use crate::model::weather::GasSource;
+    let w = sc.weather();
+    let gas = match w.gas {
+        GasSource::None => "no gaseous loss (neither [atmosphere] nor an absorption value is given)".to_string(),
+        GasSource::User => {
+            format!("gaseous loss {} dB/km as given in [propagation]", sc.pathloss.absorption_db_per_km())
+        }
+        GasSource::P676(a) => format!(
+            "gaseous loss {:.3} dB/km after ITU-R P.676-12 Annex 1 at {} hPa, {} °C, {} g/m³",
+            sc.pathloss.absorption_db_per_km(),
+            a.pressure_hpa,
+            a.temperature_c,
+            a.water_vapour_g_m3
+        ),
+    };
+    let Some(rain) = w.rain else {
+        return format!(
+            "<section><h2>Weather</h2><p class=\"small\">{}; no [rain] given, so no availability figures.</p></section>",
+            esc(&gas)
+        );
+    };
+    let mut h = format!(
+        "<section><h2>Rain and availability</h2><p class=\"small\">Rain rate exceeded for 0.01 % of an average year: {} mm/h. Specific attenuation after ITU-R P.838-3 for each transmitter's polarisation and path elevation; attenuation exceeded on the path after ITU-R P.530 ({}). Fade margin: {}. Target {} % of the year. The method covers 0.001 % to 1 % of the time; figures outside it are shown as bounds. Multipath fading and other hydrometeors are not included. {}.</p><div class=\"scroll\"><table><thead><tr>",
+        rain.rate_mm_h,
+        rain.scaling_words(),
+        match w.interferers {
+            crate::model::weather::InterfererFade::None =>
+                "the wanted path fades, interferers keep their clear-air levels (conservative)",
+            crate::model::weather::InterfererFade::Together =>
+                "every path fades by its own rain attenuation at the same percentage of time (fully correlated rain)",
+        },
+        w.target_pct,
+        esc(&gas)
+    );
+    for c in [
+        "from",
+        "to",
+        "length m",
+        "gas dB",
+        "fade margin dB",
+        "rain fade at target dB",
+        "availability",
+        "outage min/year",
+        "target",
+    ] {
+        h += &format!("<th class=\"{}\">{}</th>", if c == "from" || c == "to" { "l" } else { "" }, esc(c));
+    }
+    h += "</tr></thead><tbody>";
+    for r in links {
+        let below = r.meets_target == Some(false);
+        h += &format!(
+            "<tr class=\"{}\"><td class=\"l\">{}</td><td class=\"l\">{}</td><td>{:.1}</td><td>{:.2}</td><td>{}</td><td>{}</td><td>{}</td><td>{}</td><td>{}</td></tr>",
+            if below { "fail" } else { "" },
+            esc(&r.from),
+            esc(&r.to),
+            r.length_m,
+            r.gas_db,
+            r.fade_margin_db.map(|v| format!("{v:.2}")).unwrap_or("–".into()),
+            r.rain_fade_db.map(|v| format!("{v:.2}")).unwrap_or("–".into()),
+            esc(&r.availability_words().unwrap_or("–".into())),
+            r.outage_words().unwrap_or("–".into()),
+            if below { "BELOW" } else { "ok" }
+        );
+    }
+    h += "</tbody></table></div></section>";
+    h
+}
+
 /// The report page.
 pub fn html(
     sc: &Scenario,
@@ -162,6 +233,7 @@ pub fn html(
         "</tbody></table></div><p class=\"small\">Capacity: B·log2(1 + SINR/Γ) with Γ = {} dB, at most {} bit/s/Hz. Misalignment beyond half the beamwidth is marked with the azimuth to set.</p></section>",
         sc.links.capacity_gap_db, sc.links.max_spectral_efficiency
     );
+    h += &weather_section(sc, links);
     h += &format!(
         "<section><h2>Installer sheet</h2><p class=\"small\">Azimuth to set: toward the peer along the geodesic, from true north at the node; where it differs from the planned azimuth the cell is marked and the planned value follows in brackets. Magnetic azimuth = azimuth to set − declination (World Magnetic Model, {}). Keep-out: far-field distance on boresight where EIRP/(4πd²) falls to {} W/m² ({}).</p><div class=\"scroll\"><table><thead><tr>",
         esc(&sheet.declination_date),

@@ -17,6 +17,8 @@ use crate::model::node::Node;
 use crate::model::obstruction::Edges;
 use crate::model::scenario::Scenario;
 use crate::model::units::{db_to_lin, dbm_to_mw, mw_to_dbm, round_dp};
+use crate::model::weather::rain::{Bound, Rain, RainPath};
+use crate::model::weather::{InterfererFade, outage_together, rain_path};
 use rayon::prelude::*;
 use serde::Serialize;
 
@@ -89,6 +91,25 @@ pub struct LinkRow {
     pub obstruction_db: f64,
     /// What limits the clearance: a building's label or "ground at N m" (from the `from` end).
     pub limited_by: Option<String>,
+    /// Gaseous loss on the path (included in `path_loss_db`), dB.
+    pub gas_db: f64,
+    /// Fade margin: how far the wanted path can fade before the SINR reaches the threshold,
+    /// dB (with interferers that do not fade, `sinr_db` − threshold; none without a clear-air
+    /// margin when interferers fade too).
+    pub fade_margin_db: Option<f64>,
+    /// Rain attenuation exceeded for 100 − target % of the time (ITU-R P.530), dB; none
+    /// without `[rain]`.
+    pub rain_fade_db: Option<f64>,
+    /// Percentage of an average year the link is up in rain (clamped to 99 to 99.999; see
+    /// `availability_bound`).
+    pub availability_pct: Option<f64>,
+    /// Minutes per average year the rain fade exceeds the fade margin.
+    pub outage_min_per_year: Option<f64>,
+    /// Whether `availability_pct` is a bound: `within`, `at_least` (99.999), `at_most` (99),
+    /// `no_margin` (the link is below its threshold without rain).
+    pub availability_bound: Option<crate::model::weather::rain::Bound>,
+    /// Availability at or above the scenario's target.
+    pub meets_target: Option<bool>,
     /// Monte Carlo check of `coverage`.
     #[serde(skip_serializing_if = "Option::is_none")]
     pub monte_carlo: Option<McCheck>,
@@ -154,6 +175,9 @@ fn one(
     let signal_dbm = link.received_dbm(rx_gain);
     // Interference at b from every other node, b's antenna as installed.
     let mut contrib: Vec<(usize, f64, f64)> = Vec::new(); // (node, activity, mean power mW)
+    let weather = sc.weather();
+    let together = weather.rain.filter(|_| weather.interferers == InterfererFade::Together);
+    let mut rain_paths = Vec::new();
     for (i, n) in sc.nodes.iter().enumerate() {
         if i == f || i == t {
             continue;
@@ -162,6 +186,9 @@ fn one(
             .obstructed(sc.node_to_node(n, b, Edges::Three).loss_db);
         let g_rx = gain_toward(b, path.geometry.bearing_from_rx_deg);
         contrib.push((i, n.activity, dbm_to_mw(path.received_dbm(g_rx))));
+        if let Some(rain) = &together {
+            rain_paths.push(path_rain(sc, rain, n, b, &path.geometry));
+        }
     }
     let i_mw: f64 = contrib.iter().map(|c| c.1 * c.2).sum();
     let s_mw = dbm_to_mw(signal_dbm);
@@ -188,6 +215,17 @@ fn one(
     let bw_hz = sc.radio.bandwidth_mhz * 1e6;
     let se = (1.0 + sinr / db_to_lin(sc.links.capacity_gap_db)).log2().min(sc.links.max_spectral_efficiency);
     let margin_db = sinr_db - sc.thresholds.sinr_db;
+    let gas_db = sc.pathloss.absorption_db_per_km() * length_m / 1000.0;
+    let wanted_rain = weather.rain.map(|rain| path_rain(sc, &rain, a, b, &link.geometry));
+    let (fade_margin_db, availability) = match (&wanted_rain, weather.interferers) {
+        (Some(w), InterfererFade::Together) => {
+            let intf: Vec<(f64, RainPath)> =
+                contrib.iter().zip(rain_paths).map(|(c, p)| (c.1 * c.2 * shadow, p)).collect();
+            let (m, av) = outage_together(w, s_mw * shadow, &intf, n_mw, sc.thresholds.sinr_db);
+            (m, Some(av))
+        }
+        (w, _) => (Some(margin_db), w.map(|w| w.availability(margin_db))),
+    };
     let monte_carlo = mc.map(|(trials, seed)| {
         let (estimate, low, high) = cov.monte_carlo(s_mw, &interferers, trials, seed);
         McCheck { trials, seed, estimate, low, high }
@@ -220,8 +258,23 @@ fn one(
         clearance_ok: obs.clearance_f1 >= CLEARANCE_RULE,
         obstruction_db: round_dp(obs.loss_db, 2),
         limited_by: obs.limit.and_then(|l| sc.surface().map(|s| s.describe(&l))),
+        gas_db: round_dp(gas_db, 2),
+        fade_margin_db: fade_margin_db.map(|m| round_dp(m, 2)),
+        rain_fade_db: wanted_rain.map(|w| round_dp(w.fade_at_target_db(weather.target_pct), 2)),
+        availability_pct: availability.map(|a| round_dp(a.pct, 4)),
+        outage_min_per_year: availability.map(|a| round_dp(a.outage_min_per_year, 1)),
+        availability_bound: availability.map(|a| a.bound),
+        meets_target: availability.map(|a| a.pct >= weather.target_pct),
         monte_carlo,
     }
+}
+
+/// The rain figures of the path from `tx` to `rx`: P.838 coefficients for `tx`'s
+/// polarisation and the path's elevation, latitude at the path's middle.
+fn path_rain(sc: &Scenario, rain: &Rain, tx: &Node, rx: &Node, g: &Geometry) -> RainPath {
+    let h = g.east_m.hypot(g.north_m);
+    let lat = 0.5 * (tx.lat + rx.lat);
+    rain_path(rain, sc.pathloss.frequency_ghz(), g.distance_m, h, tx.polarisation.cos_2tau(), lat)
 }
 
 impl LinkRow {
@@ -244,10 +297,39 @@ fn tops(r: &LinkRow) -> String {
     r.top_interferers.iter().map(|s| format!("{} {:.0}%", s.id, s.share * 100.0)).collect::<Vec<_>>().join("; ")
 }
 
+fn opt(v: Option<f64>) -> String {
+    v.map(|v| v.to_string()).unwrap_or_default()
+}
+
+impl LinkRow {
+    /// The outage as a reader says it: "22.2", "≤ 5.3" (availability at least 99.999 %),
+    /// "≥ 5259.6"; none without `[rain]`.
+    pub fn outage_words(&self) -> Option<String> {
+        let (m, bound) = (self.outage_min_per_year?, self.availability_bound?);
+        Some(match bound {
+            Bound::AtLeast => format!("≤ {m:.1}"),
+            Bound::AtMost => format!("≥ {m:.1}"),
+            _ => format!("{m:.1}"),
+        })
+    }
+
+    /// The availability as a reader says it: "99.9934 %", "≥ 99.999 %", "≤ 99 %", "0 % (no
+    /// margin)"; none without `[rain]`.
+    pub fn availability_words(&self) -> Option<String> {
+        let (pct, bound) = (self.availability_pct?, self.availability_bound?);
+        Some(match bound {
+            Bound::Within => format!("{pct:.4} %"),
+            Bound::AtLeast => format!("≥ {pct} %"),
+            Bound::AtMost => format!("≤ {pct} %"),
+            Bound::NoMargin => "0 % (no margin)".into(),
+        })
+    }
+}
+
 /// CSV with one row per link.
 pub fn csv(rows: &[LinkRow]) -> String {
     let mut s = String::from(
-        "from,to,length_m,bearing_deg,misalign_from_deg,misalign_to_deg,misaligned_from,misaligned_to,azimuth_from_should_deg,azimuth_to_should_deg,tx_gain_dbi,rx_gain_dbi,path_loss_db,signal_dbm,interference_dbm,noise_dbm,sinr_db,coverage,margin_db,capacity_mbps,passes,line_of_sight,clearance_f1,clearance_ok,obstruction_db,limited_by,top_interferers,mc_estimate,mc_low,mc_high\n",
+        "from,to,length_m,bearing_deg,misalign_from_deg,misalign_to_deg,misaligned_from,misaligned_to,azimuth_from_should_deg,azimuth_to_should_deg,tx_gain_dbi,rx_gain_dbi,path_loss_db,signal_dbm,interference_dbm,noise_dbm,sinr_db,coverage,margin_db,capacity_mbps,passes,line_of_sight,clearance_f1,clearance_ok,obstruction_db,limited_by,top_interferers,gas_db,fade_margin_db,rain_fade_db,availability_pct,outage_min_per_year,availability_bound,meets_target,mc_estimate,mc_low,mc_high\n",
     );
     for r in rows {
         let mc = r
@@ -256,7 +338,7 @@ pub fn csv(rows: &[LinkRow]) -> String {
             .map(|m| format!("{:.4},{:.4},{:.4}", m.estimate, m.low, m.high))
             .unwrap_or(",,".into());
         s += &format!(
-            "{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},\"{}\",\"{}\",{}\n",
+            "{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},\"{}\",\"{}\",{},{},{},{},{},{},{},{}\n",
             r.from,
             r.to,
             r.length_m,
@@ -284,6 +366,13 @@ pub fn csv(rows: &[LinkRow]) -> String {
             r.obstruction_db,
             r.limited_by.as_deref().unwrap_or(""),
             tops(r),
+            r.gas_db,
+            opt(r.fade_margin_db),
+            opt(r.rain_fade_db),
+            opt(r.availability_pct),
+            opt(r.outage_min_per_year),
+            r.availability_bound.map(Bound::name).unwrap_or(""),
+            r.meets_target.map(|b| b.to_string()).unwrap_or_default(),
             mc
         );
     }
@@ -316,8 +405,9 @@ pub fn geojson(sc: &Scenario, rows: &[LinkRow]) -> geojson::FeatureCollection {
     geojson::FeatureCollection { bbox: None, features, foreign_members: None }
 }
 
-/// An aligned text table.
-pub fn table(rows: &[LinkRow], sinr_db: f64, target: f64) -> String {
+/// An aligned text table, with the rain section when the scenario has `[rain]`.
+pub fn table(rows: &[LinkRow], sc: &Scenario) -> String {
+    let (sinr_db, target) = (sc.thresholds.sinr_db, sc.thresholds.coverage_target);
     let mut s = format!(
         "{:<8} {:<8} {:>8} {:>7} {:>7} {:>7} {:>8} {:>8} {:>7} {:>7} {:>7} {:>8}  {}\n",
         "from",
@@ -369,5 +459,42 @@ pub fn table(rows: &[LinkRow], sinr_db: f64, target: f64) -> String {
     for r in rows.iter().filter(|r| !r.clearance_ok) {
         s += &format!("{}-{}: {}\n", r.from, r.to, r.path_verdict());
     }
+    if let Some(rain) = sc.weather().rain {
+        s += &weather_table(rows, &rain, sc.weather().target_pct);
+    }
+    s
+}
+
+/// The rain section: fade margin, the rain fade at the target, availability, outage and the
+/// gaseous loss per link.
+fn weather_table(rows: &[LinkRow], rain: &Rain, target_pct: f64) -> String {
+    let mut s = format!(
+        "\nrain: {} mm/h exceeded 0.01 % of the year; ITU-R P.838-3 and P.530 ({}); target {target_pct} %\n",
+        rain.rate_mm_h,
+        rain.scaling_words()
+    );
+    s += &format!(
+        "{:<8} {:<8} {:>8} {:>9} {:>17} {:>12} {:>7} {:>7}\n",
+        "from", "to", "fade_dB", "rain_dB", "availability", "out_min/yr", "gas_dB", "target"
+    );
+    for r in rows {
+        s += &format!(
+            "{:<8} {:<8} {:>8} {:>9} {:>17} {:>12} {:>7.2} {:>7}\n",
+            r.from,
+            r.to,
+            r.fade_margin_db.map(|v| format!("{v:.2}")).unwrap_or("-".into()),
+            r.rain_fade_db.map(|v| format!("{v:.2}")).unwrap_or("-".into()),
+            r.availability_words().unwrap_or("-".into()),
+            r.outage_words().unwrap_or("-".into()),
+            r.gas_db,
+            match r.meets_target {
+                Some(true) => "ok",
+                Some(false) => "BELOW",
+                None => "-",
+            }
+        );
+    }
+    let below = rows.iter().filter(|r| r.meets_target == Some(false)).count();
+    s += &format!("{below} link(s) below the availability target of {target_pct} %\n");
     s
 }

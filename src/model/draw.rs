@@ -46,4 +46,6 @@ pub struct DrawSpec {
     pub exclude: Vec<Polygon<f64>>,
     /// Antenna of drawn nodes (the `[antenna]` defaults): pattern, power, height, activity.
     pub antenna: (Pattern, f64, f64, f64),
+    /// Polarisation of drawn nodes (the `[antenna]` default).
+    pub polarisation: crate::model::node::Polarisation,
 }

@@ -25,6 +25,49 @@ pub struct Node {
     pub peer: Option<String>,
     /// Optional human-readable name carried from the input.
     pub name: Option<String>,
+    /// Polarisation of the antenna.
+    pub polarisation: Polarisation,
+}
+
+/// Linear polarisation of an antenna.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Default)]
+pub enum Polarisation {
+    /// Vertical (tilt τ = 90° from the horizontal).
+    #[default]
+    V,
+    /// Horizontal (τ = 0).
+    H,
+}
+
+impl Polarisation {
+    /// The names node files and `[antenna]` use.
+    pub const NAMES: &'static str = "`V` (vertical) or `H` (horizontal)";
+
+    /// From `V` or `H`.
+    pub fn parse(s: &str) -> Option<Polarisation> {
+        match s {
+            "V" => Some(Polarisation::V),
+            "H" => Some(Polarisation::H),
+            _ => None,
+        }
+    }
+
+    /// `V` or `H`.
+    pub fn name(self) -> &'static str {
+        match self {
+            Polarisation::V => "V",
+            Polarisation::H => "H",
+        }
+    }
+
+    /// cos 2τ of the tilt τ from the horizontal (ITU-R P.838-3 eqs. 4, 5): −1 vertical, 1
+    /// horizontal.
+    pub fn cos_2tau(self) -> f64 {
+        match self {
+            Polarisation::V => -1.0,
+            Polarisation::H => 1.0,
+        }
+    }
 }
 
 impl Node {

@@ -137,6 +137,8 @@ pub struct Scenario {
     pub(crate) links: LinkSettings,
     /// Installer-sheet settings.
     pub(crate) install: InstallSettings,
+    /// Gaseous loss source, rain climate and availability target.
+    pub(crate) weather: crate::model::weather::Weather,
     /// Ground and buildings (`[surface]`), if given: every path is checked against it.
     pub(crate) surface: Option<std::sync::Arc<Surface>>,
 }
@@ -258,6 +260,14 @@ impl Scenario {
     pub fn node_to_node(&self, a: &Node, b: &Node, edges: Edges) -> Obstruction {
         self.obstruction((a.lon, a.lat, self.node_alt_m(a)), (b.lon, b.lat, self.node_alt_m(b)), edges)
     }
+    /// The same scenario with other weather settings (the path loss keeps its absorption).
+    pub fn with_weather(self, weather: crate::model::weather::Weather) -> Scenario {
+        Scenario { weather, ..self }
+    }
+    /// Gaseous loss source, rain climate and availability target.
+    pub fn weather(&self) -> &crate::model::weather::Weather {
+        &self.weather
+    }
     /// The same scenario with other fading and shadowing.
     pub fn with_fading(self, fading: FadingSpec) -> Scenario {
         Scenario { fading, ..self }
@@ -293,6 +303,7 @@ impl Scenario {
             fading: FadingSpec::default(),
             links: LinkSettings { capacity_gap_db: 3.0, max_spectral_efficiency: 8.0 },
             install: InstallSettings { declination_date: (2026, 1) },
+            weather: crate::model::weather::Weather::default(),
             surface: None,
         }
     }

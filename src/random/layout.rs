@@ -84,6 +84,7 @@ pub fn layout(sc: &Scenario, spec: &DrawSpec, seed: u64) -> Vec<Node> {
             activity,
             peer: None,
             name: None,
+            polarisation: spec.polarisation,
         }
     });
     match spec.mode {

@@ -8,7 +8,19 @@ use rand::{RngExt, SeedableRng};
 
 /// One node with activity 1 and no peer.
 pub fn node(id: &str, lon: f64, lat: f64, azimuth_deg: f64, pattern: Pattern, power_dbm: f64, height_m: f64) -> Node {
-    Node { id: id.into(), lon, lat, azimuth_deg, pattern, power_dbm, height_m, activity: 1.0, peer: None, name: None }
+    Node {
+        id: id.into(),
+        lon,
+        lat,
+        azimuth_deg,
+        pattern,
+        power_dbm,
+        height_m,
+        activity: 1.0,
+        peer: None,
+        name: None,
+        polarisation: Default::default(),
+    }
 }
 
 /// `count` nodes of `pattern` uniform over the square ±`half_m` around the frame's origin, with

@@ -58,3 +58,52 @@ pub fn rain_path(rain: &Rain, f_ghz: f64, d_m: f64, h_m: f64, cos_2tau: f64, lat
     let (k, alpha) = RainCoefficients::at(f_ghz).combined(cos2, cos_2tau);
     rain.path(d_m / 1000.0, f_ghz, k, alpha, lat_deg)
 }
+
+/// Outage under fully correlated rain: every path's attenuation at the same percentage of
+/// time p (all scale as A₀.₀₁ times one function of p at one frequency). Returns the fade
+/// margin (the wanted path's attenuation at the largest p in [0.001, 1] % where the SINR
+/// falls below `threshold_db`) and the availability, or `None` for the fade margin when the
+/// link has no clear-air margin. `s_mw` is the wanted power, `interferers` the mean
+/// (activity-weighted) powers with their rain paths, `n_mw` the noise.
+pub fn outage_together(
+    wanted: &RainPath,
+    s_mw: f64,
+    interferers: &[(f64, RainPath)],
+    n_mw: f64,
+    threshold_db: f64,
+) -> (Option<f64>, rain::Availability) {
+    use rain::{Availability, Bound, MINUTES_PER_YEAR, P_MAX, P_MIN};
+    let thr = crate::model::units::db_to_lin(threshold_db);
+    // SINR minus the threshold (linear ratio) at log10 p = x; x = None is clear air.
+    let ok = |x: Option<f64>| {
+        let fade = |p: &RainPath| x.map_or(1.0, |x| crate::model::units::db_to_lin(-p.exceeded_db(10f64.powf(x))));
+        let i: f64 = interferers.iter().map(|(m, p)| m * fade(p)).sum();
+        s_mw * fade(wanted) / (i + n_mw) >= thr
+    };
+    let avail =
+        |p: f64, bound| Availability { pct: 100.0 - p, outage_min_per_year: p / 100.0 * MINUTES_PER_YEAR, bound };
+    let (x_min, x_max) = (P_MIN.log10(), P_MAX.log10());
+    if !ok(None) {
+        return (None, avail(100.0, Bound::NoMargin));
+    }
+    if !ok(Some(x_max)) {
+        return (Some(wanted.exceeded_db(P_MAX)), avail(P_MAX, Bound::AtMost));
+    }
+    // Scan from light rain to heavy for the first x where the link fails, then bisect.
+    const STEPS: usize = 300;
+    let mut hi = x_max;
+    for k in 1..=STEPS {
+        let x = x_max + (x_min - x_max) * k as f64 / STEPS as f64;
+        if !ok(Some(x)) {
+            let mut lo = x;
+            for _ in 0..60 {
+                let mid = 0.5 * (lo + hi);
+                if ok(Some(mid)) { hi = mid } else { lo = mid }
+            }
+            let p = 10f64.powf(0.5 * (lo + hi));
+            return (Some(wanted.exceeded_db(p)), avail(p, Bound::Within));
+        }
+        hi = x;
+    }
+    (Some(wanted.exceeded_db(P_MIN)), avail(P_MIN, Bound::AtLeast))
+}

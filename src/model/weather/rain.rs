@@ -180,13 +180,13 @@ pub struct Availability {
 }
 
 impl Bound {
-    /// Words for tables: "" within the range, else "at least" / "at most" / "no margin".
-    pub fn words(self) -> &'static str {
+    /// The name in link tables and GeoJSON (as serde writes it).
+    pub fn name(self) -> &'static str {
         match self {
-            Bound::Within => "",
-            Bound::AtLeast => "at least",
-            Bound::AtMost => "at most",
-            Bound::NoMargin => "no margin",
+            Bound::Within => "within",
+            Bound::AtLeast => "at_least",
+            Bound::AtMost => "at_most",
+            Bound::NoMargin => "no_margin",
         }
     }
 }
@@ -198,6 +198,14 @@ impl Rain {
             return Err(ModelError::out_of_range("rate_mm_h", rate_mm_h, "(0, 250] mm/h"));
         }
         Ok(Rain { rate_mm_h, scaling })
+    }
+
+    /// The scaling and its source, for reports.
+    pub fn scaling_words(&self) -> &'static str {
+        match self.scaling {
+            Scaling::Frequency => "P.530-17 frequency scaling",
+            Scaling::Latitude => "latitude scaling of editions up to P.530-16",
+        }
     }
 
     /// Scaling coefficients (C₁, C₂, C₃) at `f_ghz` and |latitude| `lat_deg`.
@@ -244,7 +252,7 @@ impl RainPath {
 
     /// Availability for a fade margin, clamped to the method's range [`P_MIN`, `P_MAX`].
     pub fn availability(&self, margin_db: f64) -> Availability {
-        let (p, bound) = if !(margin_db > 0.0) {
+        let (p, bound) = if margin_db.is_nan() || margin_db <= 0.0 {
             (100.0, Bound::NoMargin)
         } else if self.a001_db <= 0.0 {
             (P_MIN, Bound::AtLeast)
