@@ -125,7 +125,9 @@ fn report_renders_in_headless_chromium() {
             && html.contains("Work at height")
             && html.contains("licensing")
     );
-    assert!(html.matches("data:image/png;base64,").count() == 3);
+    // Coverage, interference, SINR and (the demo has [rain]) availability.
+    assert!(html.matches("data:image/png;base64,").count() == 4);
+    assert!(html.contains("Rain and availability") && html.contains("ITU-R P.530"));
     for bad in ["src=\"http", "href=\"http", "<script", "@import", "url(http"] {
         assert!(!html.contains(bad), "external or scripted content: {bad}");
     }

@@ -235,7 +235,7 @@ struct MapArgs {
     out: Option<PathBuf>,
     /// Layers to compute and write, comma-separated: total, interference, sinr, server,
     /// coverage, visible (nodes in line of sight; needs a [surface], and is added to the
-    /// default there).
+    /// default there), availability (in rain; needs [rain], and is added to the default there).
     #[arg(long, default_value = DEFAULT_LAYERS)]
     layers: String,
     /// Skip nodes farther than this from a grid row (m); the dropped power is bounded and
@@ -349,7 +349,8 @@ pub fn run(cli: Cli) -> anyhow::Result<ExitCode> {
         }
         Cmd::Check { scenario, max_memory_mib } => match Scenario::load(&scenario) {
             Ok(sc) => {
-                let layers = LayerSet::ALL.count() + sc.surface().is_some() as usize;
+                let layers =
+                    LayerSet::ALL.count() + sc.surface().is_some() as usize + sc.weather().rain.is_some() as usize;
                 lobemap::run::map::check_memory(&sc, layers, max_memory_mib)?;
                 for w in lobemap::jobs::spacing::isolated_nodes(&sc) {
                     eprintln!(
@@ -369,6 +370,17 @@ pub fn run(cli: Cli) -> anyhow::Result<ExitCode> {
                     sc.noise_dbm(),
                     lobemap::run::map::estimate_bytes(&sc, layers) as f64 / 1048576.0
                 );
+                let w = sc.weather();
+                println!("  {}", w.gas_words(sc.pathloss().absorption_db_per_km()));
+                if let Some(r) = w.rain_words() {
+                    println!("  {r}");
+                }
+                if w.gas == lobemap::model::weather::GasSource::None && sc.pathloss().frequency_ghz() >= 10.0 {
+                    eprintln!(
+                        "warning: no gaseous loss at {} GHz: add an [atmosphere] table (ITU-R P.676) or [propagation] absorption_db_per_km",
+                        sc.pathloss().frequency_ghz()
+                    );
+                }
                 Ok(ExitCode::SUCCESS)
             }
             Err(e) => Err(e.into()),
@@ -435,9 +447,17 @@ fn map_cmd(sc: &Scenario, a: MapArgs, quiet: bool, default_out: Option<&str>) ->
             "layer `visible` counts nodes in line of sight and needs a [surface] table in the scenario".into(),
         ));
     }
-    // Over a surface the default layers include the line-of-sight count.
-    if a.layers == DEFAULT_LAYERS && sc.surface().is_some() {
-        layers.visible = true;
+    if layers.availability && sc.weather().rain.is_none() {
+        return Err(bad_flag(
+            "--layers",
+            "layer `availability` is the availability in rain and needs a [rain] table in the scenario".into(),
+        ));
+    }
+    // Over a surface the default layers include the line-of-sight count, with [rain] the
+    // availability.
+    if a.layers == DEFAULT_LAYERS {
+        layers.visible = sc.surface().is_some();
+        layers.availability = sc.weather().rain.is_some();
     }
     if let Some(c) = a.cutoff_m
         && !(c.is_finite() && c > 0.0)

@@ -26,6 +26,7 @@ use crate::model::units::lin_to_db;
 use rayon::prelude::*;
 use rstar::{RTree, primitives::GeomWithData};
 
+mod availability;
 pub(crate) mod kernels;
 mod prepare;
 mod row;
@@ -46,20 +47,43 @@ pub struct LayerSet {
     pub coverage: bool,
     /// Number of transmitting nodes in line of sight (needs a surface).
     pub visible: bool,
+    /// Availability in rain of a terminal served by its best server (needs `[rain]`).
+    pub availability: bool,
 }
 
 impl LayerSet {
     /// Every layer but `visible` (which needs a surface).
-    pub const ALL: LayerSet =
-        LayerSet { total: true, interference: true, sinr: true, server: true, coverage: true, visible: false };
+    pub const ALL: LayerSet = LayerSet {
+        total: true,
+        interference: true,
+        sinr: true,
+        server: true,
+        coverage: true,
+        visible: false,
+        availability: false,
+    };
     /// Only `total`.
-    pub const TOTAL: LayerSet =
-        LayerSet { total: true, interference: false, sinr: false, server: false, coverage: false, visible: false };
+    pub const TOTAL: LayerSet = LayerSet {
+        total: true,
+        interference: false,
+        sinr: false,
+        server: false,
+        coverage: false,
+        visible: false,
+        availability: false,
+    };
 
     /// Parses a comma-separated list such as `total,sinr`.
     pub fn parse(s: &str) -> Result<LayerSet, String> {
-        let mut l =
-            LayerSet { total: false, interference: false, sinr: false, server: false, coverage: false, visible: false };
+        let mut l = LayerSet {
+            total: false,
+            interference: false,
+            sinr: false,
+            server: false,
+            coverage: false,
+            visible: false,
+            availability: false,
+        };
         for name in s.split(',').map(str::trim).filter(|x| !x.is_empty()) {
             match name {
                 "total" => l.total = true,
@@ -68,29 +92,31 @@ impl LayerSet {
                 "server" => l.server = true,
                 "coverage" => l.coverage = true,
                 "visible" => l.visible = true,
+                "availability" => l.availability = true,
                 other => {
-                    return Err(format!(
-                        "unknown layer `{other}`; allowed: total, interference, sinr, server, coverage, visible"
-                    ));
+                    return Err(format!("unknown layer `{other}`; allowed: {}", Self::NAMES));
                 }
             }
         }
         if l.count() == 0 {
-            return Err("no layer named; allowed: total, interference, sinr, server, coverage, visible".into());
+            return Err(format!("no layer named; allowed: {}", Self::NAMES));
         }
         Ok(l)
     }
 
+    /// Every layer name `parse` accepts.
+    pub const NAMES: &'static str = "total, interference, sinr, server, coverage, visible, availability";
+
     /// Number of layers selected.
     pub fn count(&self) -> usize {
-        [self.total, self.interference, self.sinr, self.server, self.coverage, self.visible]
+        [self.total, self.interference, self.sinr, self.server, self.coverage, self.visible, self.availability]
             .iter()
             .filter(|b| **b)
             .count()
     }
 
     fn needs_server(&self) -> bool {
-        self.interference || self.sinr || self.server || self.coverage
+        self.interference || self.sinr || self.server || self.coverage || self.availability
     }
 }
 
@@ -122,6 +148,8 @@ pub struct Layers {
     pub coverage: Option<Vec<f32>>,
     /// `visible`, transmitting nodes in line of sight.
     pub visible: Option<Vec<f32>>,
+    /// `availability`, percent of an average year.
+    pub availability: Option<Vec<f32>>,
     /// Node-cell pair evaluations performed.
     pub pair_evaluations: u64,
     /// With a cutoff: the worst cell's upper bound on the dropped power, dB relative to noise.
@@ -148,6 +176,8 @@ pub struct Engine<'s> {
     pub(crate) cov: crate::model::coverage::CoverageModel,
     /// With a surface: what the sweep and the obstructed kernels need.
     pub(crate) obs: Option<ObsPrep>,
+    /// With `[rain]`: what the availability layer needs.
+    pub(crate) rain: Option<crate::engine::availability::RainK>,
 }
 
 /// The surface prepared for the map: each node's lattice position and antenna altitude.
@@ -213,6 +243,7 @@ impl Engine<'_> {
         let mut server = alloc(l.server);
         let mut coverage = alloc(l.coverage);
         let mut visible = alloc(l.visible && self.obs.is_some());
+        let mut availability = alloc(l.availability && self.rain.is_some());
         fn chunks(v: &mut Option<Vec<f32>>, cols: usize, rows: usize) -> Vec<Option<&mut [f32]>> {
             match v {
                 Some(v) => v.chunks_mut(cols).map(Some).collect(),
@@ -225,8 +256,9 @@ impl Engine<'_> {
             .zip(chunks(&mut sinr, cols, rows))
             .zip(chunks(&mut server, cols, rows))
             .zip(chunks(&mut coverage, cols, rows))
+            .zip(chunks(&mut availability, cols, rows))
             .enumerate()
-            .map(|(r, ((((t, i), s), v), cv))| (r, [t, i, s, v, cv]))
+            .map(|(r, (((((t, i), s), v), cv), av))| (r, [t, i, s, v, cv, av]))
             .collect();
         let bar = if opts.progress && rows * cols * self.nodes.len() > 50_000_000 {
             let b = indicatif::ProgressBar::new(rows as u64);
@@ -318,6 +350,7 @@ impl Engine<'_> {
             server,
             coverage,
             visible,
+            availability,
             pair_evaluations: pairs,
             neglected_db: neglected,
         }

@@ -96,6 +96,7 @@ impl<'s> Engine<'s> {
             shadow_mean: sc.fading.shadow_mean() as f32,
             cov: crate::model::coverage::CoverageModel::new(sc.fading, sc.thresholds.sinr_db, sc.noise_dbm()),
             obs,
+            rain: crate::engine::availability::RainK::new(sc),
         }
     }
 }

@@ -14,7 +14,7 @@ pub(crate) struct RowJob<'a> {
     pub(crate) r: usize,
     pub(crate) l: LayerSet,
     pub(crate) cutoff: Option<f64>,
-    pub(crate) out: [Option<&'a mut [f32]>; 5],
+    pub(crate) out: [Option<&'a mut [f32]>; 6],
 }
 
 multiversion!(pub(crate) fn row<D: Decay, A: PairFactor, C: RxCoupling>(e: &Engine<'_>, d: D, a: A, cp: C, job: RowJob<'_>, b: &mut RowBufs) -> (u64, f64) => row_body);
@@ -186,7 +186,7 @@ pub(crate) fn row_body<D: Decay, A: PairFactor, C: RxCoupling>(
     }
     let db = |v: f32| if v > 0.0 { 10.0 * v.log10() } else { NODATA };
     let noise = e.noise_mw as f32;
-    let [mut t, mut i, mut s, mut v, cv] = out;
+    let [mut t, mut i, mut s, mut v, cv, mut av] = out;
     if let Some(cv) = cv {
         let (e1, e2) = (e.cov.e1, e.cov.e2);
         let mut strong: Vec<(f64, f64)> = Vec::with_capacity(STRONG);
@@ -235,6 +235,19 @@ pub(crate) fn row_body<D: Decay, A: PairFactor, C: RxCoupling>(
         }
         if let Some(v) = v.as_deref_mut() {
             v[c] = if b.server[c] == u32::MAX { NODATA } else { b.server[c] as f32 };
+        }
+        if let (Some(av), Some(rk)) = (av.as_deref_mut(), &e.rain) {
+            let srv = b.server[c];
+            av[c] = if srv == u32::MAX || best <= 0.0 {
+                NODATA
+            } else {
+                let nk = &e.nodes[srv as usize];
+                let (dx, dy) = (b.xs[c] - nk.x, b.ys[c] - nk.y);
+                let w2 = dx * dx + dy * dy;
+                let d2 = a.for_node(srv, cols).d2(c, w2, nk.dz2);
+                let sinr_db = 10.0 * (e.g_signal * best * e.shadow_mean / (interf * e.shadow_mean + noise)).log10();
+                rk.availability_pct(srv as usize, d2, w2, sinr_db)
+            };
         }
     }
     (pairs, dropped_mw)

@@ -58,6 +58,15 @@ pub struct MapSpec<'a> {
 /// Unit label of probability layers, always drawn on a fixed 0..1 scale.
 pub const PROBABILITY: &str = "probability";
 
+/// Unit label of availability layers (percent of a year): coloured by the number of nines,
+/// −log₁₀(1 − A/100), on a fixed scale from 99 % to 99.999 %.
+pub const AVAILABILITY: &str = "% of year";
+
+/// The number of nines of an availability in percent (99.99 → 4).
+fn nines(pct: f32) -> f32 {
+    -((100.0 - pct).max(1e-6) / 100.0).log10()
+}
+
 /// A rendered map: PNG bytes and the world-file text that georeferences them.
 pub struct Rendered {
     /// PNG file content.
@@ -112,7 +121,12 @@ pub fn render(spec: &MapSpec) -> Result<Rendered, String> {
     let mh = ((g.rows() as f64 * scale).round() as u32).max(1);
     let (w, h) = (mw + PANEL_W, mh.max(460));
     let cmap = tideline();
-    let (lo, hi) = if spec.unit == PROBABILITY { (0.0, 1.0) } else { colour_range(spec.data) };
+    let avail = spec.unit == AVAILABILITY;
+    let (lo, hi) = match spec.unit {
+        PROBABILITY => (0.0, 1.0),
+        AVAILABILITY => (2.0, 5.0),
+        _ => colour_range(spec.data),
+    };
     let mut buf = vec![255u8; (w * h * 3) as usize];
     for y in 0..mh {
         let r = ((y as f64 + 0.5) / mh as f64 * g.rows() as f64) as usize;
@@ -121,6 +135,8 @@ pub fn render(spec: &MapSpec) -> Result<Rendered, String> {
             let v = spec.data[r.min(g.rows() - 1) * g.cols() + c.min(g.cols() - 1)];
             let rgb = if v == NODATA || !v.is_finite() {
                 [205, 205, 205]
+            } else if avail {
+                cmap[(((nines(v) - lo) / (hi - lo)).clamp(0.0, 1.0) * 255.0).round() as usize]
             } else {
                 cmap[(((v - lo) / (hi - lo)).clamp(0.0, 1.0) * 255.0).round() as usize]
             };
@@ -223,7 +239,9 @@ pub fn render(spec: &MapSpec) -> Result<Rendered, String> {
         }
         root.draw(&Rectangle::new([(px0, top), (px0 + bar_w, bot)], ink.stroke_width(1))).map_err(e)?;
         let span = hi - lo;
-        let step = if span > 60.0 {
+        let step = if avail {
+            1.0
+        } else if span > 60.0 {
             10.0
         } else if span > 2.0 {
             5.0
@@ -235,12 +253,20 @@ pub fn render(spec: &MapSpec) -> Result<Rendered, String> {
             let y = bot - ((v - lo) / span * (bot - top) as f32).round() as i32;
             root.draw(&PathElement::new(vec![(px0 + bar_w, y), (px0 + bar_w + 6, y)], ink.stroke_width(1)))
                 .map_err(e)?;
-            root.draw(&Text::new(
-                if step < 1.0 { format!("{v:.1}") } else { format!("{v:.0}") },
-                (px0 + bar_w + 10, y - 7),
-                (FONT, 13).into_font().color(&ink),
-            ))
-            .map_err(e)?;
+            let label = if avail {
+                // 2 → 99, 3 → 99.9, …: the percentage with v − 2 nines after the point.
+                format!(
+                    "{}{:.*}",
+                    if v <= lo + 1e-3 { "≤" } else { "" },
+                    (v - 2.0).round() as usize,
+                    100.0 - 10f32.powf(2.0 - v)
+                )
+            } else if step < 1.0 {
+                format!("{v:.1}")
+            } else {
+                format!("{v:.0}")
+            };
+            root.draw(&Text::new(label, (px0 + bar_w + 10, y - 7), (FONT, 13).into_font().color(&ink))).map_err(e)?;
             v += step;
         }
         root.draw(&Text::new("grey: no data", (px0, h as i32 - 26), (FONT, 12).into_font().color(&ink))).map_err(e)?;

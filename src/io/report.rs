@@ -64,21 +64,8 @@ pub fn cautions(sheet: &InstallSheet) -> Vec<String> {
 /// The gaseous loss and, with `[rain]`, each link's fade margin, rain fade at the target,
 /// availability and outage.
 fn weather_section(sc: &Scenario, links: &[LinkRow]) -> String {
-    use crate::model::weather::GasSource;
     let w = sc.weather();
-    let gas = match w.gas {
-        GasSource::None => "no gaseous loss (neither [atmosphere] nor an absorption value is given)".to_string(),
-        GasSource::User => {
-            format!("gaseous loss {} dB/km as given in [propagation]", sc.pathloss.absorption_db_per_km())
-        }
-        GasSource::P676(a) => format!(
-            "gaseous loss {:.3} dB/km after ITU-R P.676-12 Annex 1 at {} hPa, {} °C, {} g/m³",
-            sc.pathloss.absorption_db_per_km(),
-            a.pressure_hpa,
-            a.temperature_c,
-            a.water_vapour_g_m3
-        ),
-    };
+    let gas = w.gas_words(sc.pathloss.absorption_db_per_km());
     let Some(rain) = w.rain else {
         return format!(
             "<section><h2>Weather</h2><p class=\"small\">{}; no [rain] given, so no availability figures.</p></section>",

@@ -92,6 +92,16 @@ pub struct Summary {
     pub elapsed_s: f64,
     /// Files written, relative to the output folder.
     pub files: Vec<String>,
+    /// Percentiles of `availability` over served cells, percent of an average year (p10 is
+    /// the availability 90 % of cells reach or exceed).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub availability_pct: Option<Spread>,
+    /// Availability target, percent (with the `availability` layer).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub availability_target_pct: Option<f64>,
+    /// Fraction of served cells at or above the availability target.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub availability_ok_fraction: Option<f64>,
     /// With `[draw]`: layouts averaged (total and interference in mW, SINR in dB).
     #[serde(skip_serializing_if = "Option::is_none")]
     pub realizations: Option<usize>,

@@ -11,14 +11,14 @@
 
 use crate::geometry::frame::geodesic_azimuth_deg;
 use crate::jobs::probe::McCheck;
+use crate::jobs::weather;
 use crate::model::coverage::CoverageModel;
 use crate::model::link::{Budget, Endpoint, Geometry, gain_toward};
 use crate::model::node::Node;
 use crate::model::obstruction::Edges;
 use crate::model::scenario::Scenario;
 use crate::model::units::{db_to_lin, dbm_to_mw, mw_to_dbm, round_dp};
-use crate::model::weather::rain::{Bound, Rain, RainPath};
-use crate::model::weather::{InterfererFade, outage_together, rain_path};
+use crate::model::weather::rain::{Bound, Rain};
 use rayon::prelude::*;
 use serde::Serialize;
 
@@ -175,9 +175,7 @@ fn one(
     let signal_dbm = link.received_dbm(rx_gain);
     // Interference at b from every other node, b's antenna as installed.
     let mut contrib: Vec<(usize, f64, f64)> = Vec::new(); // (node, activity, mean power mW)
-    let weather = sc.weather();
-    let together = weather.rain.filter(|_| weather.interferers == InterfererFade::Together);
-    let mut rain_paths = Vec::new();
+    let mut geoms: Vec<Geometry> = Vec::new();
     for (i, n) in sc.nodes.iter().enumerate() {
         if i == f || i == t {
             continue;
@@ -186,9 +184,7 @@ fn one(
             .obstructed(sc.node_to_node(n, b, Edges::Three).loss_db);
         let g_rx = gain_toward(b, path.geometry.bearing_from_rx_deg);
         contrib.push((i, n.activity, dbm_to_mw(path.received_dbm(g_rx))));
-        if let Some(rain) = &together {
-            rain_paths.push(path_rain(sc, rain, n, b, &path.geometry));
-        }
+        geoms.push(path.geometry);
     }
     let i_mw: f64 = contrib.iter().map(|c| c.1 * c.2).sum();
     let s_mw = dbm_to_mw(signal_dbm);
@@ -215,17 +211,14 @@ fn one(
     let bw_hz = sc.radio.bandwidth_mhz * 1e6;
     let se = (1.0 + sinr / db_to_lin(sc.links.capacity_gap_db)).log2().min(sc.links.max_spectral_efficiency);
     let margin_db = sinr_db - sc.thresholds.sinr_db;
-    let gas_db = sc.pathloss.absorption_db_per_km() * length_m / 1000.0;
-    let wanted_rain = weather.rain.map(|rain| path_rain(sc, &rain, a, b, &link.geometry));
-    let (fade_margin_db, availability) = match (&wanted_rain, weather.interferers) {
-        (Some(w), InterfererFade::Together) => {
-            let intf: Vec<(f64, RainPath)> =
-                contrib.iter().zip(rain_paths).map(|(c, p)| (c.1 * c.2 * shadow, p)).collect();
-            let (m, av) = outage_together(w, s_mw * shadow, &intf, n_mw, sc.thresholds.sinr_db);
-            (m, Some(av))
-        }
-        (w, _) => (Some(margin_db), w.map(|w| w.availability(margin_db))),
-    };
+    let wanted = weather::Path { tx: a, rx_lat: b.lat, geometry: &link.geometry };
+    let intf: Vec<(weather::Path, f64)> = contrib
+        .iter()
+        .zip(&geoms)
+        .map(|(c, g)| (weather::Path { tx: &sc.nodes[c.0], rx_lat: b.lat, geometry: g }, c.1 * c.2 * shadow))
+        .collect();
+    let wx = weather::figures(sc, &wanted, s_mw * shadow, &intf, n_mw, sinr_db);
+    let target_pct = sc.weather().target_pct;
     let monte_carlo = mc.map(|(trials, seed)| {
         let (estimate, low, high) = cov.monte_carlo(s_mw, &interferers, trials, seed);
         McCheck { trials, seed, estimate, low, high }
@@ -258,23 +251,15 @@ fn one(
         clearance_ok: obs.clearance_f1 >= CLEARANCE_RULE,
         obstruction_db: round_dp(obs.loss_db, 2),
         limited_by: obs.limit.and_then(|l| sc.surface().map(|s| s.describe(&l))),
-        gas_db: round_dp(gas_db, 2),
-        fade_margin_db: fade_margin_db.map(|m| round_dp(m, 2)),
-        rain_fade_db: wanted_rain.map(|w| round_dp(w.fade_at_target_db(weather.target_pct), 2)),
-        availability_pct: availability.map(|a| round_dp(a.pct, 4)),
-        outage_min_per_year: availability.map(|a| round_dp(a.outage_min_per_year, 1)),
-        availability_bound: availability.map(|a| a.bound),
-        meets_target: availability.map(|a| a.pct >= weather.target_pct),
+        gas_db: round_dp(wx.gas_db, 2),
+        fade_margin_db: wx.fade_margin_db.map(|m| round_dp(m, 2)),
+        rain_fade_db: wx.rain_fade_db.map(|v| round_dp(v, 2)),
+        availability_pct: wx.availability.map(|a| round_dp(a.pct, 4)),
+        outage_min_per_year: wx.availability.map(|a| round_dp(a.outage_min_per_year, 1)),
+        availability_bound: wx.availability.map(|a| a.bound),
+        meets_target: wx.availability.map(|a| a.pct >= target_pct),
         monte_carlo,
     }
-}
-
-/// The rain figures of the path from `tx` to `rx`: P.838 coefficients for `tx`'s
-/// polarisation and the path's elevation, latitude at the path's middle.
-fn path_rain(sc: &Scenario, rain: &Rain, tx: &Node, rx: &Node, g: &Geometry) -> RainPath {
-    let h = g.east_m.hypot(g.north_m);
-    let lat = 0.5 * (tx.lat + rx.lat);
-    rain_path(rain, sc.pathloss.frequency_ghz(), g.distance_m, h, tx.polarisation.cos_2tau(), lat)
 }
 
 impl LinkRow {

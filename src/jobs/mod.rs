@@ -5,4 +5,5 @@ pub mod links;
 
 pub mod probe;
 pub mod spacing;
+pub mod weather;
 pub(crate) mod zones;

@@ -2,6 +2,7 @@
 //! path loss and received power, then total, best server, interference, noise and SINR.
 //! It follows the engine's definitions (see [`crate::engine`]) and serves as its reference.
 
+use crate::jobs::weather::{Path, figures};
 use crate::model::link::{Budget, Geometry};
 use crate::model::obstruction::{Edges, Obstruction};
 use crate::model::scenario::Scenario;
@@ -67,6 +68,22 @@ pub struct Probe {
     /// Monte Carlo cross-check of `coverage`, when asked for.
     #[serde(skip_serializing_if = "Option::is_none")]
     pub monte_carlo: Option<McCheck>,
+    /// Gaseous loss on the server's path, dB.
+    pub gas_db: f64,
+    /// How far the server's path can fade before the SINR reaches the threshold, dB.
+    pub fade_margin_db: Option<f64>,
+    /// Rain attenuation on the server's path exceeded for 100 − target % of the time, dB
+    /// (with `[rain]`).
+    pub rain_fade_db: Option<f64>,
+    /// Percentage of an average year the point is served above the threshold in rain
+    /// (with `[rain]`; clamped to 99 to 99.999, see `availability_bound`).
+    pub availability_pct: Option<f64>,
+    /// Minutes per average year below the threshold in rain (with `[rain]`).
+    pub outage_min_per_year: Option<f64>,
+    /// Whether `availability_pct` is a bound (`within`, `at_least`, `at_most`, `no_margin`).
+    pub availability_bound: Option<crate::model::weather::rain::Bound>,
+    /// The availability target, percent.
+    pub availability_target_pct: f64,
     /// Per-node contributions, strongest first.
     pub contributions: Vec<Contribution>,
 }
@@ -156,6 +173,16 @@ pub fn probe_with(sc: &Scenario, lat: f64, lon: f64, mc: Option<(usize, u64)>) -
         let (estimate, low, high) = cov.monte_carlo(signal_mw, &interferers, trials, seed);
         McCheck { trials, seed, estimate, low, high }
     });
+    let wanted = Path { tx: &sc.nodes[server], rx_lat: lat, geometry: &budgets[server].geometry };
+    let intf: Vec<(Path, f64)> = contributions
+        .iter()
+        .filter(|c| c.index != server)
+        .map(|c| {
+            let p = Path { tx: &sc.nodes[c.index], rx_lat: lat, geometry: &budgets[c.index].geometry };
+            (p, c.activity * dbm_to_mw(c.power_dbm) * shadow)
+        })
+        .collect();
+    let wx = figures(sc, &wanted, signal_mw * shadow, &intf, dbm_to_mw(noise_dbm), sinr_db);
     let shadow_db = crate::model::units::lin_to_db(shadow);
     contributions.iter_mut().for_each(|c| c.power_dbm += shadow_db);
     contributions.sort_by(|a, b| b.power_dbm.total_cmp(&a.power_dbm).then(a.index.cmp(&b.index)));
@@ -171,6 +198,13 @@ pub fn probe_with(sc: &Scenario, lat: f64, lon: f64, mc: Option<(usize, u64)>) -
         noise_dbm,
         sinr_db,
         server: sc.nodes[server].id.clone(),
+        gas_db: wx.gas_db,
+        fade_margin_db: wx.fade_margin_db,
+        rain_fade_db: wx.rain_fade_db,
+        availability_pct: wx.availability.map(|a| a.pct),
+        outage_min_per_year: wx.availability.map(|a| a.outage_min_per_year),
+        availability_bound: wx.availability.map(|a| a.bound),
+        availability_target_pct: sc.weather().target_pct,
         contributions,
     }
 }
@@ -216,6 +250,22 @@ impl Probe {
                 "Monte Carlo   {:>10.4}   95 % interval [{:.4}, {:.4}], {} trials, seed {}\n",
                 m.estimate, m.low, m.high, m.trials, m.seed
             );
+        }
+        s += &format!("gas on server path {:>6.2} dB\n", self.gas_db);
+        if let (Some(p), Some(b), Some(o), Some(r)) =
+            (self.availability_pct, self.availability_bound, self.outage_min_per_year, self.rain_fade_db)
+        {
+            use crate::model::weather::rain::Bound;
+            let fm = self.fade_margin_db.map(|m| format!("{m:.2} dB")).unwrap_or("none".into());
+            let (pw, ow) = match b {
+                Bound::Within => (format!("{p:.4} %"), format!("{o:.1}")),
+                Bound::AtLeast => (format!(">= {p} %"), format!("<= {o:.1}")),
+                Bound::AtMost => (format!("<= {p} %"), format!(">= {o:.1}")),
+                Bound::NoMargin => ("0 % (no margin)".into(), format!("{o:.1}")),
+            };
+            s += &format!("fade margin   {fm:>10}\n");
+            s += &format!("rain fade at {} %: {r:.2} dB\n", self.availability_target_pct);
+            s += &format!("availability  {pw:>10}   outage {ow} min a year\n");
         }
         s
     }

@@ -47,8 +47,15 @@ pub fn run_links(sc: &Scenario, opts: &LinksOptions) -> Result<LinksResult, Erro
     })?;
     let mut maps = Vec::new();
     if opts.maps {
-        let layers =
-            LayerSet { interference: true, sinr: true, coverage: true, total: false, server: false, visible: false };
+        let layers = LayerSet {
+            interference: true,
+            sinr: true,
+            coverage: true,
+            total: false,
+            server: false,
+            visible: false,
+            availability: sc.weather().rain.is_some(),
+        };
         check_memory(sc, layers.count(), opts.max_memory_mib)?;
         let l = Engine::new(sc).run(&Options { layers, cutoff_m: None, progress: false });
         let (markers, links) = markers_and_links(sc);
@@ -96,6 +103,18 @@ pub fn run_links(sc: &Scenario, opts: &LinksOptions) -> Result<LinksResult, Erro
                 format!(
                     "Aggregate interference at a receiver served by its best node; crimson outlines: hot spots at or above {level:.1} dBm (noise + {} dB).",
                     sc.thresholds.hotspot_i_over_n_db
+                ),
+            )?;
+        }
+        if let Some(a) = &l.availability {
+            let target = sc.weather().target_pct;
+            add(
+                "Availability".into(),
+                crate::io::heatmap::AVAILABILITY,
+                a,
+                outlines(&crate::run::map::short_of_target(grid, a, target)),
+                format!(
+                    "Percentage of an average year a terminal at each spot, served by its best node, keeps its SINR above the threshold in rain (ITU-R P.530 on the server's path); crimson outlines: served in clear air but short of the {target} % target."
                 ),
             )?;
         }

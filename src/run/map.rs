@@ -3,8 +3,8 @@
 
 use crate::engine::{Engine, LayerSet, Layers, Options};
 use crate::error::{Error, Problem};
-use crate::geometry::regions::outlines;
-use crate::io::heatmap::{Marker, PROBABILITY};
+use crate::geometry::regions::{outlines, regions};
+use crate::io::heatmap::{AVAILABILITY, Marker, PROBABILITY};
 use crate::io::hotspots::zones_geojson;
 use crate::io::layout::layout_geojson;
 use crate::io::staging::Staging;
@@ -97,7 +97,7 @@ pub fn markers_and_links(sc: &Scenario) -> (Vec<Marker>, Vec<(usize, usize)>) {
 
 /// Every file name `map` can write: a rerun retires those it does not write again.
 pub fn map_file_names() -> Vec<String> {
-    let stems = ["total", "interference", "sinr", "server", "coverage", "visible"];
+    let stems = ["total", "interference", "sinr", "server", "coverage", "visible", "availability"];
     let mut v: Vec<String> = stems.iter().flat_map(|s| crate::io::writer::layer_file_names(s)).collect();
     v.extend(["hotspots.geojson", "layout.geojson", "summary.json"].map(String::from));
     v
@@ -164,11 +164,21 @@ pub fn run_map(sc: &Scenario, opts: &MapOptions) -> Result<MapResult, Error> {
         let title = "Nodes in line of sight";
         files.extend(write_layer(&mut st, &cx, &layer("visible", title, "nodes", v, Vec::new()))?);
     }
+    let target_pct = sc.weather().target_pct;
+    if let Some(a) = &layers.availability {
+        let below = outlines(&short_of_target(grid, a, target_pct));
+        files.extend(write_layer(&mut st, &cx, &layer("availability", "Availability", AVAILABILITY, a, below))?);
+    }
     st.write("layout.geojson", layout_geojson(&sc.nodes).to_string().as_bytes())?;
     files.push("layout.geojson".into());
     let b = grid.bbox();
     let sinr_hist = layers.sinr.as_deref().map(Histogram::of);
     let cov_hist = layers.coverage.as_deref().map(|c| Histogram::of_scaled(c, 100.0));
+    let avail_hist = layers.availability.as_deref().map(|a| {
+        let u: Vec<f32> =
+            a.iter().map(|&v| if v == crate::NODATA { v } else { -10.0 * (100.0 - v).max(1e-6).log10() }).collect();
+        Histogram::of(&u)
+    });
     // The layers written (the server index is left out of ensembles).
     let server_written = layers.server.is_some() && opts.realizations <= 1;
     let names: Vec<String> = [
@@ -178,6 +188,7 @@ pub fn run_map(sc: &Scenario, opts: &MapOptions) -> Result<MapResult, Error> {
         ("server", server_written),
         ("coverage", layers.coverage.is_some()),
         ("visible", layers.visible.is_some()),
+        ("availability", layers.availability.is_some()),
     ]
     .into_iter()
     .filter(|(_, on)| *on)
@@ -227,6 +238,19 @@ pub fn run_map(sc: &Scenario, opts: &MapOptions) -> Result<MapResult, Error> {
         }),
         outage_zones: outage,
         sub_cell_zones,
+        availability_pct: avail_hist.as_ref().map(|h| {
+            // The histogram holds −10 log10(100 − A): its low quantiles are the low availabilities.
+            // Cells without a margin (0 %) sit in the bin at −20.
+            let back =
+                |v: Option<f64>| v.map(|v| if v < -19.9 { 0.0 } else { round_dp(100.0 - 10f64.powf(-v / 10.0), 4) });
+            Spread { p10: back(h.quantile(0.1)), p50: back(h.quantile(0.5)), p90: back(h.quantile(0.9)), max: None }
+        }),
+        availability_target_pct: layers.availability.as_ref().map(|_| target_pct),
+        availability_ok_fraction: layers.availability.as_deref().and_then(|a| {
+            let served = a.iter().filter(|v| **v != crate::NODATA).count();
+            let ok = a.iter().filter(|v| **v != crate::NODATA && **v as f64 >= target_pct - 1e-9).count();
+            (served > 0).then(|| round_dp(ok as f64 / served as f64, 6))
+        }),
         realizations: sc.draw.as_ref().map(|_| opts.realizations.max(1)),
         drawn_nodes: sc.draw.as_ref().map(|_| sc.nodes.iter().filter(|n| n.id.starts_with("draw-")).count()),
     };
@@ -237,9 +261,20 @@ pub fn run_map(sc: &Scenario, opts: &MapOptions) -> Result<MapResult, Error> {
     Ok(MapResult { summary, layers, files: written })
 }
 
+/// Regions a terminal is served in clear air (availability above 0) but short of the
+/// availability target: what the availability layer outlines.
+pub fn short_of_target(
+    grid: &crate::geometry::grid::Grid,
+    a: &[f32],
+    target_pct: f64,
+) -> Vec<crate::geometry::regions::Region> {
+    let served: Vec<f32> = a.iter().map(|&v| if v > 0.0 { v } else { crate::NODATA }).collect();
+    regions(grid, &served, target_pct as f32, true)
+}
+
 /// Runs the engine over `n` drawn layouts (seeds seed, seed+1, …) and averages: `total` and
 /// `interference` as ensemble means in mW, `sinr` as the mean of its dB values, `coverage` as
-/// the mean probability; `server` is
+/// the mean probability, `availability` as the mean percentage; `server` is
 /// left out when n > 1. Returns the layers and the scenario with the first drawn layout.
 fn ensemble(sc: &Scenario, spec: &crate::model::draw::DrawSpec, eopts: &Options, n: usize) -> (Layers, Scenario) {
     let first = Scenario { nodes: crate::random::layout::layout(sc, spec, spec.seed), ..sc.clone() };
@@ -263,7 +298,9 @@ fn ensemble(sc: &Scenario, spec: &crate::model::draw::DrawSpec, eopts: &Options,
                 a.iter_mut().zip(b.iter()).for_each(|(x, y)| *x += *y);
             }
         }
-        for (a, b) in [(&mut acc.sinr, &l.sinr), (&mut acc.coverage, &l.coverage)] {
+        for (a, b) in
+            [(&mut acc.sinr, &l.sinr), (&mut acc.coverage, &l.coverage), (&mut acc.availability, &l.availability)]
+        {
             if let (Some(a), Some(b)) = (a, b) {
                 a.iter_mut().zip(b).for_each(|(x, y)| {
                     *x = if *x == crate::NODATA || *y == crate::NODATA { crate::NODATA } else { *x + *y }
@@ -280,7 +317,7 @@ fn ensemble(sc: &Scenario, spec: &crate::model::draw::DrawSpec, eopts: &Options,
     for l in [&mut acc.total, &mut acc.interference].into_iter().flatten() {
         l.iter_mut().for_each(|x| *x = if *x > 0.0 { mw_to_dbm((*x / nf) as f64) as f32 } else { crate::NODATA });
     }
-    for s in [&mut acc.sinr, &mut acc.coverage].into_iter().flatten() {
+    for s in [&mut acc.sinr, &mut acc.coverage, &mut acc.availability].into_iter().flatten() {
         s.iter_mut().filter(|x| **x != crate::NODATA).for_each(|x| *x /= nf);
     }
     (acc, first)

@@ -48,6 +48,32 @@ impl Default for Weather {
     }
 }
 
+impl Weather {
+    /// The gaseous loss in words, given the path loss's specific attenuation.
+    pub fn gas_words(&self, absorption_db_per_km: f64) -> String {
+        match self.gas {
+            GasSource::None => "no gaseous loss (neither [atmosphere] nor an absorption value is given)".into(),
+            GasSource::User => format!("gaseous loss {absorption_db_per_km} dB/km as given in [propagation]"),
+            GasSource::P676(a) => format!(
+                "gaseous loss {absorption_db_per_km:.3} dB/km after ITU-R P.676-12 Annex 1 at {} hPa, {} °C, {} g/m³",
+                a.pressure_hpa, a.temperature_c, a.water_vapour_g_m3
+            ),
+        }
+    }
+
+    /// The rain settings in words (none without `[rain]`).
+    pub fn rain_words(&self) -> Option<String> {
+        self.rain.map(|r| {
+            format!(
+                "rain {} mm/h exceeded 0.01 % of the year (ITU-R P.838-3, P.530: {}), availability target {} %",
+                r.rate_mm_h,
+                r.scaling_words(),
+                self.target_pct
+            )
+        })
+    }
+}
+
 /// Default availability target, percent (common practice for a backhaul link: "four nines").
 pub const DEFAULT_TARGET_PCT: f64 = 99.99;
 

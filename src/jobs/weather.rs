@@ -1,0 +1,81 @@
+//! A path's weather figures for the link table and the probe: the gaseous loss, the fade
+//! margin, the rain fade at the availability target and the availability (ITU-R P.676,
+//! P.838-3, P.530; see [`crate::model::weather`]).
+
+use crate::model::link::Geometry;
+use crate::model::node::Node;
+use crate::model::scenario::Scenario;
+use crate::model::weather::rain::{Availability, RainPath};
+use crate::model::weather::{InterfererFade, outage_together, rain_path};
+
+/// The figures of one received path.
+#[derive(Debug, Clone, Copy)]
+pub struct Figures {
+    /// Gaseous loss on the path (part of its path loss), dB.
+    pub gas_db: f64,
+    /// How far the wanted path can fade before the SINR reaches the threshold, dB (none
+    /// without a clear-air margin when interferers fade too).
+    pub fade_margin_db: Option<f64>,
+    /// Rain attenuation exceeded for 100 − target % of the time, dB (with `[rain]`).
+    pub rain_fade_db: Option<f64>,
+    /// Availability of the fade margin (with `[rain]`).
+    pub availability: Option<Availability>,
+}
+
+/// One transmitter's path to the receiver: the node, the receiver's latitude and the
+/// geometry.
+pub(crate) struct Path<'a> {
+    pub(crate) tx: &'a Node,
+    pub(crate) rx_lat: f64,
+    pub(crate) geometry: &'a Geometry,
+}
+
+impl Path<'_> {
+    /// P.838 coefficients for the transmitter's polarisation and the path's elevation, the
+    /// latitude at the path's middle.
+    fn rain(&self, sc: &Scenario, rain: &crate::model::weather::rain::Rain) -> RainPath {
+        let g = self.geometry;
+        let lat = 0.5 * (self.tx.lat + self.rx_lat);
+        rain_path(
+            rain,
+            sc.pathloss.frequency_ghz(),
+            g.distance_m,
+            g.east_m.hypot(g.north_m),
+            self.tx.polarisation.cos_2tau(),
+            lat,
+        )
+    }
+}
+
+/// The figures of `wanted` received at `s_mw` (mean, shadowed) beside `interferers` (paths
+/// with their activity-weighted mean shadowed powers, mW) and noise `n_mw`, at mean SINR
+/// `sinr_db`.
+pub(crate) fn figures(
+    sc: &Scenario,
+    wanted: &Path,
+    s_mw: f64,
+    interferers: &[(Path, f64)],
+    n_mw: f64,
+    sinr_db: f64,
+) -> Figures {
+    let w = sc.weather();
+    let thr = sc.thresholds.sinr_db;
+    let gas_db = sc.pathloss.absorption_db_per_km() * wanted.geometry.distance_m / 1000.0;
+    let Some(rain) = w.rain else {
+        return Figures { gas_db, fade_margin_db: Some(sinr_db - thr), rain_fade_db: None, availability: None };
+    };
+    let wp = wanted.rain(sc, &rain);
+    let (fade_margin_db, availability) = match w.interferers {
+        InterfererFade::None => (Some(sinr_db - thr), wp.availability(sinr_db - thr)),
+        InterfererFade::Together => {
+            let intf: Vec<(f64, RainPath)> = interferers.iter().map(|(p, mw)| (*mw, p.rain(sc, &rain))).collect();
+            outage_together(&wp, s_mw, &intf, n_mw, thr)
+        }
+    };
+    Figures {
+        gas_db,
+        fade_margin_db,
+        rain_fade_db: Some(wp.fade_at_target_db(w.target_pct)),
+        availability: Some(availability),
+    }
+}
