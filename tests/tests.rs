@@ -12,3 +12,4 @@ mod physics;
 mod random;
 mod report;
 mod surface;
+mod weather;

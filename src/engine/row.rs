@@ -108,7 +108,7 @@ pub(crate) fn row_body<D: Decay, A: PairFactor, C: RxCoupling>(
     };
     // The interference needs a pass that knows each cell's server when the receiver is aimed
     // at it or when coupling depends on it; otherwise the server pass's sum stands.
-    let aimed_needed = (e.rx_aim.is_some() || !C::IDENTITY) && (l.interference || l.sinr);
+    let aimed_needed = (e.rx_aim.is_some() || !C::IDENTITY) && (l.interference || l.sinr || l.availability);
     if e.rx_aim.is_some() && (aimed_needed || l.coverage) {
         for c in 0..cols {
             let s = b.server[c];

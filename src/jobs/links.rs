@@ -254,7 +254,7 @@ fn one(
         gas_db: round_dp(wx.gas_db, 2),
         fade_margin_db: wx.fade_margin_db.map(|m| round_dp(m, 2)),
         rain_fade_db: wx.rain_fade_db.map(|v| round_dp(v, 2)),
-        availability_pct: wx.availability.map(|a| round_dp(a.pct, 4)),
+        availability_pct: wx.availability.map(|a| round_dp(a.pct, 6)),
         outage_min_per_year: wx.availability.map(|a| round_dp(a.outage_min_per_year, 1)),
         availability_bound: wx.availability.map(|a| a.bound),
         meets_target: wx.availability.map(|a| a.pct >= target_pct),
