@@ -100,7 +100,7 @@ fn strict_fails_a_link_below_the_availability_target() {
     }
 }
 
-/// The map's availability layer against the float64 probe at 300 seeded cells of the demo
+/// The map's availability layer against the float64 probe at 1500 seeded cells of the demo
 /// over flat ground: the engine's percentage, turned back into a margin by the float64 P.530
 /// law on the probe's server path, equals the probe's fade margin within
 /// tol::ENGINE_F32_DB + 0.01 dB (the engine's SINR error, plus float32 in the inversion, whose
@@ -114,8 +114,8 @@ fn availability_layer_agrees_with_the_probe() {
     let g = sc.grid();
     let rain = sc.weather().rain.unwrap();
     let mut rng = rand_pcg::Pcg64::seed_from_u64(11);
-    let (mut within, mut bounds) = (0, 0);
-    for _ in 0..300 {
+    let (mut within, mut bounds, mut worst) = (0, 0, 0.0f64);
+    for _ in 0..1500 {
         let (r, c) = (rng.random_range(0..g.rows()), rng.random_range(0..g.cols()));
         let pr = probe(&sc, g.lat_of_row(r), g.lon_of_col(c));
         let mut tx: Vec<f64> = pr.contributions.iter().map(|c| c.power_dbm - c.rx_gain_dbi).collect();
@@ -144,6 +144,7 @@ fn availability_layer_agrees_with_the_probe() {
                     "cell {r},{c}: engine {ae} % -> {back} dB, probe {ap} % at {fm} dB"
                 );
                 within += 1;
+                worst = worst.max((back - fm).abs());
             }
             b => {
                 // Margins near 0 dB may fall either side of the threshold in float32.
@@ -154,7 +155,10 @@ fn availability_layer_agrees_with_the_probe() {
             }
         }
     }
-    assert!(within > 20 && bounds > 20, "{within} within, {bounds} at a bound");
+    assert!(within > 100 && bounds > 100, "{within} within, {bounds} at a bound");
+    eprintln!(
+        "availability layer against the probe: {within} cells within the range, worst {worst:.4} dB of margin; {bounds} at a bound, all equal"
+    );
 }
 
 /// Every out-of-range weather input is refused with exit 2, one message each naming the file,

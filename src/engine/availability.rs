@@ -8,6 +8,7 @@
 //! The scaling coefficients C₁, C₂, C₃ are taken at the grid centre's latitude (they depend
 //! on it only under the latitude scaling, and a map spans a few kilometres).
 
+use crate::NODATA;
 use crate::math::fastmath::{fast_exp2, fast_log2};
 use crate::model::scenario::Scenario;
 use crate::model::weather::rain::{P_MAX, P_MIN, RainCoefficients};
@@ -15,8 +16,10 @@ use std::f32::consts::{LOG2_10, LOG2_E, LOG10_2};
 
 /// Rain constants for the availability layer.
 pub(crate) struct RainK {
-    /// Per node: k_H, k_V, k_H α_H, k_V α_V and cos 2τ of its polarisation.
-    nodes: Vec<[f32; 5]>,
+    /// k_H, k_V, k_H α_H, k_V α_V at the carrier.
+    k: [f32; 4],
+    /// Per node: cos 2τ of its polarisation.
+    cos_2tau: Vec<f32>,
     /// log₂ R₀.₀₁.
     log2_rate: f32,
     /// 0.477 f^0.123.
@@ -26,7 +29,7 @@ pub(crate) struct RainK {
     c2: f32,
     c3: f32,
     /// SINR threshold, dB.
-    thr_db: f32,
+    pub(crate) thr_db: f32,
 }
 
 impl RainK {
@@ -35,23 +38,11 @@ impl RainK {
         let rain = sc.weather().rain?;
         let f = sc.pathloss.frequency_ghz();
         let c = RainCoefficients::at(f);
-        let nodes = sc
-            .nodes
-            .iter()
-            .map(|n| {
-                [
-                    c.k_h as f32,
-                    c.k_v as f32,
-                    (c.k_h * c.alpha_h) as f32,
-                    (c.k_v * c.alpha_v) as f32,
-                    n.polarisation.cos_2tau() as f32,
-                ]
-            })
-            .collect();
         let (_, lat) = sc.grid.bbox().centre();
         let (c1, c2, c3) = rain.coefficients(f, lat);
         Some(RainK {
-            nodes,
+            k: [c.k_h as f32, c.k_v as f32, (c.k_h * c.alpha_h) as f32, (c.k_v * c.alpha_v) as f32],
+            cos_2tau: sc.nodes.iter().map(|n| n.polarisation.cos_2tau() as f32).collect(),
             log2_rate: rain.rate_mm_h.log2() as f32,
             f_term: (0.477 * f.powf(0.123)) as f32,
             log10_c1: c1.log10() as f32,
@@ -61,33 +52,42 @@ impl RainK {
         })
     }
 
-    /// Availability, percent, of a cell served by `node` at squared 3-D distance `d2` (m²),
-    /// squared horizontal distance `w2`, with mean SINR `sinr_db`; clamped to the method's
-    /// range (99 to 99.999), 0 without a margin.
+    /// cos 2τ of node `node`'s polarisation.
     #[inline(always)]
-    pub(crate) fn availability_pct(&self, node: usize, d2: f32, w2: f32, sinr_db: f32) -> f32 {
-        let margin = sinr_db - self.thr_db;
-        if margin.is_nan() || margin <= 0.0 {
-            return 0.0;
-        }
-        let [kh, kv, kah, kav, ct] = self.nodes[node];
-        let d2 = d2.max(1.0);
-        let cos2 = w2 / d2;
-        let w = cos2 * ct;
-        let k = 0.5 * (kh + kv + (kh - kv) * w);
-        let alpha = 0.5 * (kah + kav + (kah - kav) * w) / k;
-        let d_km = d2.sqrt() * 1e-3;
-        let log2_d = fast_log2(d_km);
-        let gamma = k * fast_exp2(alpha * self.log2_rate);
-        let den = self.f_term * fast_exp2(0.633 * log2_d + 0.073 * alpha * self.log2_rate)
-            - 10.579 * (1.0 - fast_exp2(-0.024 * d_km * LOG2_E));
-        let r = if den < 0.4 { 2.5 } else { 1.0 / den };
-        let a001 = gamma * d_km * r;
-        // C₃ x² + C₂ x + y = 0 on x = log₁₀ p, the root where A_p falls with p.
-        let y = (fast_log2(margin) - fast_log2(a001)) * LOG10_2 - self.log10_c1;
-        let disc = self.c2 * self.c2 - 4.0 * self.c3 * y;
+    pub(crate) fn cos_2tau(&self, node: usize) -> f32 {
+        self.cos_2tau[node]
+    }
+
+    /// Availability, percent, of each cell of a row from its fade margin `margin` (dB; NaN
+    /// where the cell has no server), squared 3-D distance to its server `d2` (m²) and
+    /// `w` = cos²θ cos 2τ of the server path; clamped to the method's range (99 to 99.999), 0
+    /// without a margin, NODATA without a server. Branch-free, so the loop vectorises.
+    #[inline(always)]
+    pub(crate) fn row(&self, margin: &[f32], d2: &[f32], w: &[f32], out: &mut [f32]) {
+        let [kh, kv, kah, kav] = self.k;
         let (x_min, x_max) = (P_MIN.log10() as f32, P_MAX.log10() as f32);
-        let x = if disc < 0.0 { x_min } else { ((disc.sqrt() - self.c2) / (2.0 * self.c3)).clamp(x_min, x_max) };
-        100.0 - fast_exp2(x * LOG2_10)
+        for (((o, &m), &d2), &w) in out.iter_mut().zip(margin).zip(d2).zip(w) {
+            let k = 0.5 * (kh + kv + (kh - kv) * w);
+            let alpha = 0.5 * (kah + kav + (kah - kav) * w) / k;
+            let d_km = d2.max(1.0).sqrt() * 1e-3;
+            let gamma = k * fast_exp2(alpha * self.log2_rate);
+            let den = self.f_term * fast_exp2(0.633 * fast_log2(d_km) + 0.073 * alpha * self.log2_rate)
+                - 10.579 * (1.0 - fast_exp2(-0.024 * d_km * LOG2_E));
+            let r = if den < 0.4 { 2.5 } else { 1.0 / den };
+            let a001 = gamma * d_km * r;
+            // C₃ x² + C₂ x + y = 0 on x = log₁₀ p, the root where A_p falls with p.
+            let y = (fast_log2(m.max(1e-6)) - fast_log2(a001)) * LOG10_2 - self.log10_c1;
+            let disc = self.c2 * self.c2 - 4.0 * self.c3 * y;
+            let x = ((disc.max(0.0).sqrt() - self.c2) / (2.0 * self.c3)).clamp(x_min, x_max);
+            let x = if disc < 0.0 { x_min } else { x };
+            let a = 100.0 - fast_exp2(x * LOG2_10);
+            *o = if m.is_nan() {
+                NODATA
+            } else if m > 0.0 {
+                a
+            } else {
+                0.0
+            };
+        }
     }
 }

@@ -186,7 +186,7 @@ pub(crate) fn row_body<D: Decay, A: PairFactor, C: RxCoupling>(
     }
     let db = |v: f32| if v > 0.0 { 10.0 * v.log10() } else { NODATA };
     let noise = e.noise_mw as f32;
-    let [mut t, mut i, mut s, mut v, cv, mut av] = out;
+    let [mut t, mut i, mut s, mut v, cv, av] = out;
     if let Some(cv) = cv {
         let (e1, e2) = (e.cov.e1, e.cov.e2);
         let mut strong: Vec<(f64, f64)> = Vec::with_capacity(STRONG);
@@ -236,19 +236,26 @@ pub(crate) fn row_body<D: Decay, A: PairFactor, C: RxCoupling>(
         if let Some(v) = v.as_deref_mut() {
             v[c] = if b.server[c] == u32::MAX { NODATA } else { b.server[c] as f32 };
         }
-        if let (Some(av), Some(rk)) = (av.as_deref_mut(), &e.rain) {
+        // The availability's inputs per cell (margin, distance, polarisation over elevation)
+        // go into buffers free at this point; the vectorised loop below reads them.
+        if let (true, Some(rk)) = (av.is_some(), &e.rain) {
             let srv = b.server[c];
-            av[c] = if srv == u32::MAX || best <= 0.0 {
-                NODATA
+            let (m, d2, w) = if srv == u32::MAX || best <= 0.0 {
+                (f32::NAN, 1.0, 0.0)
             } else {
                 let nk = &e.nodes[srv as usize];
                 let (dx, dy) = (b.xs[c] - nk.x, b.ys[c] - nk.y);
                 let w2 = dx * dx + dy * dy;
-                let d2 = a.for_node(srv, cols).d2(c, w2, nk.dz2);
-                let sinr_db = 10.0 * (e.g_signal * best * e.shadow_mean / (interf * e.shadow_mean + noise)).log10();
-                rk.availability_pct(srv as usize, d2, w2, sinr_db)
+                let d2 = a.for_node(srv, cols).d2(c, w2, nk.dz2).max(1.0);
+                let sinr = e.g_signal * best * e.shadow_mean / (interf * e.shadow_mean + noise);
+                let sinr_db = 10.0 * std::f32::consts::LOG10_2 * crate::math::fastmath::fast_log2(sinr);
+                (sinr_db - rk.thr_db, d2, w2 / d2 * rk.cos_2tau(srv as usize))
             };
+            (b.ux[c], b.uy[c], b.tinv[c]) = (m, d2, w);
         }
+    }
+    if let (Some(av), Some(rk)) = (av, &e.rain) {
+        rk.row(&b.ux[..cols], &b.uy[..cols], &b.tinv[..cols], av);
     }
     (pairs, dropped_mw)
 }

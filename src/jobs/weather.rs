@@ -5,8 +5,8 @@
 use crate::model::link::Geometry;
 use crate::model::node::Node;
 use crate::model::scenario::Scenario;
-use crate::model::weather::rain::{Availability, RainPath};
-use crate::model::weather::{InterfererFade, outage_together, rain_path};
+use crate::model::weather::rain::{Availability, Rain, RainCoefficients, RainPath};
+use crate::model::weather::{InterfererFade, outage_together, rain_path_with, significant};
 
 /// The figures of one received path.
 #[derive(Debug, Clone, Copy)]
@@ -33,11 +33,12 @@ pub(crate) struct Path<'a> {
 impl Path<'_> {
     /// P.838 coefficients for the transmitter's polarisation and the path's elevation, the
     /// latitude at the path's middle.
-    fn rain(&self, sc: &Scenario, rain: &crate::model::weather::rain::Rain) -> RainPath {
+    fn rain(&self, sc: &Scenario, rain: &Rain, c: &RainCoefficients) -> RainPath {
         let g = self.geometry;
         let lat = 0.5 * (self.tx.lat + self.rx_lat);
-        rain_path(
+        rain_path_with(
             rain,
+            c,
             sc.pathloss.frequency_ghz(),
             g.distance_m,
             g.east_m.hypot(g.north_m),
@@ -64,11 +65,16 @@ pub(crate) fn figures(
     let Some(rain) = w.rain else {
         return Figures { gas_db, fade_margin_db: Some(sinr_db - thr), rain_fade_db: None, availability: None };
     };
-    let wp = wanted.rain(sc, &rain);
+    let coefficients = RainCoefficients::at(sc.pathloss.frequency_ghz());
+    let wp = wanted.rain(sc, &rain, &coefficients);
     let (fade_margin_db, availability) = match w.interferers {
         InterfererFade::None => (Some(sinr_db - thr), wp.availability(sinr_db - thr)),
         InterfererFade::Together => {
-            let intf: Vec<(f64, RainPath)> = interferers.iter().map(|(p, mw)| (*mw, p.rain(sc, &rain))).collect();
+            let powers: Vec<f64> = interferers.iter().map(|x| x.1).collect();
+            let intf: Vec<(f64, RainPath)> = significant(&powers, n_mw)
+                .into_iter()
+                .map(|k| (interferers[k].1, interferers[k].0.rain(sc, &rain, &coefficients)))
+                .collect();
             outage_together(&wp, s_mw, &intf, n_mw, thr)
         }
     };

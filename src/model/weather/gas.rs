@@ -12,7 +12,7 @@
 //! Recommendation's range); lobemap's carriers stop at 300 GHz.
 //!
 //! # References
-//! - ITU-R P.676-12 (08/2019), Annex 1 §1 and Tables 1 and 2 ([`super::p676_lines`]).
+//! - ITU-R P.676-12 (08/2019), Annex 1 §1 and Tables 1 and 2 (in `p676_lines.rs`).
 //! - ITU-R P.835-6, §1.1: the mean annual global reference atmosphere at sea level
 //!   (1013.25 hPa, 288.15 K, 7.5 g/m³), lobemap's defaults.
 

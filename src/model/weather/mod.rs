@@ -80,9 +80,41 @@ pub const DEFAULT_TARGET_PCT: f64 = 99.99;
 /// The P.530 figures of a path of `d_m` metres (3-D) and horizontal length `h_m` at `f_ghz`,
 /// transmitted with polarisation tilt cos 2τ = `cos_2tau`, at latitude `lat_deg`.
 pub fn rain_path(rain: &Rain, f_ghz: f64, d_m: f64, h_m: f64, cos_2tau: f64, lat_deg: f64) -> RainPath {
+    rain_path_with(rain, &RainCoefficients::at(f_ghz), f_ghz, d_m, h_m, cos_2tau, lat_deg)
+}
+
+/// [`rain_path`] with the P.838 coefficients at `f_ghz` computed once by the caller.
+pub fn rain_path_with(
+    rain: &Rain,
+    coefficients: &RainCoefficients,
+    f_ghz: f64,
+    d_m: f64,
+    h_m: f64,
+    cos_2tau: f64,
+    lat_deg: f64,
+) -> RainPath {
     let cos2 = if d_m > 0.0 { (h_m / d_m).powi(2).min(1.0) } else { 1.0 };
-    let (k, alpha) = RainCoefficients::at(f_ghz).combined(cos2, cos_2tau);
+    let (k, alpha) = coefficients.combined(cos2, cos_2tau);
     rain.path(d_m / 1000.0, f_ghz, k, alpha, lat_deg)
+}
+
+/// Indices of the interferers that matter, in input order: the weakest ones whose clear-air
+/// sum stays below 1e-3 of the noise `n_mw` are left out. Rain only lowers them, so at any
+/// fade they move the SINR by less than 0.005 dB.
+pub fn significant(powers_mw: &[f64], n_mw: f64) -> Vec<usize> {
+    let mut order: Vec<usize> = (0..powers_mw.len()).collect();
+    order.sort_by(|&a, &b| powers_mw[a].total_cmp(&powers_mw[b]).then(a.cmp(&b)));
+    let mut dropped = 0.0;
+    let keep = order
+        .iter()
+        .position(|&k| {
+            dropped += powers_mw[k];
+            dropped > 1e-3 * n_mw
+        })
+        .unwrap_or(order.len());
+    let mut kept = order[keep..].to_vec();
+    kept.sort_unstable();
+    kept
 }
 
 /// Outage under fully correlated rain: at any moment every path's attenuation is its own
@@ -171,6 +203,17 @@ mod tests {
         assert_eq!(av.bound, Bound::AtLeast);
         assert!(m.unwrap() >= 299.9, "{m:?}");
         assert!(w.availability(7.0).pct < av.pct);
+    }
+
+    // The interferers left out sum to at most 1e-3 of the noise (the stated SINR bound,
+    // 10 log10(1 + 1e-3) < 0.005 dB), and the kept ones keep their order.
+    #[test]
+    fn left_out_interferers_are_within_the_bound() {
+        let p = [5e-4, 1.0, 2e-4, 3e-4, 0.2, 1e-5];
+        let kept = significant(&p, 1.0);
+        assert_eq!(kept, vec![0, 1, 4]);
+        let dropped: f64 = (0..p.len()).filter(|k| !kept.contains(k)).map(|k| p[k]).sum();
+        assert!(dropped <= 1e-3 && dropped + 5e-4 > 1e-3);
     }
 
     // Interferers that fade can only help: the fade margin with every path fading is at
