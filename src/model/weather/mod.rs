@@ -52,10 +52,10 @@ impl Weather {
     /// The gaseous loss in words, given the path loss's specific attenuation.
     pub fn gas_words(&self, absorption_db_per_km: f64) -> String {
         match self.gas {
-            GasSource::None => "no gaseous loss (neither [atmosphere] nor an absorption value is given)".into(),
-            GasSource::User => format!("gaseous loss {absorption_db_per_km} dB/km as given in [propagation]"),
+            GasSource::None => "No gaseous loss (neither [atmosphere] nor an absorption value is given)".into(),
+            GasSource::User => format!("Gaseous loss {absorption_db_per_km} dB/km as given in [propagation]"),
             GasSource::P676(a) => format!(
-                "gaseous loss {absorption_db_per_km:.3} dB/km after ITU-R P.676-12 Annex 1 at {} hPa, {} °C, {} g/m³",
+                "Gaseous loss {absorption_db_per_km:.3} dB/km after ITU-R P.676-12 Annex 1 at {} hPa, {} °C, {} g/m³",
                 a.pressure_hpa, a.temperature_c, a.water_vapour_g_m3
             ),
         }
@@ -65,7 +65,7 @@ impl Weather {
     pub fn rain_words(&self) -> Option<String> {
         self.rain.map(|r| {
             format!(
-                "rain {} mm/h exceeded 0.01 % of the year (ITU-R P.838-3, P.530: {}), availability target {} %",
+                "Rain {} mm/h exceeded 0.01 % of the year (ITU-R P.838-3, P.530: {}), availability target {} %",
                 r.rate_mm_h,
                 r.scaling_words(),
                 self.target_pct
