@@ -74,6 +74,7 @@ fn andrews_baccelli_ganti_coverage() {
                         peer: None,
                         name: None,
                         polarisation: Default::default(),
+                        channel: 0,
                     }
                 })
                 .collect();

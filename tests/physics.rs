@@ -308,6 +308,7 @@ fn cutoff_keeps_servers_exact_and_sinr_bounded() {
         coverage: false,
         visible: false,
         availability: false,
+        channel: false,
     };
     for (sc, cutoff, must_save) in [(&demo, 300.0, false), (&dense, 600.0, true)] {
         let eng = Engine::new(sc);

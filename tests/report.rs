@@ -52,13 +52,13 @@ fn links_tables_and_installer_sheet() {
     let lines: Vec<&str> = csv.lines().collect();
     assert!(lines[0].starts_with('#') && lines[0].contains("W/m2") && lines[0].contains("local exposure rules"));
     assert!(lines[1].starts_with(
-        "id,name,lat,lon,height_m,azimuth_true_deg,azimuth_planned_deg,differs_from_plan,declination_deg,azimuth_magnetic_deg"
+        "id,name,lat,lon,height_m,channel,centre_ghz,polarisation,azimuth_true_deg,azimuth_planned_deg,differs_from_plan,declination_deg,azimuth_magnetic_deg"
     ));
     assert_eq!(lines.len(), 2 + 46);
     // Magnetic = true − declination, modulo 360 (the definition of declination).
     for l in &lines[2..] {
         let f: Vec<&str> = l.split(',').collect();
-        let (t, d, m): (f64, f64, f64) = (f[5].parse().unwrap(), f[8].parse().unwrap(), f[9].parse().unwrap());
+        let (t, d, m): (f64, f64, f64) = (f[8].parse().unwrap(), f[11].parse().unwrap(), f[12].parse().unwrap());
         let diff = ((t - d - m) % 360.0 + 360.0) % 360.0;
         assert!(!(0.11..=359.89).contains(&diff), "{l}");
     }

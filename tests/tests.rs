@@ -11,5 +11,6 @@ mod faults;
 mod physics;
 mod random;
 mod report;
+mod spectrum;
 mod surface;
 mod weather;

@@ -101,7 +101,7 @@ fn strict_fails_a_link_below_the_availability_target() {
 }
 
 /// The map's availability layer against the float64 probe at 1500 seeded cells of the demo
-/// over flat ground: the engine's percentage, turned back into a margin by the float64 P.530
+/// over flat ground (its servers on four channels and both polarisations): the engine's percentage, turned back into a margin by the float64 P.530
 /// law on the probe's server path, equals the probe's fade margin within
 /// tol::ENGINE_F32_DB + 0.01 dB (the engine's SINR error, plus float32 in the inversion, whose
 /// 100 − p keeps about 1e-5 % near 99.99 %, 0.01 dB of A). Ties between servers are skipped.
@@ -133,7 +133,8 @@ fn availability_layer_agrees_with_the_probe() {
                 let dz = node.height_m - 4.0; // the demo's receiver height
                 let h = (srv.distance_m.powi(2) - dz * dz).sqrt();
                 let lat = 0.5 * (node.lat + g.lat_of_row(r));
-                let path = rain_path(&rain, 60.48, srv.distance_m, h, node.polarisation.cos_2tau(), lat);
+                let f = sc.spectrum().channels[node.channel].centre_ghz;
+                let path = rain_path(&rain, f, srv.distance_m, h, node.polarisation.cos_2tau(), lat);
                 if (fm - path.exceeded_db(0.001)).abs() < 0.05 || (fm - path.exceeded_db(1.0)).abs() < 0.05 {
                     continue; // at the clamp, the engine may fall on the other side
                 }
@@ -224,13 +225,26 @@ fn bad_weather_inputs_are_refused() {
 }
 
 /// `interferers_fade = true` (every path fades by its own P.530 attenuation at the same
-/// percentage of time): on every demo link the fade margin and the availability are at least
+/// percentage of time): on every link of the demo on one channel the fade margin and the availability are at least
 /// the conservative ones (interferers held at their clear-air levels), and a link without a
 /// clear-air margin keeps none.
 #[test]
 fn fading_interferers_only_raise_the_demo_margins() {
-    let text = crate::util::demo_scenario();
+    // The demo on one channel and polarisation, so that interference matters.
+    let root = env!("CARGO_MANIFEST_DIR");
+    let mut nodes: serde_json::Value =
+        serde_json::from_str(&std::fs::read_to_string(format!("{root}/sites/harbourlight/nodes.geojson")).unwrap())
+            .unwrap();
+    for f in nodes["features"].as_array_mut().unwrap() {
+        let p = f["properties"].as_object_mut().unwrap();
+        p.remove("channel");
+        p.remove("polarisation");
+    }
     let d = tempfile::tempdir().unwrap();
+    let one = d.path().join("one-channel.geojson");
+    std::fs::write(&one, nodes.to_string()).unwrap();
+    let text = crate::util::demo_scenario()
+        .replace(&format!("\"{root}/sites/harbourlight/nodes.geojson\""), &format!("\"{}\"", one.display()));
     let held = d.path().join("held.toml");
     let together = d.path().join("together.toml");
     std::fs::write(&held, &text).unwrap();

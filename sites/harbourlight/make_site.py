@@ -35,9 +35,13 @@ for k, pos in enumerate(bb):
     az = bearing(pos, bb[mate])
     if k == 7:
         az += 4.0                      # a deliberately misaligned dish (shows up in link checks)
+    # Channel plan: the six backbone pairs alternate between channels a and c of the 2.16 GHz
+    # raster, neighbouring pairs on the same channel on opposite polarisations.
+    pair = k // 2
     add(f"BB{k+1:02d}", pos, {"name": f"Quay pole {k+1}", "pattern": "parabolic", "beamwidth_deg": 2.5,
         "gain_dbi": 36.0, "sidelobe_dbi": -4.0, "power_dbm": 8.0, "height_m": 9.0, "activity": 0.8,
-        "azimuth_deg": round(az % 360, 2), "peer": f"BB{mate+1:02d}"})
+        "azimuth_deg": round(az % 360, 2), "peer": f"BB{mate+1:02d}",
+        "channel": "a" if pair % 2 == 0 else "c", "polarisation": "V" if pair % 4 < 2 else "H"})
 
 # Access: 24 lamp-post sectors, alternating between facing inland (north) and the water.
 acc = []
@@ -49,7 +53,9 @@ for k in range(24):
     base = 0 if inland else 180
     az = (base + 25 * math.sin(1.7 * k)) % 360
     acc.append(pos)
-    add(f"LP{k+1:02d}", pos, {"azimuth_deg": round(az, 1), "height_m": 5.0})
+    # Access on channel b, inland and water-facing sectors on opposite polarisations.
+    add(f"LP{k+1:02d}", pos, {"azimuth_deg": round(az, 1), "height_m": 5.0, "channel": "b",
+        "polarisation": "V" if inland else "H"})
 
 # Subscriber terminals: 8 aimed at a lamp-post sector, low duty cycle. Each sits 80-110 m out
 # inside its host's 60-degree sector (within 15 degrees of its boresight), except ST05, which
@@ -66,7 +72,7 @@ for k in range(8):
     pos = (hx + d * math.sin(a), hy + d * math.cos(a))
     add(f"ST{k+1:02d}", pos, {"pattern": "sector", "beamwidth_deg": 20.0, "gain_dbi": 24.0, "sidelobe_dbi": -6.0,
         "power_dbm": 12.0, "height_m": 3.0, "activity": 0.3, "azimuth_deg": round(bearing(pos, (hx, hy)), 1),
-        "peer": f"LP{host+1:02d}"})
+        "peer": f"LP{host+1:02d}", "channel": "b", "polarisation": "V" if host % 2 == 0 else "H"})
 
 # Two access sectors on the roof of the Lanternlight Hotel (see the buildings below), 3 m masts.
 HOTEL = quay(0.6)
@@ -74,7 +80,7 @@ HOTEL = (HOTEL[0], HOTEL[1] + 135)
 HOTEL_H = 32.0
 for k, az in enumerate([200.0, 320.0]):
     add(f"HR{k+1:02d}", (HOTEL[0] - 8 + 16 * k, HOTEL[1]), {"name": f"Hotel roof {k+1}", "azimuth_deg": az,
-        "height_m": HOTEL_H + 3.0})
+        "height_m": HOTEL_H + 3.0, "channel": "d", "polarisation": "V"})
 
 # ---- The land -------------------------------------------------------------------------
 # The quay edge runs 40 m south of the quay line; south of it is water (0 m). The apron is

@@ -235,7 +235,9 @@ struct MapArgs {
     out: Option<PathBuf>,
     /// Layers to compute and write, comma-separated: total, interference, sinr, server,
     /// coverage, visible (nodes in line of sight; needs a [surface], and is added to the
-    /// default there), availability (in rain; needs [rain], and is added to the default there).
+    /// default there), availability (in rain; needs [rain], and is added to the default there),
+    /// channel (the best server's channel index; added to the default when nodes use more than
+    /// one channel).
     #[arg(long, default_value = DEFAULT_LAYERS)]
     layers: String,
     /// Skip nodes farther than this from a grid row (m); the dropped power is bounded and
@@ -349,8 +351,10 @@ pub fn run(cli: Cli) -> anyhow::Result<ExitCode> {
         }
         Cmd::Check { scenario, max_memory_mib } => match Scenario::load(&scenario) {
             Ok(sc) => {
-                let layers =
-                    LayerSet::ALL.count() + sc.surface().is_some() as usize + sc.weather().rain.is_some() as usize;
+                let layers = LayerSet::ALL.count()
+                    + sc.surface().is_some() as usize
+                    + sc.weather().rain.is_some() as usize
+                    + sc.uses_channels() as usize;
                 lobemap::run::map::check_memory(&sc, layers, max_memory_mib)?;
                 for w in lobemap::jobs::spacing::isolated_nodes(&sc) {
                     eprintln!(
@@ -458,6 +462,7 @@ fn map_cmd(sc: &Scenario, a: MapArgs, quiet: bool, default_out: Option<&str>) ->
     if a.layers == DEFAULT_LAYERS {
         layers.visible = sc.surface().is_some();
         layers.availability = sc.weather().rain.is_some();
+        layers.channel = sc.uses_channels();
     }
     if let Some(c) = a.cutoff_m
         && !(c.is_finite() && c > 0.0)

@@ -25,6 +25,8 @@ pub(crate) const KEYS: &[(&str, &[&str])] = &[
             "surface",
             "atmosphere",
             "rain",
+            "channels",
+            "spectrum",
         ],
     ),
     ("radio", &["frequency_ghz", "bandwidth_mhz", "noise_figure_db"]),
@@ -43,6 +45,7 @@ pub(crate) const KEYS: &[(&str, &[&str])] = &[
     ("surface", &["ground", "buildings", "earth_k", "obstruction_cap_db", "nodata_fill_m"]),
     ("atmosphere", &["pressure_hpa", "temperature_c", "water_vapour_g_m3"]),
     ("rain", &["rate_mm_h", "scaling", "interferers_fade"]),
+    ("spectrum", &["xpd_db", "aclr_db", "acs_db", "aclr2_db", "acs2_db"]),
 ];
 
 /// 1-based line and column of byte `offset` in `text`.

@@ -26,6 +26,7 @@ pub const NODE_KEYS: &[&str] = &[
     "height_m",
     "activity",
     "polarisation",
+    "channel",
     "peer",
     "name",
     "note",
@@ -35,7 +36,12 @@ pub const NODE_KEYS: &[&str] = &[
 
 /// Parses a GeoJSON text of nodes. `file` names the file in messages; `defaults` are the
 /// scenario's `[antenna]` values. All problems are collected.
-pub fn parse_nodes(text: &str, file: &str, defaults: &AntennaDefaults) -> Result<Vec<Node>, Vec<Problem>> {
+pub fn parse_nodes(
+    text: &str,
+    file: &str,
+    defaults: &AntennaDefaults,
+    channels: &[String],
+) -> Result<Vec<Node>, Vec<Problem>> {
     let mut probs = Problems::default();
     let gj: geojson::GeoJson = match text.parse() {
         Ok(g) => g,
@@ -65,7 +71,7 @@ pub fn parse_nodes(text: &str, file: &str, defaults: &AntennaDefaults) -> Result
     let mut nodes = Vec::with_capacity(fc.features.len());
     let mut feature_of = Vec::with_capacity(fc.features.len());
     for (i, f) in fc.features.iter().enumerate() {
-        if let Some(n) = parse_feature(i, f, file, defaults, &mut probs) {
+        if let Some(n) = parse_feature(i, f, file, defaults, channels, &mut probs) {
             nodes.push(n);
             feature_of.push(i);
         }
@@ -110,9 +116,34 @@ pub fn parse_nodes(text: &str, file: &str, defaults: &AntennaDefaults) -> Result
                 if (m.lon - n.lon).abs() < 1e-9 && (m.lat - n.lat).abs() < 1e-9 {
                     probs.push(Problem::new(
                         file,
-                        feat,
+                        feat.clone(),
                         "peer",
                         format!("peer `{p}` stands at the same spot; a link needs two positions"),
+                    ));
+                }
+                // Both ends of a link on one channel and polarisation (reported once a pair).
+                let once = k < j || m.peer.as_deref() != Some(n.id.as_str());
+                if once && m.channel != n.channel {
+                    probs.push(Problem::new(
+                        file,
+                        feat.clone(),
+                        "channel",
+                        format!(
+                            "value `{}` differs from its peer `{p}`'s `{}`; both ends of a link work on one channel",
+                            channels[n.channel], channels[m.channel]
+                        ),
+                    ));
+                }
+                if once && m.polarisation != n.polarisation {
+                    probs.push(Problem::new(
+                        file,
+                        feat,
+                        "polarisation",
+                        format!(
+                            "value `{}` differs from its peer `{p}`'s `{}`; both ends of a link use one polarisation",
+                            n.polarisation.name(),
+                            m.polarisation.name()
+                        ),
                     ));
                 }
             } else if rejected.contains(p) {
@@ -178,6 +209,7 @@ fn parse_feature(
     f: &geojson::Feature,
     file: &str,
     d: &AntennaDefaults,
+    channels: &[String],
     probs: &mut Problems,
 ) -> Option<Node> {
     let props = f.properties.clone().unwrap_or_default();
@@ -310,6 +342,20 @@ fn parse_feature(
     let peer = text("peer");
     let name = text("name");
     let pol_name = text("polarisation");
+    let channel = match text("channel") {
+        None => 0,
+        Some(c) => channels.iter().position(|n| *n == c).unwrap_or_else(|| {
+            let names: Vec<String> = channels.iter().map(|n| format!("`{n}`")).collect();
+            push(
+                "channel",
+                format!(
+                    "value `{c}` names no channel; allowed: {} ([channels] names, `radio` for the [radio] carrier)",
+                    names.join(", ")
+                ),
+            );
+            0
+        }),
+    };
     let merged = AntennaDefaults {
         pattern: pattern_name.or_else(|| d.pattern.clone()),
         beamwidth_deg: local.beamwidth_deg.or(d.beamwidth_deg),
@@ -356,5 +402,18 @@ fn parse_feature(
         return None;
     }
     let (pattern, power_dbm, height_m, activity) = resolved?;
-    Some(Node { id: id?, lon, lat, azimuth_deg, pattern, power_dbm, height_m, activity, peer, name, polarisation })
+    Some(Node {
+        id: id?,
+        lon,
+        lat,
+        azimuth_deg,
+        pattern,
+        power_dbm,
+        height_m,
+        activity,
+        peer,
+        name,
+        polarisation,
+        channel,
+    })
 }

@@ -28,6 +28,25 @@ pub(crate) struct RawScenario {
     pub(crate) surface: Option<crate::config::surface::RawSurface>,
     pub(crate) atmosphere: Option<RawAtmosphere>,
     pub(crate) rain: Option<RawRain>,
+    pub(crate) channels: Option<std::collections::BTreeMap<String, RawChannel>>,
+    pub(crate) spectrum: Option<RawSpectrum>,
+}
+
+#[derive(Debug, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub(crate) struct RawChannel {
+    pub(crate) centre_ghz: f64,
+    pub(crate) bandwidth_mhz: f64,
+}
+
+#[derive(Debug, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub(crate) struct RawSpectrum {
+    pub(crate) xpd_db: Option<f64>,
+    pub(crate) aclr_db: Option<f64>,
+    pub(crate) acs_db: Option<f64>,
+    pub(crate) aclr2_db: Option<f64>,
+    pub(crate) acs2_db: Option<f64>,
 }
 
 #[derive(Debug, Deserialize)]

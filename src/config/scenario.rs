@@ -10,6 +10,7 @@ use crate::error::{Error, Problem, Problems};
 use crate::geometry::frame::LocalFrame;
 use crate::geometry::grid::{BBox, Grid};
 use crate::model::antenna::Sector;
+use crate::model::channel::{Channel, RADIO_CHANNEL, Rejection, Spectrum};
 use crate::model::fading::FadingSpec;
 use crate::model::pathloss::{LawParams, PathLoss};
 use crate::model::scenario::{InstallSettings, LinkSettings, Radio, Receiver, ReceiverAntenna, Scenario, Thresholds};
@@ -189,6 +190,84 @@ fn weather(raw: &RawScenario, file: &str, probs: &mut Problems) -> Weather {
     w
 }
 
+/// `[channels]` (after the `[radio]` carrier, named `radio`) and `[spectrum]`, every problem
+/// recorded.
+fn spectrum(raw: &RawScenario, file: &str, probs: &mut Problems) -> Spectrum {
+    let mut sp = Spectrum::single(raw.radio.frequency_ghz, raw.radio.bandwidth_mhz);
+    for (name, c) in raw.channels.iter().flatten() {
+        let place = Some(format!("[channels] {name}"));
+        let mut ok = true;
+        if name == RADIO_CHANNEL {
+            probs.push(Problem::new(
+                file,
+                place.clone(),
+                "(name)",
+                format!("`{RADIO_CHANNEL}` names the [radio] carrier; give this channel another name"),
+            ));
+            ok = false;
+        }
+        if !name.chars().all(|ch| ch.is_ascii_alphanumeric() || "-_.".contains(ch)) {
+            probs.push(Problem::new(
+                file,
+                place.clone(),
+                "(name)",
+                format!("`{name}` must use only letters, digits, '-', '_' or '.'"),
+            ));
+            ok = false;
+        }
+        for (key, v, r) in [
+            ("centre_ghz", c.centre_ghz, Range::closed(0.1, 300.0, "GHz")),
+            ("bandwidth_mhz", c.bandwidth_mhz, Range::left_open(0.0, 10_000.0, "MHz")),
+        ] {
+            if !r.contains(v) {
+                probs.push(Problem::new(
+                    file,
+                    place.clone(),
+                    key,
+                    format!("value {v} is outside the allowed range {r}"),
+                ));
+                ok = false;
+            }
+        }
+        // Duplicates among the table's channels (one may coincide with the [radio] carrier).
+        if let Some(dup) =
+            sp.channels.iter().skip(1).find(|o| o.centre_ghz == c.centre_ghz && o.bandwidth_mhz == c.bandwidth_mhz)
+        {
+            probs.push(Problem::new(
+                file,
+                place.clone(),
+                "centre_ghz",
+                format!(
+                    "channel `{name}` ({} GHz, {} MHz) duplicates `{}`; give each channel once",
+                    c.centre_ghz, c.bandwidth_mhz, dup.name
+                ),
+            ));
+            ok = false;
+        }
+        if ok {
+            sp.channels.push(Channel { name: name.clone(), centre_ghz: c.centre_ghz, bandwidth_mhz: c.bandwidth_mhz });
+        }
+    }
+    if let Some(s) = &raw.spectrum {
+        let d = Rejection::default();
+        match Rejection::new(
+            s.xpd_db.unwrap_or(d.xpd_db),
+            s.aclr_db.unwrap_or(d.aclr_db),
+            s.acs_db.unwrap_or(d.acs_db),
+            s.aclr2_db,
+            s.acs2_db,
+        ) {
+            Ok(r) => sp.rejection = r,
+            Err(errs) => {
+                for e in errs {
+                    probs.push(Problem::new(file, Some("[spectrum]".into()), e.key, e.message));
+                }
+            }
+        }
+    }
+    sp
+}
+
 impl Scenario {
     /// Reads, parses and validates a scenario file and its node file.
     pub fn load(path: &Path) -> Result<Scenario, Error> {
@@ -332,6 +411,8 @@ impl Scenario {
             ));
         }
         let weather = weather(&raw, &file, &mut probs);
+        let spectrum = spectrum(&raw, &file, &mut probs);
+        let channel_names: Vec<String> = spectrum.channels.iter().map(|c| c.name.clone()).collect();
         let p = &raw.propagation;
         let params = LawParams { exponent: p.exponent, loss_at_1m_db: p.loss_at_1m_db };
         // The gaseous loss: the user's dB/km overrides P.676 at the carrier.
@@ -353,9 +434,9 @@ impl Scenario {
         let dir = path.parent().unwrap_or(Path::new("."));
         let nodes_path = dir.join(&raw.nodes);
         let nodes = match crate::config::read_input(&nodes_path) {
-            Ok(t) => {
-                parse_nodes(&t, &nodes_path.display().to_string(), &raw.antenna).map_err(|e| probs.0.extend(e)).ok()
-            }
+            Ok(t) => parse_nodes(&t, &nodes_path.display().to_string(), &raw.antenna, &channel_names)
+                .map_err(|e| probs.0.extend(e))
+                .ok(),
             Err(e) => {
                 probs.push(Problem::new(
                     &file,
@@ -411,6 +492,38 @@ impl Scenario {
             .map_err(|e| probs.0.extend(e))
             .ok()
         });
+        // Each channel's path loss: its carrier, and the gaseous loss there (the user's value, or
+        // P.676 at that carrier).
+        let channel_pathloss: Vec<PathLoss> = match &pathloss {
+            None => Vec::new(),
+            Some(pl) => spectrum
+                .channels
+                .iter()
+                .enumerate()
+                .filter_map(|(k, c)| {
+                    if k == 0 {
+                        return Some(pl.clone());
+                    }
+                    let gas = match (raw.propagation.absorption_db_per_km, weather.gas) {
+                        (Some(v), _) => v,
+                        (None, GasSource::P676(a)) => a.gamma_db_per_km(c.centre_ghz),
+                        _ => 0.0,
+                    };
+                    pl.at_frequency(c.centre_ghz, gas)
+                        .map_err(|e| {
+                            for q in e {
+                                probs.push(Problem::new(
+                                    &file,
+                                    Some(format!("[channels] {}", c.name)),
+                                    q.key,
+                                    q.message,
+                                ));
+                            }
+                        })
+                        .ok()
+                })
+                .collect(),
+        };
         probs.into_result()?;
         let (pathloss, nodes, bbox, receiver_antenna) = match (pathloss, nodes, bbox, receiver_antenna) {
             (Some(a), Some(b), Some(c), Some(d)) => (a, b, c, d),
@@ -490,6 +603,8 @@ impl Scenario {
             },
             links: LinkSettings { capacity_gap_db, max_spectral_efficiency: max_se },
             weather,
+            channel_pathloss,
+            spectrum,
             install: InstallSettings { declination_date: declination_date.unwrap_or((2026, 1)) },
             surface,
         })

@@ -93,6 +93,25 @@ pub(crate) trait RxCoupling: Copy + Send + Sync {
     fn apply(self, interferer: u32, server: u32, p: f32) -> f32;
 }
 
+/// Nodes on several channels or polarisations: the coupling of each interferer class into
+/// each receiver class (`table[interferer_class * classes + server_class]`), classes being
+/// the (channel, polarisation) pairs in use.
+#[derive(Clone, Copy)]
+pub(crate) struct Coupled<'a> {
+    pub(crate) class: &'a [u32],
+    pub(crate) table: &'a [f32],
+    pub(crate) classes: usize,
+}
+impl RxCoupling for Coupled<'_> {
+    const IDENTITY: bool = false;
+    #[inline(always)]
+    fn apply(self, interferer: u32, server: u32, p: f32) -> f32 {
+        // A cell without a server (u32::MAX) reads the last node's class; its value is unused.
+        let s = (server as usize).min(self.class.len() - 1);
+        p * self.table[self.class[interferer as usize] as usize * self.classes + self.class[s] as usize]
+    }
+}
+
 /// Every node on one channel and polarisation: full coupling (compiles to nothing).
 #[derive(Clone, Copy)]
 pub(crate) struct CoChannel;
@@ -118,6 +137,8 @@ pub(crate) struct NodeK {
     pub(crate) act: f32,
     pub(crate) lut: Option<usize>,
     pub(crate) idx: u32,
+    /// Absorption on the node's channel: β·log₂e, per metre.
+    pub(crate) beta_log2e: f32,
     /// Upper bound of p_i · r^n (1 m-normalised) for the cutoff bound.
     pub(crate) p_max: f64,
 }
@@ -128,6 +149,12 @@ pub(crate) const LUT_LEN: usize = 8192;
 pub(crate) trait Decay: Copy + Send + Sync {
     /// 1 / (L(d)/K) for squared 3-D distance `d2`.
     fn inv(self, d2: f32) -> f32;
+    /// The law for node `n`'s transmissions (its channel's absorption); the laws without
+    /// absorption are the same for every node.
+    #[inline(always)]
+    fn for_node(self, _n: &NodeK) -> Self {
+        self
+    }
 }
 
 #[derive(Clone, Copy)]
@@ -170,6 +197,10 @@ impl Decay for Fast {
     fn inv(self, d2: f32) -> f32 {
         let d2 = d2.max(self.d2min);
         fast_exp2(-self.half_n * fast_log2(d2) - self.beta_log2e * d2.sqrt())
+    }
+    #[inline(always)]
+    fn for_node(self, n: &NodeK) -> Self {
+        Fast { beta_log2e: n.beta_log2e, ..self }
     }
 }
 

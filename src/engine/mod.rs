@@ -18,7 +18,9 @@
 //! - With log-normal shadowing of σ dB every mean power is E\[10^(X/10)\] = exp((σ ln10/10)²/2)
 //!   times the unshadowed one; the best server (an argmax) does not change.
 
-use crate::engine::kernels::{CoChannel, Cube, Decay, Fast, NodeK, Obstructed, Quart, RowBufs, Sq, Unobstructed};
+use crate::engine::kernels::{
+    CoChannel, Coupled, Cube, Decay, Fast, NodeK, Obstructed, Quart, RowBufs, Sq, Unobstructed,
+};
 use crate::engine::row::{RowJob, row};
 use crate::engine::sweep::{Scratch, SweepNode, SweepSpec, sweep};
 use crate::model::scenario::Scenario;
@@ -49,10 +51,13 @@ pub struct LayerSet {
     pub visible: bool,
     /// Availability in rain of a terminal served by its best server (needs `[rain]`).
     pub availability: bool,
+    /// The best server's channel (index in the scenario's channel list).
+    pub channel: bool,
 }
 
 impl LayerSet {
-    /// Every layer but `visible` (which needs a surface).
+    /// Every layer but `visible`, `availability` and `channel` (which need a surface, `[rain]`
+    /// and `[channels]`).
     pub const ALL: LayerSet = LayerSet {
         total: true,
         interference: true,
@@ -61,6 +66,7 @@ impl LayerSet {
         coverage: true,
         visible: false,
         availability: false,
+        channel: false,
     };
     /// Only `total`.
     pub const TOTAL: LayerSet = LayerSet {
@@ -71,6 +77,7 @@ impl LayerSet {
         coverage: false,
         visible: false,
         availability: false,
+        channel: false,
     };
 
     /// Parses a comma-separated list such as `total,sinr`.
@@ -83,6 +90,7 @@ impl LayerSet {
             coverage: false,
             visible: false,
             availability: false,
+            channel: false,
         };
         for name in s.split(',').map(str::trim).filter(|x| !x.is_empty()) {
             match name {
@@ -93,6 +101,7 @@ impl LayerSet {
                 "coverage" => l.coverage = true,
                 "visible" => l.visible = true,
                 "availability" => l.availability = true,
+                "channel" => l.channel = true,
                 other => {
                     return Err(format!("unknown layer `{other}`; allowed: {}", Self::NAMES));
                 }
@@ -105,18 +114,27 @@ impl LayerSet {
     }
 
     /// Every layer name `parse` accepts.
-    pub const NAMES: &'static str = "total, interference, sinr, server, coverage, visible, availability";
+    pub const NAMES: &'static str = "total, interference, sinr, server, coverage, visible, availability, channel";
 
     /// Number of layers selected.
     pub fn count(&self) -> usize {
-        [self.total, self.interference, self.sinr, self.server, self.coverage, self.visible, self.availability]
-            .iter()
-            .filter(|b| **b)
-            .count()
+        [
+            self.total,
+            self.interference,
+            self.sinr,
+            self.server,
+            self.coverage,
+            self.visible,
+            self.availability,
+            self.channel,
+        ]
+        .iter()
+        .filter(|b| **b)
+        .count()
     }
 
     fn needs_server(&self) -> bool {
-        self.interference || self.sinr || self.server || self.coverage || self.availability
+        self.interference || self.sinr || self.server || self.coverage || self.availability || self.channel
     }
 }
 
@@ -150,6 +168,8 @@ pub struct Layers {
     pub visible: Option<Vec<f32>>,
     /// `availability`, percent of an average year.
     pub availability: Option<Vec<f32>>,
+    /// `channel`, the best server's channel index.
+    pub channel: Option<Vec<f32>>,
     /// Node-cell pair evaluations performed.
     pub pair_evaluations: u64,
     /// With a cutoff: the worst cell's upper bound on the dropped power, dB relative to noise.
@@ -178,6 +198,15 @@ pub struct Engine<'s> {
     pub(crate) obs: Option<ObsPrep>,
     /// With `[rain]`: what the availability layer needs.
     pub(crate) rain: Option<crate::engine::availability::RainK>,
+    /// Per node: noise on its channel, mW.
+    pub(crate) noise_of: Vec<f32>,
+    /// Per node: its channel.
+    pub(crate) chan: Vec<u32>,
+    /// Per channel: the coverage model (its noise).
+    pub(crate) cov_of: Vec<crate::model::coverage::CoverageModel>,
+    /// With nodes on several channels or polarisations: each node's class and the coupling
+    /// table between classes.
+    pub(crate) coupling: Option<(Vec<u32>, Vec<f32>, usize)>,
 }
 
 /// The surface prepared for the map: each node's lattice position and antenna altitude.
@@ -220,15 +249,17 @@ impl Engine<'_> {
         let pl = &self.sc.pathloss;
         let d2min = (pl.min_distance_m() * pl.min_distance_m()) as f32;
         let n = pl.exponent();
-        let beta = pl.beta_per_m() as f32;
-        if beta == 0.0 && n == 2.0 {
+        // The special laws hold when no node's channel has absorption; the general one takes
+        // each node's absorption (`Decay::for_node`).
+        let absorbing = self.nodes.iter().any(|k| k.beta_log2e != 0.0);
+        if !absorbing && n == 2.0 {
             self.run_with(Sq(d2min), opts)
-        } else if beta == 0.0 && n == 3.0 {
+        } else if !absorbing && n == 3.0 {
             self.run_with(Cube(d2min), opts)
-        } else if beta == 0.0 && n == 4.0 {
+        } else if !absorbing && n == 4.0 {
             self.run_with(Quart(d2min), opts)
         } else {
-            self.run_with(Fast { d2min, half_n: (n / 2.0) as f32, beta_log2e: beta * std::f32::consts::LOG2_E }, opts)
+            self.run_with(Fast { d2min, half_n: (n / 2.0) as f32, beta_log2e: 0.0 }, opts)
         }
     }
 
@@ -240,7 +271,7 @@ impl Engine<'_> {
         let mut total = alloc(l.total);
         let mut interference = alloc(l.interference);
         let mut sinr = alloc(l.sinr);
-        let mut server = alloc(l.server);
+        let mut server = alloc(l.server || l.channel);
         let mut coverage = alloc(l.coverage);
         let mut visible = alloc(l.visible && self.obs.is_some());
         let mut availability = alloc(l.availability && self.rain.is_some());
@@ -321,7 +352,13 @@ impl Engine<'_> {
                                 zr: &zr[rb * cols..(rb + 1) * cols],
                                 nodes: &o.nodes,
                             };
-                            let res = row(self, d, a, CoChannel, RowJob { r, l, cutoff: opts.cutoff_m, out }, bufs);
+                            let job = RowJob { r, l, cutoff: opts.cutoff_m, out };
+                            let res = match &self.coupling {
+                                None => row(self, d, a, CoChannel, job, bufs),
+                                Some((class, table, classes)) => {
+                                    row(self, d, a, Coupled { class, table, classes: *classes }, job, bufs)
+                                }
+                            };
                             bar.inc(1);
                             res
                         },
@@ -331,7 +368,13 @@ impl Engine<'_> {
             _ => per_row.par_extend(work.into_par_iter().map_init(
                 || RowBufs::new(cols),
                 |bufs, (r, out)| {
-                    let out = row(self, d, Unobstructed, CoChannel, RowJob { r, l, cutoff: opts.cutoff_m, out }, bufs);
+                    let job = RowJob { r, l, cutoff: opts.cutoff_m, out };
+                    let out = match &self.coupling {
+                        None => row(self, d, Unobstructed, CoChannel, job, bufs),
+                        Some((class, table, classes)) => {
+                            row(self, d, Unobstructed, Coupled { class, table, classes: *classes }, job, bufs)
+                        }
+                    };
                     bar.inc(1);
                     out
                 },
@@ -343,11 +386,20 @@ impl Engine<'_> {
             let worst = per_row.iter().map(|x| x.1).fold(0.0, f64::max);
             if worst > 0.0 { lin_to_db(worst / self.noise_mw) } else { -300.0 }
         });
+        // The channel layer reads the server layer (computed for it when not asked for).
+        let channel = l.channel.then(|| {
+            let srv = server.as_deref().unwrap_or_default();
+            srv.iter().map(|&s| if s == crate::NODATA { s } else { self.chan[s as usize] as f32 }).collect()
+        });
+        if !l.server {
+            server = None;
+        }
         Layers {
             total,
             interference,
             sinr,
             server,
+            channel,
             coverage,
             visible,
             availability,

@@ -14,7 +14,6 @@ impl<'s> Engine<'s> {
     /// Prepares the scenario's nodes: local coordinates, unit boresights, linear powers,
     /// pattern tables, and the R-tree.
     pub fn new(sc: &'s Scenario) -> Engine<'s> {
-        let k_inv = db_to_lin(-sc.pathloss.loss_at_1m_db());
         let rx_h = sc.receiver.height_m;
         let mut luts: Vec<(Pattern, Vec<f32>)> = Vec::new();
         let nodes: Vec<NodeK> = sc
@@ -26,6 +25,8 @@ impl<'s> Engine<'s> {
                 // The boresight in the plane: the true azimuth turned by the meridian
                 // convergence at the node (true north at the node is not the plane's north).
                 let az = (n.azimuth_deg + sc.frame.north_deg(n.lon, n.lat)).to_radians();
+                let pl = sc.pathloss_of(n);
+                let k_inv = db_to_lin(-pl.loss_at_1m_db());
                 let p = dbm_to_mw(n.power_dbm) * k_inv;
                 let (p_main, p_side, lut) = match n.pattern.kernel() {
                     GainForm::Flat { main_dbi, side_dbi } => (p * db_to_lin(main_dbi), p * db_to_lin(side_dbi), None),
@@ -51,6 +52,7 @@ impl<'s> Engine<'s> {
                     act: n.activity as f32,
                     lut,
                     idx: i as u32,
+                    beta_log2e: pl.beta_per_m() as f32 * std::f32::consts::LOG2_E,
                     p_max: p * db_to_lin(n.pattern.max_gain_dbi()),
                 }
             })
@@ -97,6 +99,45 @@ impl<'s> Engine<'s> {
             cov: crate::model::coverage::CoverageModel::new(sc.fading, sc.thresholds.sinr_db, sc.noise_dbm()),
             obs,
             rain: crate::engine::availability::RainK::new(sc),
+            noise_of: sc.nodes.iter().map(|n| dbm_to_mw(sc.noise_dbm_of(n)) as f32).collect(),
+            chan: sc.nodes.iter().map(|n| n.channel as u32).collect(),
+            cov_of: (0..sc.spectrum.channels.len())
+                .map(|k| {
+                    let bw = sc.spectrum.channels[k].bandwidth_mhz;
+                    let noise = crate::model::noise::noise_dbm(bw, sc.radio.noise_figure_db);
+                    crate::model::coverage::CoverageModel::new(sc.fading, sc.thresholds.sinr_db, noise)
+                })
+                .collect(),
+            coupling: coupling_table(sc),
         }
     }
+}
+
+/// Each node's class (its channel and polarisation) and the coupling between classes, when
+/// the layout uses more than one class; `None` when every node is co-channel and co-polar.
+fn coupling_table(sc: &Scenario) -> Option<(Vec<u32>, Vec<f32>, usize)> {
+    let key = |n: &crate::model::node::Node| (n.channel, n.polarisation);
+    if !sc.spectrum.couples(sc.nodes.iter().map(key)) {
+        return None;
+    }
+    let mut classes: Vec<(usize, crate::model::node::Polarisation)> = Vec::new();
+    let class: Vec<u32> = sc
+        .nodes
+        .iter()
+        .map(|n| {
+            let k = key(n);
+            classes.iter().position(|c| *c == k).unwrap_or_else(|| {
+                classes.push(k);
+                classes.len() - 1
+            }) as u32
+        })
+        .collect();
+    let m = classes.len();
+    let mut table = vec![0f32; m * m];
+    for (i, &(ci, pi)) in classes.iter().enumerate() {
+        for (s, &(cs, ps)) in classes.iter().enumerate() {
+            table[i * m + s] = sc.spectrum.coupling(ci, pi, cs, ps) as f32;
+        }
+    }
+    Some((class, table, m))
 }

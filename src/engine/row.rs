@@ -64,11 +64,12 @@ pub(crate) fn row_body<D: Decay, A: PairFactor, C: RxCoupling>(
                 for gd in e.tree.locate_in_envelope(env) {
                     keep[gd.data] = true;
                 }
-                let pl = &e.sc.pathloss;
                 let gmax_rx = e.g_omni.max(e.g_signal) as f64;
-                let k_inv = db_to_lin(-pl.loss_at_1m_db());
                 for &k in e.active.iter().filter(|k| !keep[**k]) {
                     let n = &e.nodes[k];
+                    // The node's channel's law (p_max carries its 1 m loss).
+                    let pl = e.sc.pathloss_of(&e.sc.nodes[k]);
+                    let k_inv = db_to_lin(-pl.loss_at_1m_db());
                     let (nx, ny) = (n.x as f64, n.y as f64);
                     let dx = (xmin - nx).max(0.0).max(nx - xmax);
                     let dy = (ymin - ny).max(0.0).max(ny - ymax);
@@ -91,10 +92,10 @@ pub(crate) fn row_body<D: Decay, A: PairFactor, C: RxCoupling>(
         for &k in &cand {
             let n = &e.nodes[k];
             match (n.lut, full) {
-                (None, true) => pass_full(d, Flat, a, n, b),
-                (Some(t), true) => pass_full(d, Table(&e.luts[t]), a, n, b),
-                (None, false) => pass_sum(d, Flat, a, n, &b.xs, &b.ys, &mut b.other),
-                (Some(t), false) => pass_sum(d, Table(&e.luts[t]), a, n, &b.xs, &b.ys, &mut b.other),
+                (None, true) => pass_full(d.for_node(n), Flat, a, n, b),
+                (Some(t), true) => pass_full(d.for_node(n), Table(&e.luts[t]), a, n, b),
+                (None, false) => pass_sum(d.for_node(n), Flat, a, n, &b.xs, &b.ys, &mut b.other),
+                (Some(t), false) => pass_sum(d.for_node(n), Table(&e.luts[t]), a, n, &b.xs, &b.ys, &mut b.other),
             }
             pairs += cols as u64;
         }
@@ -132,8 +133,8 @@ pub(crate) fn row_body<D: Decay, A: PairFactor, C: RxCoupling>(
         for &k in &cand {
             let n = &e.nodes[k];
             match n.lut {
-                None => pass_aimed(d, Flat, a, cp, n, rx, b),
-                Some(t) => pass_aimed(d, Table(&e.luts[t]), a, cp, n, rx, b),
+                None => pass_aimed(d.for_node(n), Flat, a, cp, n, rx, b),
+                Some(t) => pass_aimed(d.for_node(n), Table(&e.luts[t]), a, cp, n, rx, b),
             }
             pairs += cols as u64;
         }
@@ -162,8 +163,8 @@ pub(crate) fn row_body<D: Decay, A: PairFactor, C: RxCoupling>(
             macro_rules! lt_pass {
                 ($lt:expr) => {
                     match n.lut {
-                        None => pass_cov_exact(d, Flat, a, cp, $lt, n, rx, b),
-                        Some(t) => pass_cov_exact(d, Table(&e.luts[t]), a, cp, $lt, n, rx, b),
+                        None => pass_cov_exact(d.for_node(n), Flat, a, cp, $lt, n, rx, b),
+                        Some(t) => pass_cov_exact(d.for_node(n), Table(&e.luts[t]), a, cp, $lt, n, rx, b),
                     }
                 };
             }
@@ -177,8 +178,8 @@ pub(crate) fn row_body<D: Decay, A: PairFactor, C: RxCoupling>(
             } else {
                 let coef = n.act * e2 - n.act * n.act * e1 * e1;
                 match n.lut {
-                    None => pass_cov_strong(d, Flat, a, cp, n, rx, coef, b),
-                    Some(t) => pass_cov_strong(d, Table(&e.luts[t]), a, cp, n, rx, coef, b),
+                    None => pass_cov_strong(d.for_node(n), Flat, a, cp, n, rx, coef, b),
+                    Some(t) => pass_cov_strong(d.for_node(n), Table(&e.luts[t]), a, cp, n, rx, coef, b),
                 }
             }
             pairs += cols as u64;
@@ -192,10 +193,12 @@ pub(crate) fn row_body<D: Decay, A: PairFactor, C: RxCoupling>(
         let mut strong: Vec<(f64, f64)> = Vec::with_capacity(STRONG);
         for (c, out) in cv.iter_mut().enumerate() {
             let sig = (e.g_signal * b.best[c]) as f64;
+            // The model of the server's channel (its noise).
+            let cov = &e.cov_of[e.chan[(b.server[c] as usize).min(e.chan.len() - 1)] as usize];
             *out = if b.server[c] == u32::MAX || sig <= 0.0 {
                 NODATA
             } else if exact {
-                e.cov.from_log2_product(sig, (b.cacc[c] as f64).log2()) as f32
+                cov.from_log2_product(sig, (b.cacc[c] as f64).log2()) as f32
             } else {
                 // The residual: the sums over every interferer less the strong ones.
                 strong.clear();
@@ -211,12 +214,14 @@ pub(crate) fn row_body<D: Decay, A: PairFactor, C: RxCoupling>(
                     var -= (act * e2 - act * act * e1 * e1) * q * q;
                 }
                 // Not finite only for a combination the scenario check refuses.
-                let p = e.cov.evaluate(sig, &strong, ap, var);
+                let p = cov.evaluate(sig, &strong, ap, var);
                 if p.is_finite() { p as f32 } else { NODATA }
             };
         }
     }
     for c in 0..cols {
+        // The noise on the server's channel.
+        let noise = if b.server[c] == u32::MAX { noise } else { e.noise_of[b.server[c] as usize] };
         let all = if full { b.other[c] + b.bestw[c] } else { b.other[c] };
         let interf = if aimed_needed { b.iacc[c] } else { e.g_omni * b.other[c] };
         if let Some(t) = t.as_deref_mut() {
@@ -255,7 +260,7 @@ pub(crate) fn row_body<D: Decay, A: PairFactor, C: RxCoupling>(
         }
     }
     if let (Some(av), Some(rk)) = (av, &e.rain) {
-        rk.row(&b.ux[..cols], &b.uy[..cols], &b.tinv[..cols], av);
+        rk.row(&b.server[..cols], &b.ux[..cols], &b.uy[..cols], &b.tinv[..cols], av);
     }
     (pairs, dropped_mw)
 }

@@ -233,6 +233,7 @@ pub fn html(
         "lat",
         "lon",
         "height m",
+        "channel / pol.",
         "azimuth to set, true °",
         "declination °",
         "azimuth magnetic °",
@@ -251,12 +252,15 @@ pub fn html(
     h += "</tr></thead><tbody>";
     for r in &sheet.rows {
         h += &format!(
-            "<tr><td class=\"l\">{}</td><td class=\"l\">{}</td><td>{:.6}</td><td>{:.6}</td><td>{}</td>{}<td>{:.2}</td><td>{:.1}</td><td class=\"l\">{}</td><td>{}</td><td>{}</td><td>{:.1}</td><td>{:.2}</td></tr>",
+            "<tr><td class=\"l\">{}</td><td class=\"l\">{}</td><td>{:.6}</td><td>{:.6}</td><td>{}</td><td class=\"l\">{} ({} GHz) / {}</td>{}<td>{:.2}</td><td>{:.1}</td><td class=\"l\">{}</td><td>{}</td><td>{}</td><td>{:.1}</td><td>{:.2}</td></tr>",
             esc(&r.id),
             esc(&r.name),
             r.lat,
             r.lon,
             r.height_m,
+            esc(&r.channel),
+            r.centre_ghz,
+            esc(&r.polarisation),
             if r.differs_from_plan {
                 format!("<td class=\"warn\">{:.1} (planned {:.1})</td>", r.azimuth_true_deg, r.azimuth_planned_deg)
             } else {

@@ -102,6 +102,9 @@ pub struct Summary {
     /// Fraction of served cells at or above the availability target.
     #[serde(skip_serializing_if = "Option::is_none")]
     pub availability_ok_fraction: Option<f64>,
+    /// With the `channel` layer: the channel names by index (the layer's values).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub channels: Option<Vec<String>>,
     /// With `[draw]`: layouts averaged (total and interference in mW, SINR in dB).
     #[serde(skip_serializing_if = "Option::is_none")]
     pub realizations: Option<usize>,

@@ -69,6 +69,12 @@ pub struct InstallRow {
     pub lon: f64,
     /// Mounting height, m.
     pub height_m: f64,
+    /// Channel to set (its name) and its centre frequency, GHz.
+    pub channel: String,
+    /// Centre frequency of that channel, GHz.
+    pub centre_ghz: f64,
+    /// Polarisation to set, `V` or `H`.
+    pub polarisation: String,
     /// Boresight to set, degrees from true north: the geodesic azimuth to the peer, or the
     /// planned azimuth for a node without one.
     pub azimuth_true_deg: f64,
@@ -138,8 +144,9 @@ pub fn sheet(sc: &Scenario) -> Result<InstallSheet, String> {
                 let drop = sc.surface().map_or(0.0, |s| horiz / (2.0 * s.earth_k() * EARTH_RADIUS_M));
                 let tilt = (e0.height_m - e1.height_m).atan2(horiz).to_degrees() + drop.to_degrees();
                 let obs = sc.node_to_node(n, p, Edges::Three);
-                let level =
-                    Budget::aligned(&sc.pathloss, n, g).obstructed(obs.loss_db).received_dbm(p.pattern.max_gain_dbi());
+                let level = Budget::aligned(sc.pathloss_of(n), n, g)
+                    .obstructed(obs.loss_db)
+                    .received_dbm(p.pattern.max_gain_dbi());
                 (to_peer, Some((tilt * 100.0).round() / 100.0), Some((level * 100.0).round() / 100.0))
             }
             None => (n.azimuth_deg, None, None),
@@ -148,6 +155,9 @@ pub fn sheet(sc: &Scenario) -> Result<InstallSheet, String> {
         rows.push(InstallRow {
             id: n.id.clone(),
             name: n.name.clone().unwrap_or_default(),
+            channel: sc.spectrum.channels[n.channel].name.clone(),
+            centre_ghz: sc.spectrum.channels[n.channel].centre_ghz,
+            polarisation: n.polarisation.name().into(),
             lat: n.lat,
             lon: n.lon,
             height_m: n.height_m,
@@ -180,15 +190,18 @@ pub fn csv(s: &InstallSheet) -> String {
         "# keep-out: far-field distance where EIRP/(4 pi d^2) falls to {} W/m2 ({}); magnetic azimuth = true azimuth - declination (WMM, {}); estimates only: follow local exposure rules and licensed practice\n",
         s.limit_w_m2, s.limit_name, s.declination_date
     );
-    out += "id,name,lat,lon,height_m,azimuth_true_deg,azimuth_planned_deg,differs_from_plan,declination_deg,azimuth_magnetic_deg,peer,downtilt_deg,expected_at_peer_dbm,eirp_dbm,keepout_m\n";
+    out += "id,name,lat,lon,height_m,channel,centre_ghz,polarisation,azimuth_true_deg,azimuth_planned_deg,differs_from_plan,declination_deg,azimuth_magnetic_deg,peer,downtilt_deg,expected_at_peer_dbm,eirp_dbm,keepout_m\n";
     for r in &s.rows {
         out += &format!(
-            "{},\"{}\",{:.7},{:.7},{},{},{},{},{},{},{},{},{},{},{}\n",
+            "{},\"{}\",{:.7},{:.7},{},{},{},{},{},{},{},{},{},{},{},{},{},{}\n",
             r.id,
             r.name.replace('"', "'"),
             r.lat,
             r.lon,
             r.height_m,
+            r.channel,
+            r.centre_ghz,
+            r.polarisation,
             r.azimuth_true_deg,
             r.azimuth_planned_deg,
             r.differs_from_plan,

@@ -91,6 +91,10 @@ pub struct LinkRow {
     pub obstruction_db: f64,
     /// What limits the clearance: a building's label or "ground at N m" (from the `from` end).
     pub limited_by: Option<String>,
+    /// The link's channel (both ends on it).
+    pub channel: String,
+    /// The link's polarisation (both ends), `V` or `H`.
+    pub polarisation: String,
     /// Gaseous loss on the path (included in `path_loss_db`), dB.
     pub gas_db: f64,
     /// Fade margin: how far the wanted path can fade before the SINR reaches the threshold,
@@ -135,14 +139,15 @@ pub const CLEARANCE_RULE: f64 = 0.6;
 pub fn links(sc: &Scenario, mc: Option<(usize, u64)>) -> Vec<LinkRow> {
     let pos: Vec<Endpoint> = sc.nodes.iter().map(|n| sc.node_end(n)).collect();
     let pairs = crate::model::node::peer_pairs(&sc.nodes);
-    let noise_dbm = sc.noise_dbm();
-    let cov = CoverageModel::new(sc.fading, sc.thresholds.sinr_db, noise_dbm);
     pairs
         .par_iter()
         .enumerate()
         .map(|(k, &(f, t))| {
             let (a, b) = (&sc.nodes[f], &sc.nodes[t]);
             let link_mc = mc.map(|(n, seed)| (n, seed.wrapping_add(k as u64)));
+            // The receiving end's noise on its channel.
+            let noise_dbm = sc.noise_dbm_of(b);
+            let cov = CoverageModel::new(sc.fading, sc.thresholds.sinr_db, noise_dbm);
             one(sc, &pos, f, t, a, b, &cov, noise_dbm, link_mc)
         })
         .collect()
@@ -165,7 +170,7 @@ fn one(
     let (brg, back) = link_azimuths(a, b);
     let path = Geometry::between(&pos[f], &pos[t]).with_bearings(brg, back);
     let obs = sc.node_to_node(a, b, Edges::Three);
-    let link = Budget::new(&sc.pathloss, a, path).obstructed(obs.loss_db);
+    let link = Budget::new(sc.pathloss_of(a), a, path).obstructed(obs.loss_db);
     let length_m = link.geometry.distance_m;
     let mis_a = angle_diff(a.azimuth_deg, brg);
     let mis_b = angle_diff(b.azimuth_deg, back);
@@ -180,10 +185,11 @@ fn one(
         if i == f || i == t {
             continue;
         }
-        let path = Budget::new(&sc.pathloss, n, Geometry::between(&pos[i], &pos[t]))
+        let path = Budget::new(sc.pathloss_of(n), n, Geometry::between(&pos[i], &pos[t]))
             .obstructed(sc.node_to_node(n, b, Edges::Three).loss_db);
         let g_rx = gain_toward(b, path.geometry.bearing_from_rx_deg);
-        contrib.push((i, n.activity, dbm_to_mw(path.received_dbm(g_rx))));
+        // What reaches b's receiver on b's channel and polarisation.
+        contrib.push((i, n.activity, dbm_to_mw(path.received_dbm(g_rx)) * sc.coupling(n, b)));
         geoms.push(path.geometry);
     }
     let i_mw: f64 = contrib.iter().map(|c| c.1 * c.2).sum();
@@ -208,7 +214,7 @@ fn one(
             share: round_dp(c.1 * c.2 / i_mw, 4),
         })
         .collect();
-    let bw_hz = sc.radio.bandwidth_mhz * 1e6;
+    let bw_hz = sc.spectrum.channels[a.channel].bandwidth_mhz * 1e6;
     let se = (1.0 + sinr / db_to_lin(sc.links.capacity_gap_db)).log2().min(sc.links.max_spectral_efficiency);
     let margin_db = sinr_db - sc.thresholds.sinr_db;
     let wanted = weather::Path { tx: a, rx_lat: b.lat, geometry: &link.geometry };
@@ -251,6 +257,8 @@ fn one(
         clearance_ok: obs.clearance_f1 >= CLEARANCE_RULE,
         obstruction_db: round_dp(obs.loss_db, 2),
         limited_by: obs.limit.and_then(|l| sc.surface().map(|s| s.describe(&l))),
+        channel: sc.spectrum.channels[a.channel].name.clone(),
+        polarisation: a.polarisation.name().into(),
         gas_db: round_dp(wx.gas_db, 2),
         fade_margin_db: wx.fade_margin_db.map(|m| round_dp(m, 2)),
         rain_fade_db: wx.rain_fade_db.map(|v| round_dp(v, 2)),
@@ -314,7 +322,7 @@ impl LinkRow {
 /// CSV with one row per link.
 pub fn csv(rows: &[LinkRow]) -> String {
     let mut s = String::from(
-        "from,to,length_m,bearing_deg,misalign_from_deg,misalign_to_deg,misaligned_from,misaligned_to,azimuth_from_should_deg,azimuth_to_should_deg,tx_gain_dbi,rx_gain_dbi,path_loss_db,signal_dbm,interference_dbm,noise_dbm,sinr_db,coverage,margin_db,capacity_mbps,passes,line_of_sight,clearance_f1,clearance_ok,obstruction_db,limited_by,top_interferers,gas_db,fade_margin_db,rain_fade_db,availability_pct,outage_min_per_year,availability_bound,meets_target,mc_estimate,mc_low,mc_high\n",
+        "from,to,length_m,bearing_deg,misalign_from_deg,misalign_to_deg,misaligned_from,misaligned_to,azimuth_from_should_deg,azimuth_to_should_deg,tx_gain_dbi,rx_gain_dbi,path_loss_db,signal_dbm,interference_dbm,noise_dbm,sinr_db,coverage,margin_db,capacity_mbps,passes,line_of_sight,clearance_f1,clearance_ok,obstruction_db,limited_by,top_interferers,gas_db,fade_margin_db,rain_fade_db,availability_pct,outage_min_per_year,availability_bound,meets_target,channel,polarisation,mc_estimate,mc_low,mc_high\n",
     );
     for r in rows {
         let mc = r
@@ -323,7 +331,7 @@ pub fn csv(rows: &[LinkRow]) -> String {
             .map(|m| format!("{:.4},{:.4},{:.4}", m.estimate, m.low, m.high))
             .unwrap_or(",,".into());
         s += &format!(
-            "{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},\"{}\",\"{}\",{},{},{},{},{},{},{},{}\n",
+            "{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},\"{}\",\"{}\",{},{},{},{},{},{},{},{},{},{}\n",
             r.from,
             r.to,
             r.length_m,
@@ -358,6 +366,8 @@ pub fn csv(rows: &[LinkRow]) -> String {
             opt(r.outage_min_per_year),
             r.availability_bound.map(Bound::name).unwrap_or(""),
             r.meets_target.map(|b| b.to_string()).unwrap_or_default(),
+            r.channel,
+            r.polarisation,
             mc
         );
     }

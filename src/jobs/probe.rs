@@ -30,6 +30,13 @@ pub struct Contribution {
     pub power_dbm: f64,
     /// Fraction of time the node transmits.
     pub activity: f64,
+    /// Its channel's name.
+    pub channel: String,
+    /// Its polarisation (`V` or `H`).
+    pub polarisation: String,
+    /// Coupling into a receiver on the server's channel and polarisation, dB (0 co-channel;
+    /// none when the channels are too far apart to couple).
+    pub coupling_db: Option<f64>,
     /// Whether the straight ray from the node clears the surface.
     pub line_of_sight: bool,
     /// Obstruction (diffraction) loss, dB, included in `power_dbm`.
@@ -119,7 +126,9 @@ pub fn probe_with(sc: &Scenario, lat: f64, lon: f64, mc: Option<(usize, u64)>) -
         .nodes
         .iter()
         .zip(&obs)
-        .map(|(n, o)| Budget::new(&sc.pathloss, n, Geometry::between(&sc.node_end(n), &point)).obstructed(o.loss_db))
+        .map(|(n, o)| {
+            Budget::new(sc.pathloss_of(n), n, Geometry::between(&sc.node_end(n), &point)).obstructed(o.loss_db)
+        })
         .collect();
     // The server is the strongest node that transmits (the configuration refuses a layout in
     // which none does).
@@ -148,6 +157,12 @@ pub fn probe_with(sc: &Scenario, lat: f64, lon: f64, mc: Option<(usize, u64)>) -
                 path_loss_db: b.path_loss_db,
                 power_dbm: b.received_dbm(rx_gain),
                 activity: n.activity,
+                channel: sc.spectrum.channels[n.channel].name.clone(),
+                polarisation: n.polarisation.name().into(),
+                coupling_db: {
+                    let c = sc.coupling(n, &sc.nodes[server]);
+                    (c > 0.0).then(|| crate::model::units::lin_to_db(c))
+                },
                 line_of_sight: obs[i].line_of_sight,
                 obstruction_db: b.obstruction_db,
                 nu: sc.surface().and(obs[i].limit).map(|l| l.nu),
@@ -157,17 +172,19 @@ pub fn probe_with(sc: &Scenario, lat: f64, lon: f64, mc: Option<(usize, u64)>) -
         .collect();
     let total_mw: f64 =
         budgets.iter().zip(&sc.nodes).map(|(b, n)| n.activity * dbm_to_mw(b.isotropic_dbm() + g_omni)).sum();
+    // What each interferer puts into the server's channel and polarisation.
+    let coupled = |c: &Contribution| c.coupling_db.map_or(0.0, |k| dbm_to_mw(c.power_dbm + k));
     let interference_mw: f64 =
-        contributions.iter().filter(|c| c.index != server).map(|c| c.activity * dbm_to_mw(c.power_dbm)).sum();
+        contributions.iter().filter(|c| c.index != server).map(|c| c.activity * coupled(c)).sum();
     let signal_mw = dbm_to_mw(contributions[server].power_dbm);
-    let noise_dbm = sc.noise_dbm();
+    let noise_dbm = sc.noise_dbm_of(&sc.nodes[server]);
     // Means of the shadowed powers: every mean is E[10^(X/10)] times the unshadowed one (the
     // coverage model takes the unshadowed ones and draws the shadowing itself).
     let shadow = sc.fading.shadow_mean();
     let sinr_db = mw_to_dbm(signal_mw * shadow / (interference_mw * shadow + dbm_to_mw(noise_dbm)));
     let cov = crate::model::coverage::CoverageModel::new(sc.fading, sc.thresholds.sinr_db, noise_dbm);
     let interferers: Vec<(f64, f64)> =
-        contributions.iter().filter(|c| c.index != server).map(|c| (c.activity, dbm_to_mw(c.power_dbm))).collect();
+        contributions.iter().filter(|c| c.index != server).map(|c| (c.activity, coupled(c))).collect();
     let coverage = cov.probability(signal_mw, &interferers);
     let monte_carlo = mc.map(|(trials, seed)| {
         let (estimate, low, high) = cov.monte_carlo(signal_mw, &interferers, trials, seed);
@@ -179,7 +196,7 @@ pub fn probe_with(sc: &Scenario, lat: f64, lon: f64, mc: Option<(usize, u64)>) -
         .filter(|c| c.index != server)
         .map(|c| {
             let p = Path { tx: &sc.nodes[c.index], rx_lat: lat, geometry: &budgets[c.index].geometry };
-            (p, c.activity * dbm_to_mw(c.power_dbm) * shadow)
+            (p, c.activity * coupled(c) * shadow)
         })
         .collect();
     let wx = figures(sc, &wanted, signal_mw * shadow, &intf, dbm_to_mw(noise_dbm), sinr_db);

@@ -39,7 +39,7 @@ impl Path<'_> {
         rain_path_with(
             rain,
             c,
-            sc.pathloss.frequency_ghz(),
+            sc.pathloss_of(self.tx).frequency_ghz(),
             g.distance_m,
             g.east_m.hypot(g.north_m),
             self.tx.polarisation.cos_2tau(),
@@ -61,11 +61,11 @@ pub(crate) fn figures(
 ) -> Figures {
     let w = sc.weather();
     let thr = sc.thresholds.sinr_db;
-    let gas_db = sc.pathloss.absorption_db_per_km() * wanted.geometry.distance_m / 1000.0;
+    let gas_db = sc.pathloss_of(wanted.tx).absorption_db_per_km() * wanted.geometry.distance_m / 1000.0;
     let Some(rain) = w.rain else {
         return Figures { gas_db, fade_margin_db: Some(sinr_db - thr), rain_fade_db: None, availability: None };
     };
-    let coefficients = RainCoefficients::at(sc.pathloss.frequency_ghz());
+    let coefficients = RainCoefficients::at(sc.pathloss_of(wanted.tx).frequency_ghz());
     let wp = wanted.rain(sc, &rain, &coefficients);
     let (fade_margin_db, availability) = match w.interferers {
         InterfererFade::None => (Some(sinr_db - thr), wp.availability(sinr_db - thr)),

@@ -1,6 +1,7 @@
 //! The physics in double precision: units, noise, path loss, antennas, fading, coverage.
 
 pub mod antenna;
+pub mod channel;
 pub mod coverage;
 pub mod draw;
 pub mod fading;

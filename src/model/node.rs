@@ -27,6 +27,8 @@ pub struct Node {
     pub name: Option<String>,
     /// Polarisation of the antenna.
     pub polarisation: Polarisation,
+    /// Index of its channel in the scenario's channel list (0: the `[radio]` carrier).
+    pub channel: usize,
 }
 
 /// Linear polarisation of an antenna.

@@ -139,6 +139,10 @@ pub struct Scenario {
     pub(crate) install: InstallSettings,
     /// Gaseous loss source, rain climate and availability target.
     pub(crate) weather: crate::model::weather::Weather,
+    /// Channels and rejection figures.
+    pub(crate) spectrum: crate::model::channel::Spectrum,
+    /// The path loss on each channel (index as `spectrum.channels`; 0 is `pathloss`).
+    pub(crate) channel_pathloss: Vec<PathLoss>,
     /// Ground and buildings (`[surface]`), if given: every path is checked against it.
     pub(crate) surface: Option<std::sync::Arc<Surface>>,
 }
@@ -268,6 +272,27 @@ impl Scenario {
     pub fn weather(&self) -> &crate::model::weather::Weather {
         &self.weather
     }
+    /// Whether any node works on a `[channels]` channel (not the `[radio]` carrier).
+    pub fn uses_channels(&self) -> bool {
+        self.nodes.iter().any(|n| n.channel != 0)
+    }
+    /// Channels and rejection figures.
+    pub fn spectrum(&self) -> &crate::model::channel::Spectrum {
+        &self.spectrum
+    }
+    /// The path loss of a node's transmissions (its channel's carrier and gaseous loss).
+    pub fn pathloss_of(&self, n: &Node) -> &PathLoss {
+        &self.channel_pathloss[n.channel]
+    }
+    /// Receiver noise on a node's channel, dBm.
+    pub fn noise_dbm_of(&self, n: &Node) -> f64 {
+        crate::model::noise::noise_dbm(self.spectrum.channels[n.channel].bandwidth_mhz, self.radio.noise_figure_db)
+    }
+    /// Coupling of `tx`'s transmissions into a receiver working on `rx`'s channel and
+    /// polarisation (linear).
+    pub fn coupling(&self, tx: &Node, rx: &Node) -> f64 {
+        self.spectrum.coupling(tx.channel, tx.polarisation, rx.channel, rx.polarisation)
+    }
     /// The same scenario with other fading and shadowing.
     pub fn with_fading(self, fading: FadingSpec) -> Scenario {
         Scenario { fading, ..self }
@@ -287,6 +312,8 @@ impl Scenario {
         thresholds: Thresholds,
     ) -> Scenario {
         let (lon, lat) = grid.bbox().centre();
+        let spectrum = crate::model::channel::Spectrum::single(pathloss.frequency_ghz(), radio.bandwidth_mhz);
+        let channel_pathloss = vec![pathloss.clone()];
         Scenario {
             name: "in-code".into(),
             path: PathBuf::from("(in code)"),
@@ -304,6 +331,8 @@ impl Scenario {
             links: LinkSettings { capacity_gap_db: 3.0, max_spectral_efficiency: 8.0 },
             install: InstallSettings { declination_date: (2026, 1) },
             weather: crate::model::weather::Weather::default(),
+            spectrum,
+            channel_pathloss,
             surface: None,
         }
     }

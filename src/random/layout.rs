@@ -85,6 +85,7 @@ pub fn layout(sc: &Scenario, spec: &DrawSpec, seed: u64) -> Vec<Node> {
             peer: None,
             name: None,
             polarisation: spec.polarisation,
+            channel: 0,
         }
     });
     match spec.mode {

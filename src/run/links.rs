@@ -55,6 +55,7 @@ pub fn run_links(sc: &Scenario, opts: &LinksOptions) -> Result<LinksResult, Erro
             server: false,
             visible: false,
             availability: sc.weather().rain.is_some(),
+            channel: false,
         };
         check_memory(sc, layers.count(), opts.max_memory_mib)?;
         let l = Engine::new(sc).run(&Options { layers, cutoff_m: None, progress: false });

@@ -97,7 +97,7 @@ pub fn markers_and_links(sc: &Scenario) -> (Vec<Marker>, Vec<(usize, usize)>) {
 
 /// Every file name `map` can write: a rerun retires those it does not write again.
 pub fn map_file_names() -> Vec<String> {
-    let stems = ["total", "interference", "sinr", "server", "coverage", "visible", "availability"];
+    let stems = ["total", "interference", "sinr", "server", "coverage", "visible", "availability", "channel"];
     let mut v: Vec<String> = stems.iter().flat_map(|s| crate::io::writer::layer_file_names(s)).collect();
     v.extend(["hotspots.geojson", "layout.geojson", "summary.json"].map(String::from));
     v
@@ -129,7 +129,7 @@ pub fn run_map(sc: &Scenario, opts: &MapOptions) -> Result<MapResult, Error> {
         unit,
         data,
         outlines,
-        picture: name != "server",
+        picture: name != "server" && name != "channel",
     };
     if let Some(t) = &layers.total {
         files.extend(write_layer(&mut st, &cx, &layer("total", "Total received", "dBm", t, Vec::new()))?);
@@ -164,6 +164,9 @@ pub fn run_map(sc: &Scenario, opts: &MapOptions) -> Result<MapResult, Error> {
         let title = "Nodes in line of sight";
         files.extend(write_layer(&mut st, &cx, &layer("visible", title, "nodes", v, Vec::new()))?);
     }
+    if let Some(v) = layers.channel.as_ref().filter(|_| opts.realizations <= 1) {
+        files.extend(write_layer(&mut st, &cx, &layer("channel", "Server's channel", "", v, Vec::new()))?);
+    }
     let target_pct = sc.weather().target_pct;
     if let Some(a) = &layers.availability {
         let below = outlines(&short_of_target(grid, a, target_pct));
@@ -189,6 +192,7 @@ pub fn run_map(sc: &Scenario, opts: &MapOptions) -> Result<MapResult, Error> {
         ("coverage", layers.coverage.is_some()),
         ("visible", layers.visible.is_some()),
         ("availability", layers.availability.is_some()),
+        ("channel", layers.channel.is_some() && opts.realizations <= 1),
     ]
     .into_iter()
     .filter(|(_, on)| *on)
@@ -251,6 +255,7 @@ pub fn run_map(sc: &Scenario, opts: &MapOptions) -> Result<MapResult, Error> {
             let ok = a.iter().filter(|v| **v != crate::NODATA && **v as f64 >= target_pct - 1e-9).count();
             (served > 0).then(|| round_dp(ok as f64 / served as f64, 6))
         }),
+        channels: layers.channel.as_ref().map(|_| sc.spectrum().channels.iter().map(|c| c.name.clone()).collect()),
         realizations: sc.draw.as_ref().map(|_| opts.realizations.max(1)),
         drawn_nodes: sc.draw.as_ref().map(|_| sc.nodes.iter().filter(|n| n.id.starts_with("draw-")).count()),
     };
@@ -289,6 +294,7 @@ fn ensemble(sc: &Scenario, spec: &crate::model::draw::DrawSpec, eopts: &Options,
         to_mw(l);
     }
     acc.server = None;
+    acc.channel = None;
     for i in 1..n {
         let sci = Scenario { nodes: crate::random::layout::layout(sc, spec, spec.seed + i as u64), ..sc.clone() };
         let mut l = Engine::new(&sci).run(eopts);

@@ -20,6 +20,7 @@ pub fn node(id: &str, lon: f64, lat: f64, azimuth_deg: f64, pattern: Pattern, po
         peer: None,
         name: None,
         polarisation: Default::default(),
+        channel: 0,
     }
 }
 

@@ -179,6 +179,12 @@ impl PathLoss {
         Ok(PathLoss { law, frequency_ghz, loss_at_1m_db, absorption_db_per_km, min_distance_m })
     }
 
+    /// The same law at another carrier with another absorption (checked as in [`Self::new`]):
+    /// the path loss of a node on another channel.
+    pub fn at_frequency(&self, frequency_ghz: f64, absorption_db_per_km: f64) -> Result<Self, Vec<ModelError>> {
+        Self::with_law(self.law.clone(), frequency_ghz, absorption_db_per_km, self.min_distance_m)
+    }
+
     /// The same model with the minimum distance changed (checked as in [`Self::new`]).
     pub fn with_min_distance(&self, min_distance_m: f64) -> Result<Self, Vec<ModelError>> {
         Self::with_law(self.law.clone(), self.frequency_ghz, self.absorption_db_per_km, min_distance_m)
