@@ -93,22 +93,23 @@ pub(crate) trait RxCoupling: Copy + Send + Sync {
     fn apply(self, interferer: u32, server: u32, p: f32) -> f32;
 }
 
-/// Nodes on several channels or polarisations: the coupling of each interferer class into
-/// each receiver class (`table[interferer_class * classes + server_class]`), classes being
-/// the (channel, polarisation) pairs in use.
+/// Nodes on several channels or polarisations: the coupling of each interferer class
+/// (channel and polarisation) into a receiver served by each node,
+/// `by_server[interferer_class * nodes + server]`: one lookup a pair (the row of the
+/// interferer's class is the same over a node's cells).
 #[derive(Clone, Copy)]
 pub(crate) struct Coupled<'a> {
     pub(crate) class: &'a [u32],
-    pub(crate) table: &'a [f32],
-    pub(crate) classes: usize,
+    pub(crate) by_server: &'a [f32],
 }
 impl RxCoupling for Coupled<'_> {
     const IDENTITY: bool = false;
     #[inline(always)]
     fn apply(self, interferer: u32, server: u32, p: f32) -> f32 {
-        // A cell without a server (u32::MAX) reads the last node's class; its value is unused.
-        let s = (server as usize).min(self.class.len() - 1);
-        p * self.table[self.class[interferer as usize] as usize * self.classes + self.class[s] as usize]
+        let nodes = self.class.len();
+        // A cell without a server (u32::MAX) reads the last node's entry; its value is unused.
+        let s = (server as usize).min(nodes - 1);
+        p * self.by_server[self.class[interferer as usize] as usize * nodes + s]
     }
 }
 
@@ -256,6 +257,9 @@ pub(crate) struct RowBufs {
     pub(crate) topi: Vec<u32>,
     /// One node's received power per cell, for the strong-set insertion.
     pub(crate) qbuf: Vec<f32>,
+    /// With channels: the aimed interference summed per interferer class (channel and
+    /// polarisation), coupled into each cell's server class at the end of the pass.
+    pub(crate) iacc_cls: Vec<Vec<f32>>,
 }
 
 impl RowBufs {
@@ -276,6 +280,7 @@ impl RowBufs {
             top: vec![0.0; STRONG * n],
             topi: vec![u32::MAX; STRONG * n],
             qbuf: vec![0.0; n],
+            iacc_cls: Vec::new(),
         }
     }
 }

@@ -204,9 +204,27 @@ pub struct Engine<'s> {
     pub(crate) chan: Vec<u32>,
     /// Per channel: the coverage model (its noise).
     pub(crate) cov_of: Vec<crate::model::coverage::CoverageModel>,
-    /// With nodes on several channels or polarisations: each node's class and the coupling
-    /// table between classes.
-    pub(crate) coupling: Option<(Vec<u32>, Vec<f32>, usize)>,
+    /// With nodes on several channels or polarisations: the coupling tables.
+    pub(crate) coupling: Option<CouplingPrep>,
+}
+
+/// The coupling between the (channel, polarisation) classes of the nodes.
+pub(crate) struct CouplingPrep {
+    /// Each node's class.
+    pub(crate) class: Vec<u32>,
+    /// `table[interferer_class * classes + receiver_class]`.
+    pub(crate) table: Vec<f32>,
+    /// Number of classes.
+    pub(crate) classes: usize,
+    /// `by_server[interferer_class * nodes + server]`: the table row read through each node's
+    /// class, for the per-pair kernels.
+    pub(crate) by_server: Vec<f32>,
+}
+
+impl CouplingPrep {
+    fn kernel(&self) -> Coupled<'_> {
+        Coupled { class: &self.class, by_server: &self.by_server }
+    }
 }
 
 /// The surface prepared for the map: each node's lattice position and antenna altitude.
@@ -355,9 +373,7 @@ impl Engine<'_> {
                             let job = RowJob { r, l, cutoff: opts.cutoff_m, out };
                             let res = match &self.coupling {
                                 None => row(self, d, a, CoChannel, job, bufs),
-                                Some((class, table, classes)) => {
-                                    row(self, d, a, Coupled { class, table, classes: *classes }, job, bufs)
-                                }
+                                Some(cp) => row(self, d, a, cp.kernel(), job, bufs),
                             };
                             bar.inc(1);
                             res
@@ -371,9 +387,7 @@ impl Engine<'_> {
                     let job = RowJob { r, l, cutoff: opts.cutoff_m, out };
                     let out = match &self.coupling {
                         None => row(self, d, Unobstructed, CoChannel, job, bufs),
-                        Some((class, table, classes)) => {
-                            row(self, d, Unobstructed, Coupled { class, table, classes: *classes }, job, bufs)
-                        }
+                        Some(cp) => row(self, d, Unobstructed, cp.kernel(), job, bufs),
                     };
                     bar.inc(1);
                     out

@@ -115,7 +115,7 @@ impl<'s> Engine<'s> {
 
 /// Each node's class (its channel and polarisation) and the coupling between classes, when
 /// the layout uses more than one class; `None` when every node is co-channel and co-polar.
-fn coupling_table(sc: &Scenario) -> Option<(Vec<u32>, Vec<f32>, usize)> {
+fn coupling_table(sc: &Scenario) -> Option<crate::engine::CouplingPrep> {
     let key = |n: &crate::model::node::Node| (n.channel, n.polarisation);
     if !sc.spectrum.couples(sc.nodes.iter().map(key)) {
         return None;
@@ -139,5 +139,12 @@ fn coupling_table(sc: &Scenario) -> Option<(Vec<u32>, Vec<f32>, usize)> {
             table[i * m + s] = sc.spectrum.coupling(ci, pi, cs, ps) as f32;
         }
     }
-    Some((class, table, m))
+    let nodes = class.len();
+    let mut by_server = vec![0f32; m * nodes];
+    for i in 0..m {
+        for (s, &cs) in class.iter().enumerate() {
+            by_server[i * nodes + s] = table[i * m + cs as usize];
+        }
+    }
+    Some(crate::engine::CouplingPrep { class, table, classes: m, by_server })
 }

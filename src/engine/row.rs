@@ -130,13 +130,49 @@ pub(crate) fn row_body<D: Decay, A: PairFactor, C: RxCoupling>(
         // An omni receiver is the aimed kernel with an always-true beam test.
         let rx = e.rx_aim.unwrap_or((-1.0, e.g_omni, e.g_omni));
         b.iacc.fill(0.0);
-        for &k in &cand {
-            let n = &e.nodes[k];
-            match n.lut {
-                None => pass_aimed(d.for_node(n), Flat, a, cp, n, rx, b),
-                Some(t) => pass_aimed(d.for_node(n), Table(&e.luts[t]), a, cp, n, rx, b),
+        match &e.coupling {
+            None => {
+                for &k in &cand {
+                    let n = &e.nodes[k];
+                    match n.lut {
+                        None => pass_aimed(d.for_node(n), Flat, a, cp, n, rx, b),
+                        Some(t) => pass_aimed(d.for_node(n), Table(&e.luts[t]), a, cp, n, rx, b),
+                    }
+                    pairs += cols as u64;
+                }
             }
-            pairs += cols as u64;
+            Some(cpl) => {
+                let (class, table, m) = (&cpl.class, &cpl.table, &cpl.classes);
+                // Sum each interferer class apart (the kernel as for one channel, into that
+                // class's buffer), then couple the m sums into each cell's server class:
+                // m products a cell instead of a coupling lookup a pair.
+                let m = *m;
+                b.iacc_cls.resize_with(m, Vec::new);
+                for v in &mut b.iacc_cls {
+                    v.clear();
+                    v.resize(cols, 0.0);
+                }
+                for &k in &cand {
+                    let n = &e.nodes[k];
+                    let ci = class[k] as usize;
+                    std::mem::swap(&mut b.iacc, &mut b.iacc_cls[ci]);
+                    match n.lut {
+                        None => pass_aimed(d.for_node(n), Flat, a, CoChannel, n, rx, b),
+                        Some(t) => pass_aimed(d.for_node(n), Table(&e.luts[t]), a, CoChannel, n, rx, b),
+                    }
+                    std::mem::swap(&mut b.iacc, &mut b.iacc_cls[ci]);
+                    pairs += cols as u64;
+                }
+                let last = class.len() - 1;
+                for c in 0..cols {
+                    let s = class[(b.server[c] as usize).min(last)] as usize;
+                    let mut sum = 0.0f32;
+                    for (k, v) in b.iacc_cls.iter().enumerate() {
+                        sum += table[k * m + s] * v[c];
+                    }
+                    b.iacc[c] = sum;
+                }
+            }
         }
     }
     if l.coverage {
