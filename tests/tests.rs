@@ -5,6 +5,7 @@
 mod util;
 
 mod aggregate;
+mod assign;
 mod cli;
 mod coverage;
 mod faults;

@@ -104,6 +104,22 @@ enum Cmd {
         #[arg(allow_hyphen_values = true, long)]
         seed: Option<u64>,
     },
+    /// Search a channel and polarisation for every link and lone node (maximise the worst
+    /// link margin, then fewer failing links, then less outage) and write the node file with
+    /// the plan; nodes with `"locked": true` keep theirs.
+    Assign {
+        /// Scenario file (TOML) with a [channels] table.
+        scenario: PathBuf,
+        /// Output node file (GeoJSON); every command reads it.
+        #[arg(long)]
+        out: PathBuf,
+        /// Seed of the local search (used beyond 2e6 plans).
+        #[arg(allow_hyphen_values = true, long, default_value_t = 1)]
+        seed: u64,
+        /// Print JSON instead of the table.
+        #[arg(long)]
+        json: bool,
+    },
     /// Run the map on the bundled demo scenario.
     Demo {
         #[command(flatten)]
@@ -333,6 +349,19 @@ pub fn run(cli: Cli) -> anyhow::Result<ExitCode> {
             check_trials(monte_carlo)?;
             let sc = Scenario::load(&scenario)?;
             links_cmd(&sc, out, strict, monte_carlo.map(|n| (n, seed)), !no_maps, json, max_memory_mib, cli.quiet)
+        }
+        Cmd::Assign { scenario, out, seed, json } => {
+            let sc = Scenario::load(&scenario)?;
+            let res = lobemap::run::assign::run_assign(&sc, &out, seed)?;
+            if json {
+                println!("{}", serde_json::to_string_pretty(&res.plan)?);
+            } else {
+                print!("{}", lobemap::run::assign::table(&res.plan));
+            }
+            if !cli.quiet {
+                eprintln!("wrote {}", out.display());
+            }
+            Ok(ExitCode::SUCCESS)
         }
         Cmd::Draw { scenario, out, seed } => {
             let sc = Scenario::load(&scenario)?;

@@ -27,6 +27,7 @@ pub const NODE_KEYS: &[&str] = &[
     "activity",
     "polarisation",
     "channel",
+    "locked",
     "peer",
     "name",
     "note",
@@ -374,6 +375,11 @@ fn parse_feature(
             Polarisation::default()
         }),
     };
+    if let Some(v) = props.get("locked")
+        && !v.is_boolean()
+    {
+        push("locked", format!("value {v} is not true or false"));
+    }
     let resolved = merged.resolve(&mut |field, msg| push(field, msg));
     let azimuth_deg = match (az, &resolved) {
         (Some(a), _) => a.rem_euclid(360.0),

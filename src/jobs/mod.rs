@@ -1,5 +1,6 @@
 //! Jobs: what each command computes.
 
+pub mod assign;
 pub mod install;
 pub mod links;
 

@@ -2,6 +2,7 @@
 //! committed together. The command-line front end calls these.
 
 pub mod aggregate;
+pub mod assign;
 pub mod demo;
 pub mod draw;
 pub mod links;
