@@ -101,9 +101,7 @@ fn channel_layer_and_map_coupling() {
     for r in 0..g.rows() {
         for c in 0..g.cols() {
             let pr = lobemap::jobs::probe::probe(&sc, g.lat_of_row(r), g.lon_of_col(c));
-            let mut tx: Vec<f64> = pr.contributions.iter().map(|c| c.power_dbm - c.rx_gain_dbi).collect();
-            tx.sort_by(|a, b| b.total_cmp(a));
-            if tx[0] - tx[1] < 0.05 {
+            if crate::util::server_tie(&pr) {
                 continue;
             }
             let i = pr.interference_dbm.unwrap();

@@ -107,9 +107,9 @@ fn weather_section(sc: &Scenario, links: &[LinkRow]) -> String {
             esc(&r.from),
             esc(&r.to),
             r.length_m,
-            r.gas_db,
-            r.fade_margin_db.map(|v| format!("{v:.2}")).unwrap_or("–".into()),
-            r.rain_fade_db.map(|v| format!("{v:.2}")).unwrap_or("–".into()),
+            r.weather.gas_db,
+            r.weather.fade_margin_db.map(|v| format!("{v:.2}")).unwrap_or("–".into()),
+            r.weather.rain_fade_db.map(|v| format!("{v:.2}")).unwrap_or("–".into()),
             esc(&r.availability_words().unwrap_or("–".into())),
             r.outage_words().unwrap_or("–".into()),
             if below { "BELOW" } else { "ok" }

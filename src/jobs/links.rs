@@ -95,23 +95,9 @@ pub struct LinkRow {
     pub channel: String,
     /// The link's polarisation (both ends), `V` or `H`.
     pub polarisation: String,
-    /// Gaseous loss on the path (included in `path_loss_db`), dB.
-    pub gas_db: f64,
-    /// Fade margin: how far the wanted path can fade before the SINR reaches the threshold,
-    /// dB (with interferers that do not fade, `sinr_db` − threshold; none without a clear-air
-    /// margin when interferers fade too).
-    pub fade_margin_db: Option<f64>,
-    /// Rain attenuation exceeded for 100 − target % of the time (ITU-R P.530), dB; none
-    /// without `[rain]`.
-    pub rain_fade_db: Option<f64>,
-    /// Percentage of an average year the link is up in rain (clamped to 99 to 99.999; see
-    /// `availability_bound`).
-    pub availability_pct: Option<f64>,
-    /// Minutes per average year the rain fade exceeds the fade margin.
-    pub outage_min_per_year: Option<f64>,
-    /// Whether `availability_pct` is a bound: `within`, `at_least` (99.999), `at_most` (99),
-    /// `no_margin` (the link is below its threshold without rain).
-    pub availability_bound: Option<crate::model::weather::rain::Bound>,
+    /// Gas, fade margin, rain fade at the target, availability and outage.
+    #[serde(flatten)]
+    pub weather: weather::Reported,
     /// Availability at or above the scenario's target.
     pub meets_target: Option<bool>,
     /// Monte Carlo check of `coverage`.
@@ -259,12 +245,7 @@ fn one(
         limited_by: obs.limit.and_then(|l| sc.surface().map(|s| s.describe(&l))),
         channel: sc.spectrum.channels[a.channel].name.clone(),
         polarisation: a.polarisation.name().into(),
-        gas_db: round_dp(wx.gas_db, 2),
-        fade_margin_db: wx.fade_margin_db.map(|m| round_dp(m, 2)),
-        rain_fade_db: wx.rain_fade_db.map(|v| round_dp(v, 2)),
-        availability_pct: wx.availability.map(|a| round_dp(a.pct, 6)),
-        outage_min_per_year: wx.availability.map(|a| round_dp(a.outage_min_per_year, 1)),
-        availability_bound: wx.availability.map(|a| a.bound),
+        weather: wx.reported(true),
         meets_target: wx.availability.map(|a| a.pct >= target_pct),
         monte_carlo,
     }
@@ -298,7 +279,7 @@ impl LinkRow {
     /// The outage as a reader says it: "22.2", "≤ 5.3" (availability at least 99.999 %),
     /// "≥ 5259.6"; none without `[rain]`.
     pub fn outage_words(&self) -> Option<String> {
-        let (m, bound) = (self.outage_min_per_year?, self.availability_bound?);
+        let (m, bound) = (self.weather.outage_min_per_year?, self.weather.availability_bound?);
         Some(match bound {
             Bound::AtLeast => format!("≤ {m:.1}"),
             Bound::AtMost => format!("≥ {m:.1}"),
@@ -309,7 +290,7 @@ impl LinkRow {
     /// The availability as a reader says it: "99.9934 %", "≥ 99.999 %", "≤ 99 %", "0 % (no
     /// margin)"; none without `[rain]`.
     pub fn availability_words(&self) -> Option<String> {
-        let (pct, bound) = (self.availability_pct?, self.availability_bound?);
+        let (pct, bound) = (self.weather.availability_pct?, self.weather.availability_bound?);
         Some(match bound {
             Bound::Within => format!("{pct:.4} %"),
             Bound::AtLeast => format!("≥ {pct} %"),
@@ -359,12 +340,12 @@ pub fn csv(rows: &[LinkRow]) -> String {
             r.obstruction_db,
             r.limited_by.as_deref().unwrap_or(""),
             tops(r),
-            r.gas_db,
-            opt(r.fade_margin_db),
-            opt(r.rain_fade_db),
-            opt(r.availability_pct),
-            opt(r.outage_min_per_year),
-            r.availability_bound.map(Bound::name).unwrap_or(""),
+            r.weather.gas_db,
+            opt(r.weather.fade_margin_db),
+            opt(r.weather.rain_fade_db),
+            opt(r.weather.availability_pct),
+            opt(r.weather.outage_min_per_year),
+            r.weather.availability_bound.map(Bound::name).unwrap_or(""),
             r.meets_target.map(|b| b.to_string()).unwrap_or_default(),
             r.channel,
             r.polarisation,
@@ -477,11 +458,11 @@ fn weather_table(rows: &[LinkRow], rain: &Rain, target_pct: f64) -> String {
             "{:<8} {:<8} {:>8} {:>9} {:>17} {:>12} {:>7.2} {:>7}\n",
             r.from,
             r.to,
-            r.fade_margin_db.map(|v| format!("{v:.2}")).unwrap_or("-".into()),
-            r.rain_fade_db.map(|v| format!("{v:.2}")).unwrap_or("-".into()),
+            r.weather.fade_margin_db.map(|v| format!("{v:.2}")).unwrap_or("-".into()),
+            r.weather.rain_fade_db.map(|v| format!("{v:.2}")).unwrap_or("-".into()),
             r.availability_words().unwrap_or("-".into()),
             r.outage_words().unwrap_or("-".into()),
-            r.gas_db,
+            r.weather.gas_db,
             match r.meets_target {
                 Some(true) => "ok",
                 Some(false) => "BELOW",

@@ -75,20 +75,9 @@ pub struct Probe {
     /// Monte Carlo cross-check of `coverage`, when asked for.
     #[serde(skip_serializing_if = "Option::is_none")]
     pub monte_carlo: Option<McCheck>,
-    /// Gaseous loss on the server's path, dB.
-    pub gas_db: f64,
-    /// How far the server's path can fade before the SINR reaches the threshold, dB.
-    pub fade_margin_db: Option<f64>,
-    /// Rain attenuation on the server's path exceeded for 100 − target % of the time, dB
-    /// (with `[rain]`).
-    pub rain_fade_db: Option<f64>,
-    /// Percentage of an average year the point is served above the threshold in rain
-    /// (with `[rain]`; clamped to 99 to 99.999, see `availability_bound`).
-    pub availability_pct: Option<f64>,
-    /// Minutes per average year below the threshold in rain (with `[rain]`).
-    pub outage_min_per_year: Option<f64>,
-    /// Whether `availability_pct` is a bound (`within`, `at_least`, `at_most`, `no_margin`).
-    pub availability_bound: Option<crate::model::weather::rain::Bound>,
+    /// The server path's gas, fade margin, rain fade at the target, availability and outage.
+    #[serde(flatten)]
+    pub weather: crate::jobs::weather::Reported,
     /// The availability target, percent.
     pub availability_target_pct: f64,
     /// Per-node contributions, strongest first.
@@ -215,12 +204,7 @@ pub fn probe_with(sc: &Scenario, lat: f64, lon: f64, mc: Option<(usize, u64)>) -
         noise_dbm,
         sinr_db,
         server: sc.nodes[server].id.clone(),
-        gas_db: wx.gas_db,
-        fade_margin_db: wx.fade_margin_db,
-        rain_fade_db: wx.rain_fade_db,
-        availability_pct: wx.availability.map(|a| a.pct),
-        outage_min_per_year: wx.availability.map(|a| a.outage_min_per_year),
-        availability_bound: wx.availability.map(|a| a.bound),
+        weather: wx.reported(false),
         availability_target_pct: sc.weather().target_pct,
         contributions,
     }
@@ -268,12 +252,15 @@ impl Probe {
                 m.estimate, m.low, m.high, m.trials, m.seed
             );
         }
-        s += &format!("gas on server path {:>6.2} dB\n", self.gas_db);
-        if let (Some(p), Some(b), Some(o), Some(r)) =
-            (self.availability_pct, self.availability_bound, self.outage_min_per_year, self.rain_fade_db)
-        {
+        s += &format!("gas on server path {:>6.2} dB\n", self.weather.gas_db);
+        if let (Some(p), Some(b), Some(o), Some(r)) = (
+            self.weather.availability_pct,
+            self.weather.availability_bound,
+            self.weather.outage_min_per_year,
+            self.weather.rain_fade_db,
+        ) {
             use crate::model::weather::rain::Bound;
-            let fm = self.fade_margin_db.map(|m| format!("{m:.2} dB")).unwrap_or("none".into());
+            let fm = self.weather.fade_margin_db.map(|m| format!("{m:.2} dB")).unwrap_or("none".into());
             let (pw, ow) = match b {
                 Bound::Within => (format!("{p:.4} %"), format!("{o:.1}")),
                 Bound::AtLeast => (format!(">= {p} %"), format!("<= {o:.1}")),

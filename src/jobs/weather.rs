@@ -22,6 +22,44 @@ pub struct Figures {
     pub availability: Option<Availability>,
 }
 
+/// A received path's weather figures as the link table and the probe report them (flattened
+/// into their rows: the same names in links.csv, links.geojson and probe's JSON).
+#[derive(Debug, Clone, Copy, serde::Serialize)]
+pub struct Reported {
+    /// Gaseous loss on the path (part of its path loss), dB.
+    pub gas_db: f64,
+    /// How far the wanted path can fade before the SINR reaches the threshold, dB (with
+    /// interferers that do not fade, the SINR minus the threshold; none without a clear-air
+    /// margin when interferers fade too).
+    pub fade_margin_db: Option<f64>,
+    /// Rain attenuation exceeded for 100 − target % of the time (ITU-R P.530), dB; none
+    /// without `[rain]`.
+    pub rain_fade_db: Option<f64>,
+    /// Percentage of an average year above the threshold in rain (clamped to 99 to 99.999;
+    /// see `availability_bound`); none without `[rain]`.
+    pub availability_pct: Option<f64>,
+    /// Minutes per average year below the threshold in rain.
+    pub outage_min_per_year: Option<f64>,
+    /// Whether `availability_pct` is a bound: `within`, `at_least` (99.999), `at_most` (99),
+    /// `no_margin` (below the threshold without rain).
+    pub availability_bound: Option<crate::model::weather::rain::Bound>,
+}
+
+impl Figures {
+    /// The figures as reported, rounded for tables when `round` (0.01 dB, 1e-6 %, 0.1 min).
+    pub fn reported(&self, round: bool) -> Reported {
+        let r = |v: f64, dp: i32| if round { crate::model::units::round_dp(v, dp) } else { v };
+        Reported {
+            gas_db: r(self.gas_db, 2),
+            fade_margin_db: self.fade_margin_db.map(|m| r(m, 2)),
+            rain_fade_db: self.rain_fade_db.map(|v| r(v, 2)),
+            availability_pct: self.availability.map(|a| r(a.pct, 6)),
+            outage_min_per_year: self.availability.map(|a| r(a.outage_min_per_year, 1)),
+            availability_bound: self.availability.map(|a| a.bound),
+        }
+    }
+}
+
 /// One transmitter's path to the receiver: the node, the receiver's latitude and the
 /// geometry.
 pub(crate) struct Path<'a> {

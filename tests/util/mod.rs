@@ -26,3 +26,12 @@ pub fn demo_scenario() -> String {
         .iter()
         .fold(text, |t, f| t.replace(&format!("\"{f}\""), &format!("\"{root}/sites/harbourlight/{f}\"")))
 }
+
+/// Whether the probe's two strongest transmitters (before the receiver's gain) are within
+/// 0.05 dB: there the choice of server is a tie and float32 may pick the other one, so the
+/// engine-against-probe checks skip such cells.
+pub fn server_tie(pr: &lobemap::jobs::probe::Probe) -> bool {
+    let mut tx: Vec<f64> = pr.contributions.iter().map(|c| c.power_dbm - c.rx_gain_dbi).collect();
+    tx.sort_by(|a, b| b.total_cmp(a));
+    tx.len() > 1 && tx[0] - tx[1] < 0.05
+}
