@@ -73,8 +73,9 @@ struct Problem<'a> {
     sc: &'a Scenario,
     /// (from, to) node indices per link.
     links: Vec<(usize, usize)>,
-    /// The candidate classes.
+    /// The candidate classes (the first `candidates`), then the node file's others.
     classes: Vec<(usize, Polarisation)>,
+    candidates: usize,
     /// Per link and channel: wanted power, mW (shadow mean included).
     s: Vec<Vec<f64>>,
     /// Per link, node and channel: activity-weighted power at the link's receiver, mW.
@@ -120,8 +121,16 @@ impl<'a> Problem<'a> {
         let nch = sc.spectrum.channels.len();
         // Candidate channels: the table's (the [radio] carrier only when there is no table).
         let chans: Vec<usize> = if nch > 1 { (1..nch).collect() } else { vec![0] };
-        let classes: Vec<(usize, Polarisation)> =
+        let mut classes: Vec<(usize, Polarisation)> =
             chans.iter().flat_map(|&c| [(c, Polarisation::V), (c, Polarisation::H)]).collect();
+        let candidates = classes.len();
+        // The node file's classes outside the candidates (the [radio] carrier when a table
+        // exists) follow them, so the starting plan and locked groups keep theirs.
+        for n in &sc.nodes {
+            if !classes.contains(&(n.channel, n.polarisation)) {
+                classes.push((n.channel, n.polarisation));
+            }
+        }
         let pos: Vec<Endpoint> = sc.nodes.iter().map(|n| sc.node_end(n)).collect();
         let shadow = sc.fading.shadow_mean();
         // Per link (in parallel; each link's figures depend on nothing else): the wanted power
@@ -228,6 +237,7 @@ impl<'a> Problem<'a> {
             sc,
             links,
             classes,
+            candidates,
             s,
             p,
             noise,
@@ -343,44 +353,15 @@ pub fn search(sc: &Scenario, locked: &[bool], seed: u64) -> Plan {
 /// [`search`] enumerating every plan only up to `exhaustive_max` plans (0: always the local
 /// search; for checking it against the enumeration).
 pub fn search_with(sc: &Scenario, locked: &[bool], seed: u64, exhaustive_max: f64) -> Plan {
-    let mut pr = Problem::new(sc, locked);
-    // The node file's plan as class indices per group (a class outside the list is added, so
-    // locked nodes and the starting plan keep theirs).
-    let mut start = Vec::with_capacity(pr.groups.len());
-    for g in 0..pr.groups.len() {
-        let n = &sc.nodes[pr.groups[g][0]];
-        let k = (n.channel, n.polarisation);
-        let idx = pr.classes.iter().position(|c| *c == k).unwrap_or_else(|| {
-            pr.classes.push(k);
-            pr.classes.len() - 1
-        });
-        start.push(idx);
-    }
-    // Coupling rows for classes added above.
-    pr.coupling = pr
-        .classes
-        .iter()
-        .map(|&(ci, pi)| pr.classes.iter().map(|&(cr, rp)| sc.spectrum.coupling(ci, pi, cr, rp)).collect())
+    let pr = Problem::new(sc, locked);
+    // The node file's plan: each group's class.
+    let start: Vec<usize> = (0..pr.groups.len())
+        .map(|g| {
+            let n = &sc.nodes[pr.groups[g][0]];
+            pr.classes.iter().position(|c| *c == (n.channel, n.polarisation)).unwrap_or(0)
+        })
         .collect();
-    if let (Some(rain), Some(r)) = (sc.weather().rain, pr.rain.as_mut()) {
-        let pos: Vec<Endpoint> = sc.nodes.iter().map(|n| sc.node_end(n)).collect();
-        for (l, &(f, t)) in pr.links.iter().enumerate() {
-            let g = Geometry::between(&pos[f], &pos[t]);
-            while r[l].len() < pr.classes.len() {
-                let (c, pol) = pr.classes[r[l].len()];
-                r[l].push(crate::model::weather::rain_path(
-                    &rain,
-                    sc.spectrum.channels[c].centre_ghz,
-                    g.distance_m,
-                    g.east_m.hypot(g.north_m),
-                    pol.cos_2tau(),
-                    0.5 * (sc.nodes[f].lat + sc.nodes[t].lat),
-                ));
-            }
-        }
-    }
-    let candidates: Vec<usize> =
-        (0..pr.classes.len()).filter(|&k| sc.spectrum.channels.len() == 1 || pr.classes[k].0 != 0).collect();
+    let candidates: Vec<usize> = (0..pr.candidates).collect();
     let before = pr.figures(&start);
     let intf0 = pr.interference(&start);
     let score0 = pr.score(&start, &intf0);
