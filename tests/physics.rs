@@ -298,16 +298,7 @@ fn cutoff_keeps_servers_exact_and_sinr_bounded() {
     let nodes = fixtures::random_nodes(&frame, 400, 2000.0, 9, "o", Pattern::omni(0.0), 20.0, 6.0, 1.0);
     let pl = PathLoss::new(lobemap::model::pathloss::CloseIn::new(3.0).unwrap(), 28.0, 0.0, 1.0).unwrap();
     let dense = scenario(nodes, pl, fixtures::square(&frame, 2000.0), 40.0, 1.5);
-    let layers = LayerSet {
-        total: false,
-        interference: true,
-        sinr: true,
-        server: true,
-        coverage: false,
-        visible: false,
-        availability: false,
-        channel: false,
-    };
+    let layers = LayerSet { interference: true, sinr: true, server: true, ..LayerSet::NONE };
     for (sc, cutoff, must_save) in [(&demo, 300.0, false), (&dense, 600.0, true)] {
         let eng = Engine::new(sc);
         let full = eng.run(&Options { layers, cutoff_m: None, progress: false });

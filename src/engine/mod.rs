@@ -56,21 +56,9 @@ pub struct LayerSet {
 }
 
 impl LayerSet {
-    /// Every layer but `visible`, `availability` and `channel` (which need a surface, `[rain]`
-    /// and `[channels]`).
-    pub const ALL: LayerSet = LayerSet {
-        total: true,
-        interference: true,
-        sinr: true,
-        server: true,
-        coverage: true,
-        visible: false,
-        availability: false,
-        channel: false,
-    };
-    /// Only `total`.
-    pub const TOTAL: LayerSet = LayerSet {
-        total: true,
+    /// No layer (the base the others are written from).
+    pub const NONE: LayerSet = LayerSet {
+        total: false,
         interference: false,
         sinr: false,
         server: false,
@@ -79,19 +67,16 @@ impl LayerSet {
         availability: false,
         channel: false,
     };
+    /// Every layer but `visible`, `availability` and `channel` (which need a surface, `[rain]`
+    /// and `[channels]`).
+    pub const ALL: LayerSet =
+        LayerSet { total: true, interference: true, sinr: true, server: true, coverage: true, ..Self::NONE };
+    /// Only `total`.
+    pub const TOTAL: LayerSet = LayerSet { total: true, ..Self::NONE };
 
     /// Parses a comma-separated list such as `total,sinr`.
     pub fn parse(s: &str) -> Result<LayerSet, String> {
-        let mut l = LayerSet {
-            total: false,
-            interference: false,
-            sinr: false,
-            server: false,
-            coverage: false,
-            visible: false,
-            availability: false,
-            channel: false,
-        };
+        let mut l = Self::NONE;
         for name in s.split(',').map(str::trim).filter(|x| !x.is_empty()) {
             match name {
                 "total" => l.total = true,

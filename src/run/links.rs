@@ -51,11 +51,8 @@ pub fn run_links(sc: &Scenario, opts: &LinksOptions) -> Result<LinksResult, Erro
             interference: true,
             sinr: true,
             coverage: true,
-            total: false,
-            server: false,
-            visible: false,
             availability: sc.weather().rain.is_some(),
-            channel: false,
+            ..LayerSet::NONE
         };
         check_memory(sc, layers.count(), opts.max_memory_mib)?;
         let l = Engine::new(sc).run(&Options { layers, cutoff_m: None, progress: false });
