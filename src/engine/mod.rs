@@ -249,6 +249,18 @@ impl Engine<'_> {
 
     /// Runs the engine over the whole grid.
     pub fn run(&self, opts: &Options) -> Layers {
+        self.run_rows(opts, 0..self.sc.grid.rows())
+    }
+
+    /// Runs the engine over the grid rows `rows` only (a tile of the map): the layers hold
+    /// those rows (row-major, `rows.len()` × columns), each cell's value the same bits as in
+    /// a run over the whole grid. Over a surface every band of the whole run that meets the
+    /// rows is swept whole, since a sweep's rays depend on its band.
+    ///
+    /// # Panics
+    /// If `rows` is empty or reaches past the grid.
+    pub fn run_rows(&self, opts: &Options, rows: std::ops::Range<usize>) -> Layers {
+        assert!(rows.start < rows.end && rows.end <= self.sc.grid.rows(), "rows {rows:?} outside the grid");
         let pl = &self.sc.pathloss;
         let d2min = (pl.min_distance_m() * pl.min_distance_m()) as f32;
         let n = pl.exponent();
@@ -256,19 +268,20 @@ impl Engine<'_> {
         // each node's absorption (`Decay::for_node`).
         let absorbing = self.nodes.iter().any(|k| k.beta_log2e != 0.0);
         if !absorbing && n == 2.0 {
-            self.run_with(Sq(d2min), opts)
+            self.run_with(Sq(d2min), opts, rows)
         } else if !absorbing && n == 3.0 {
-            self.run_with(Cube(d2min), opts)
+            self.run_with(Cube(d2min), opts, rows)
         } else if !absorbing && n == 4.0 {
-            self.run_with(Quart(d2min), opts)
+            self.run_with(Quart(d2min), opts, rows)
         } else {
-            self.run_with(Fast { d2min, half_n: (n / 2.0) as f32, beta_log2e: 0.0 }, opts)
+            self.run_with(Fast { d2min, half_n: (n / 2.0) as f32, beta_log2e: 0.0 }, opts, rows)
         }
     }
 
-    fn run_with<D: Decay>(&self, d: D, opts: &Options) -> Layers {
+    fn run_with<D: Decay>(&self, d: D, opts: &Options, span: std::ops::Range<usize>) -> Layers {
         let g = &self.sc.grid;
-        let (rows, cols) = (g.rows(), g.cols());
+        let (grid_rows, cols) = (g.rows(), g.cols());
+        let (r0, rows) = (span.start, span.len());
         let l = opts.layers;
         let alloc = |on: bool| on.then(|| vec![0f32; rows * cols]);
         let mut total = alloc(l.total);
@@ -292,7 +305,7 @@ impl Engine<'_> {
             .zip(chunks(&mut coverage, cols, rows))
             .zip(chunks(&mut availability, cols, rows))
             .enumerate()
-            .map(|(r, (((((t, i), s), v), cv), av))| (r, [t, i, s, v, cv, av]))
+            .map(|(r, (((((t, i), s), v), cv), av))| (r0 + r, [t, i, s, v, cv, av]))
             .collect();
         let bar = if opts.progress && rows * cols * self.nodes.len() > 50_000_000 {
             let b = indicatif::ProgressBar::new(rows as u64);
@@ -308,12 +321,14 @@ impl Engine<'_> {
         let mut per_row: Vec<(u64, f64)> = Vec::with_capacity(rows);
         match (&self.obs, self.sc.surface()) {
             (Some(o), Some(surf)) => {
-                let band = band_rows(rows, cols, self.nodes.len());
-                let mut visible_out = visible.as_deref_mut().map(|v| v.chunks_mut(band * cols));
+                // Bands of the whole grid (a sweep depends on its band), computed where they
+                // meet the rows asked for.
+                let band = band_rows(grid_rows, cols, self.nodes.len());
                 let mut fbuf = vec![0f32; self.nodes.len() * band * cols];
                 let mut work = work.into_iter();
-                for b0 in (0..rows).step_by(band) {
-                    let b1 = (b0 + band).min(rows);
+                let mut visible_rows = visible.as_deref_mut().map(|v| v.chunks_mut(cols));
+                for b0 in (0..grid_rows).step_by(band).filter(|b0| *b0 + band > span.start && *b0 < span.end) {
+                    let b1 = (b0 + band).min(grid_rows);
                     let stride = (b1 - b0) * cols;
                     let zr = surf.receiver_alts(b0..b1, cols, self.sc.receiver.height_m as f32);
                     let spec = SweepSpec {
@@ -334,8 +349,12 @@ impl Engine<'_> {
                         },
                     );
                     let fb = &fbuf[..self.nodes.len() * stride];
-                    if let Some(vis) = visible_out.as_mut().and_then(|it| it.next()) {
-                        vis.par_chunks_mut(cols).enumerate().for_each(|(rb, vrow)| {
+                    // The band's rows inside the span.
+                    let (s0, s1) = (b0.max(span.start), b1.min(span.end));
+                    if let Some(vis) = visible_rows.as_mut() {
+                        let band_vis: Vec<&mut [f32]> = vis.by_ref().take(s1 - s0).collect();
+                        band_vis.into_par_iter().enumerate().for_each(|(i, vrow)| {
+                            let rb = s0 + i - b0;
                             for &k in &self.active {
                                 let f = &fb[k * stride + rb * cols..k * stride + (rb + 1) * cols];
                                 for (v, x) in vrow.iter_mut().zip(f) {
@@ -344,7 +363,7 @@ impl Engine<'_> {
                             }
                         });
                     }
-                    let band_work: Vec<_> = work.by_ref().take(b1 - b0).collect();
+                    let band_work: Vec<_> = work.by_ref().take(s1 - s0).collect();
                     per_row.par_extend(band_work.into_par_iter().map_init(
                         || RowBufs::new(cols),
                         |bufs, (r, out)| {

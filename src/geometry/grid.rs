@@ -98,6 +98,18 @@ impl Grid {
         Ok(Grid { bbox, cell_m, dlon, dlat, rows, cols })
     }
 
+    /// The rows `rows` of this grid as a grid of their own (same cells, same degrees per
+    /// cell: a tile of the map, georeferenced where it lies).
+    ///
+    /// # Panics
+    /// If `rows` is empty or reaches past the last row.
+    pub fn rows_span(&self, rows: std::ops::Range<usize>) -> Grid {
+        assert!(rows.start < rows.end && rows.end <= self.rows, "rows {rows:?} outside the grid");
+        let north = self.bbox.north - rows.start as f64 * self.dlat;
+        let bbox = BBox { north, south: north - rows.len() as f64 * self.dlat, ..self.bbox };
+        Grid { bbox, rows: rows.len(), ..*self }
+    }
+
     /// The covered box (whole cells).
     pub fn bbox(&self) -> BBox {
         self.bbox

@@ -7,13 +7,58 @@ const HI: f64 = 200.0;
 const BIN: f64 = 0.01;
 
 /// Histogram of a layer's defined values (dB units), for percentiles at 0.01 dB resolution.
+/// Histograms of parts of a layer (tiles) merge into the histogram of the whole
+/// ([`Histogram::merge`]), so percentiles of a tiled map are exact; they are stored as their
+/// non-empty bins.
+#[derive(Clone, serde::Serialize, serde::Deserialize)]
+#[serde(into = "SparseHistogram", try_from = "SparseHistogram")]
 pub struct Histogram {
     counts: Vec<u64>,
     n: u64,
     max: f32,
 }
 
+/// A histogram as stored: its count, maximum and non-empty bins (index, count).
+#[derive(serde::Serialize, serde::Deserialize)]
+struct SparseHistogram {
+    n: u64,
+    max: f32,
+    bins: Vec<(u32, u64)>,
+}
+
+impl From<Histogram> for SparseHistogram {
+    fn from(h: Histogram) -> Self {
+        let bins = h.counts.iter().enumerate().filter(|(_, c)| **c > 0).map(|(k, c)| (k as u32, *c)).collect();
+        SparseHistogram { n: h.n, max: h.max, bins }
+    }
+}
+
+impl TryFrom<SparseHistogram> for Histogram {
+    type Error = String;
+    fn try_from(s: SparseHistogram) -> Result<Self, String> {
+        let mut counts = vec![0u64; bins()];
+        for (k, c) in s.bins {
+            *counts.get_mut(k as usize).ok_or(format!("bin {k} is outside the histogram's {} bins", bins()))? += c;
+        }
+        if counts.iter().sum::<u64>() != s.n {
+            return Err(format!("bin counts do not add up to n = {}", s.n));
+        }
+        Ok(Histogram { counts, n: s.n, max: s.max })
+    }
+}
+
+fn bins() -> usize {
+    ((HI - LO) / BIN) as usize
+}
+
 impl Histogram {
+    /// Adds the values of `other` (the histogram of the union of both data sets).
+    pub fn merge(&mut self, other: &Histogram) {
+        self.counts.iter_mut().zip(&other.counts).for_each(|(a, b)| *a += b);
+        self.n += other.n;
+        self.max = self.max.max(other.max);
+    }
+
     /// Builds the histogram of every value that is not [`NODATA`] or NaN.
     pub fn of(data: &[f32]) -> Histogram {
         Self::of_scaled(data, 1.0)
@@ -22,7 +67,7 @@ impl Histogram {
     /// Like [`Self::of`] for values multiplied by `scale` (e.g. 100 for probabilities, so the
     /// resolution is 1e−4); quantiles and the maximum come back in the scaled unit.
     pub fn of_scaled(data: &[f32], scale: f32) -> Histogram {
-        let nb = ((HI - LO) / BIN) as usize;
+        let nb = bins();
         let mut counts = vec![0u64; nb];
         let (mut n, mut max) = (0u64, f32::MIN);
         for &v in data {
@@ -97,5 +142,21 @@ mod tests {
         assert!((h.quantile(0.9).unwrap() - 90.0).abs() <= 0.006);
         assert_eq!(h.max(), Some(100.0));
         assert!((h.fraction_at_least(91.0).unwrap() - 0.10).abs() < 1e-12);
+    }
+
+    /// Merging the histograms of two halves gives the histogram of the whole, through the
+    /// stored form (a tiled map's percentiles are those of the whole map).
+    #[test]
+    fn halves_merge_into_the_whole() {
+        let v: Vec<f32> = (0..1000).map(|x| -90.0 + (x as f32 * 0.37) % 41.0).collect();
+        let whole = Histogram::of(&v);
+        let mut a = Histogram::of(&v[..313]);
+        let b: Histogram = serde_json::from_str(&serde_json::to_string(&Histogram::of(&v[313..])).unwrap()).unwrap();
+        a.merge(&b);
+        assert_eq!(a.counts, whole.counts);
+        assert_eq!((a.n, a.max), (whole.n, whole.max));
+        for q in [0.1, 0.5, 0.9] {
+            assert_eq!(a.quantile(q), whole.quantile(q));
+        }
     }
 }
