@@ -120,6 +120,19 @@ enum Cmd {
         #[arg(long)]
         json: bool,
     },
+    /// Join the tiles of `map --tile K/N` runs into the outputs of one map (a VRT per layer
+    /// over the tiles, and every file `map` writes).
+    Merge {
+        /// Tile folders, or the --out folders of the tile runs (their tile-* folders are read).
+        #[arg(required = true, value_name = "DIR")]
+        dirs: Vec<PathBuf>,
+        /// Output folder.
+        #[arg(long)]
+        out: PathBuf,
+        /// Refuse grids whose assembled layers need more memory than this (MiB).
+        #[arg(allow_hyphen_values = true, long, default_value_t = 8192)]
+        max_memory_mib: u64,
+    },
     /// Run the map on the bundled demo scenario.
     Demo {
         #[command(flatten)]
@@ -266,6 +279,10 @@ struct MapArgs {
     /// With a [draw] table: average the layers over this many independent layouts.
     #[arg(allow_hyphen_values = true, long, default_value_t = 1)]
     realizations: usize,
+    /// Compute tile K of N (blocks of grid rows, K from 0) into <out>/tile-K-of-N/, for
+    /// `lobemap merge`; `array/N` takes K from $SLURM_ARRAY_TASK_ID or $JOB_COMPLETION_INDEX.
+    #[arg(long, value_name = "K/N")]
+    tile: Option<String>,
 }
 
 fn bad_flag(flag: &str, msg: String) -> anyhow::Error {
@@ -333,7 +350,26 @@ pub fn run(cli: Cli) -> anyhow::Result<ExitCode> {
             let sc = Scenario::load(&scenario)?;
             map_cmd(&sc, map, cli.quiet, None)
         }
+        Cmd::Merge { dirs, out, max_memory_mib } => {
+            let res = lobemap::run::merge::run_merge(&lobemap::run::merge::MergeOptions {
+                dirs,
+                out: out.clone(),
+                max_memory_mib,
+            })?;
+            if !cli.quiet {
+                let s = &res.summary;
+                eprintln!(
+                    "{}: merged {} tiles, {} cells ({} x {}), {:.2} s of tile computation",
+                    s.scenario, res.tiles, s.cells, s.cols, s.rows, s.elapsed_s
+                );
+                eprintln!("wrote {} files to {}", res.files.len(), out.display());
+            }
+            Ok(ExitCode::SUCCESS)
+        }
         Cmd::Demo { map } => {
+            if map.tile.is_some() {
+                return Err(bad_flag("--tile", "tiles are for `lobemap map SCENARIO`; the demo runs whole".into()));
+            }
             let path = lobemap::run::demo::scenario_path()?;
             let sc = Scenario::load(&path)?;
             let out = map.out.clone().unwrap_or_else(|| PathBuf::from("outputs/demo"));
@@ -513,9 +549,16 @@ fn map_cmd(sc: &Scenario, a: MapArgs, quiet: bool, default_out: Option<&str>) ->
             "averaging needs random layouts: add a [draw] table to the scenario".into(),
         ));
     }
+    let tile = a
+        .tile
+        .as_deref()
+        .map(|t| lobemap::run::tiles::Tile::parse(t, |v| std::env::var(v).ok()))
+        .transpose()
+        .map_err(|m| bad_flag("--tile", m))?;
     let res = run_map(
         sc,
         &MapOptions {
+            tile,
             out: out.clone(),
             layers,
             cutoff_m: a.cutoff_m,
@@ -547,7 +590,10 @@ fn map_cmd(sc: &Scenario, a: MapArgs, quiet: bool, default_out: Option<&str>) ->
                 h
             );
         }
-        eprintln!("wrote {} files to {}", res.files.len(), out.display());
+        match tile {
+            Some(t) => eprintln!("wrote tile {} of {} to {}", t.index, t.count, out.join(t.folder()).display()),
+            None => eprintln!("wrote {} files to {}", res.files.len(), out.display()),
+        }
     }
     Ok(ExitCode::SUCCESS)
 }

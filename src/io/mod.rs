@@ -11,4 +11,5 @@ pub(crate) mod report;
 pub(crate) mod staging;
 pub(crate) mod summary;
 pub mod tables;
+pub(crate) mod vrt;
 pub(crate) mod writer;

@@ -32,6 +32,8 @@ pub struct MapOptions {
     pub progress: bool,
     /// With a `[draw]` table: independent random layouts to average over (≥ 1).
     pub realizations: usize,
+    /// Compute one tile of the map (a block of rows) into its own folder under `out`.
+    pub tile: Option<crate::run::tiles::Tile>,
 }
 
 /// What the map job produced.
@@ -50,8 +52,13 @@ pub struct MapResult {
 /// [`crate::engine::SWEEP_BAND_BYTES`]), and per band cell the receiver altitudes (4 bytes)
 /// and each thread's sweep scratch (a one-byte ray offset and an 8-byte horizon).
 pub fn estimate_bytes(sc: &Scenario, layers: usize) -> u64 {
+    estimate_bytes_rows(sc, layers, sc.grid.rows())
+}
+
+/// [`estimate_bytes`] for `rows` rows of the grid (a tile).
+pub fn estimate_bytes_rows(sc: &Scenario, layers: usize, rows: usize) -> u64 {
     let threads = rayon::current_num_threads();
-    let mut need = sc.grid.estimate_bytes(layers, threads);
+    let mut need = sc.grid.rows_span(0..rows.clamp(1, sc.grid.rows())).estimate_bytes(layers, threads);
     if let Some(s) = sc.surface() {
         let (rows, cols, nodes) = (sc.grid.rows() as u64, sc.grid.cols() as u64, sc.nodes.len().max(1) as u64);
         let band_cells = crate::engine::band_rows(rows as usize, cols as usize, nodes as usize) as u64 * cols;
@@ -62,17 +69,22 @@ pub fn estimate_bytes(sc: &Scenario, layers: usize) -> u64 {
 
 /// Refuses grids whose layers would not fit in `max_memory_mib`.
 pub fn check_memory(sc: &Scenario, layers: usize, max_memory_mib: u64) -> Result<(), Error> {
-    let need = estimate_bytes(sc, layers);
+    check_memory_rows(sc, layers, max_memory_mib, sc.grid.rows())
+}
+
+/// [`check_memory`] for `rows` rows of the grid (a tile).
+pub fn check_memory_rows(sc: &Scenario, layers: usize, max_memory_mib: u64, rows: usize) -> Result<(), Error> {
+    let need = estimate_bytes_rows(sc, layers, rows);
     if need > max_memory_mib.saturating_mul(1024 * 1024) {
         return Err(Error::input(Problem::new(
             sc.path.display().to_string(),
             Some("[grid]".into()),
             "cell_m",
             format!(
-                "{} x {} = {} cells need about {:.1} MiB for {layers} layer(s), above the limit of {max_memory_mib} MiB: use a larger cell_m, a smaller margin_m/bbox, fewer --layers, or raise --max-memory-mib",
+                "{} x {} = {} cells need about {:.1} MiB for {layers} layer(s), above the limit of {max_memory_mib} MiB: use a larger cell_m, a smaller margin_m/bbox, fewer --layers, more --tile tiles, or raise --max-memory-mib",
                 sc.grid.cols(),
-                sc.grid.rows(),
-                sc.grid.cells(),
+                rows,
+                sc.grid.cols() * rows,
                 need as f64 / 1048576.0
             ),
         )));
@@ -95,26 +107,129 @@ pub fn markers_and_links(sc: &Scenario) -> (Vec<Marker>, Vec<(usize, usize)>) {
     (markers, crate::model::node::peer_links(&sc.nodes))
 }
 
+/// The file stem of every layer.
+pub(crate) const MAP_STEMS: [&str; 8] =
+    ["total", "interference", "sinr", "server", "coverage", "visible", "availability", "channel"];
+
 /// Every file name `map` can write: a rerun retires those it does not write again.
 pub fn map_file_names() -> Vec<String> {
-    let stems = ["total", "interference", "sinr", "server", "coverage", "visible", "availability", "channel"];
-    let mut v: Vec<String> = stems.iter().flat_map(|s| crate::io::writer::layer_file_names(s)).collect();
+    let mut v: Vec<String> = MAP_STEMS.iter().flat_map(|s| crate::io::writer::layer_file_names(s)).collect();
     v.extend(["hotspots.geojson", "layout.geojson", "summary.json"].map(String::from));
     v
 }
 
-/// Runs the map job and writes every output into `opts.out`.
+/// Runs the map job and writes every output into `opts.out` (with a tile, one tile of the
+/// map into its own folder: [`crate::run::tiles`]).
 pub fn run_map(sc: &Scenario, opts: &MapOptions) -> Result<MapResult, Error> {
+    if let Some(tile) = opts.tile {
+        return crate::run::tiles::run_tile(sc, opts, tile);
+    }
     check_memory(sc, opts.layers.count(), opts.max_memory_mib)?;
     let mut st = Staging::folder(&opts.out, &sc.input_files(), map_file_names())?;
     let t0 = Instant::now();
-    let eopts = Options { layers: opts.layers, cutoff_m: opts.cutoff_m, progress: opts.progress };
-    let (layers, used) = match &sc.draw {
-        None => (Engine::new(sc).run(&eopts), sc.clone()),
-        Some(spec) => ensemble(sc, spec, &eopts, opts.realizations.max(1)),
-    };
-    let sc = &used;
+    let (layers, used) = compute(sc, opts, 0..sc.grid.rows());
     let elapsed_s = t0.elapsed().as_secs_f64();
+    let stats = LayerStats::of(&layers, used.weather().target_pct);
+    let run = RunFacts { realizations: opts.realizations, cutoff_m: opts.cutoff_m, elapsed_s };
+    let summary = write_map(&mut st, &used, &layers, &stats, &run)?;
+    let written = st.commit()?;
+    Ok(MapResult { summary, layers, files: written })
+}
+
+/// Computes the layers of rows `rows` of the grid (one layout, or the ensemble of a
+/// `[draw]` table); returns them with the scenario they were computed on (the first drawn
+/// layout with a `[draw]` table).
+pub(crate) fn compute(sc: &Scenario, opts: &MapOptions, rows: std::ops::Range<usize>) -> (Layers, Scenario) {
+    let eopts = Options { layers: opts.layers, cutoff_m: opts.cutoff_m, progress: opts.progress };
+    match &sc.draw {
+        None => (Engine::new(sc).run_rows(&eopts, rows), sc.clone()),
+        Some(spec) => ensemble(sc, spec, &eopts, opts.realizations.max(1), rows),
+    }
+}
+
+/// What a run knew besides its layers, for the summary.
+pub(crate) struct RunFacts {
+    pub(crate) realizations: usize,
+    pub(crate) cutoff_m: Option<f64>,
+    pub(crate) elapsed_s: f64,
+}
+
+/// What summary.json reports of the layers' values: their histograms and counts, which add
+/// up over the tiles of a map ([`LayerStats::merge`]), so a merged map's summary is exact.
+#[derive(Clone, Default, serde::Serialize, serde::Deserialize)]
+pub(crate) struct LayerStats {
+    total: Option<Histogram>,
+    interference: Option<Histogram>,
+    sinr: Option<Histogram>,
+    /// Coverage × 100.
+    coverage: Option<Histogram>,
+    /// −10 log10(100 − A) of the availability A, %.
+    availability: Option<Histogram>,
+    /// Cells served (availability defined) and at or above the target.
+    availability_served: u64,
+    availability_ok: u64,
+    pub(crate) pair_evaluations: u64,
+    /// The worst cell's bound on the power a cutoff dropped, dB relative to noise (unrounded).
+    neglected_db: Option<f64>,
+}
+
+impl LayerStats {
+    /// The statistics of computed layers.
+    pub(crate) fn of(layers: &Layers, target_pct: f64) -> LayerStats {
+        let avail_hist = layers.availability.as_deref().map(|a| {
+            let u: Vec<f32> =
+                a.iter().map(|&v| if v == crate::NODATA { v } else { -10.0 * (100.0 - v).max(1e-6).log10() }).collect();
+            Histogram::of(&u)
+        });
+        let a = layers.availability.as_deref().unwrap_or_default();
+        LayerStats {
+            total: layers.total.as_deref().map(Histogram::of),
+            interference: layers.interference.as_deref().map(Histogram::of),
+            sinr: layers.sinr.as_deref().map(Histogram::of),
+            coverage: layers.coverage.as_deref().map(|c| Histogram::of_scaled(c, 100.0)),
+            availability: avail_hist,
+            availability_served: a.iter().filter(|v| **v != crate::NODATA).count() as u64,
+            availability_ok: a.iter().filter(|v| **v != crate::NODATA && **v as f64 >= target_pct - 1e-9).count()
+                as u64,
+            pair_evaluations: layers.pair_evaluations,
+            neglected_db: layers.neglected_db,
+        }
+    }
+
+    /// Adds the statistics of another part of the same map.
+    pub(crate) fn merge(&mut self, o: &LayerStats) {
+        for (a, b) in [
+            (&mut self.total, &o.total),
+            (&mut self.interference, &o.interference),
+            (&mut self.sinr, &o.sinr),
+            (&mut self.coverage, &o.coverage),
+            (&mut self.availability, &o.availability),
+        ] {
+            match (a.as_mut(), b) {
+                (Some(a), Some(b)) => a.merge(b),
+                (None, Some(b)) => *a = Some(b.clone()),
+                _ => {}
+            }
+        }
+        self.availability_served += o.availability_served;
+        self.availability_ok += o.availability_ok;
+        self.pair_evaluations += o.pair_evaluations;
+        self.neglected_db = match (self.neglected_db, o.neglected_db) {
+            (Some(a), Some(b)) => Some(a.max(b)),
+            (a, b) => a.or(b),
+        };
+    }
+}
+
+/// Writes every output of a map computed on the whole grid (`layers`, with the statistics
+/// `stats`) into `st` and returns the summary; `map` and `merge` both end here.
+pub(crate) fn write_map(
+    st: &mut Staging,
+    sc: &Scenario,
+    layers: &Layers,
+    stats: &LayerStats,
+    run: &RunFacts,
+) -> Result<Summary, Error> {
     let noise_dbm = sc.noise_dbm();
     let grid = &sc.grid;
     let (markers, links) = markers_and_links(sc);
@@ -132,15 +247,15 @@ pub fn run_map(sc: &Scenario, opts: &MapOptions) -> Result<MapResult, Error> {
         picture: name != "server" && name != "channel",
     };
     if let Some(t) = &layers.total {
-        files.extend(write_layer(&mut st, &cx, &layer("total", "Total received", "dBm", t, Vec::new()))?);
+        files.extend(write_layer(st, &cx, &layer("total", "Total received", "dBm", t, Vec::new()))?);
     }
     if let (Some(i), Some(h)) = (&layers.interference, &hot) {
         let outlines = h.iter().flat_map(|h| h.region.rings_lon_lat()).collect();
-        files.extend(write_layer(&mut st, &cx, &layer("interference", "Interference", "dBm", i, outlines))?);
+        files.extend(write_layer(st, &cx, &layer("interference", "Interference", "dBm", i, outlines))?);
     }
     if let (Some(cv), Some(z)) = (&layers.coverage, &low) {
         let title = format!("Coverage T={} dB", sc.thresholds.sinr_db);
-        files.extend(write_layer(&mut st, &cx, &layer("coverage", &title, PROBABILITY, cv, outlines(z)))?);
+        files.extend(write_layer(st, &cx, &layer("coverage", &title, PROBABILITY, cv, outlines(z)))?);
     }
     if hot.is_some() || low.is_some() {
         let (h, z) = (hot.as_deref().unwrap_or_default(), low.as_deref().unwrap_or_default());
@@ -155,35 +270,71 @@ pub fn run_map(sc: &Scenario, opts: &MapOptions) -> Result<MapResult, Error> {
     let sub_cell_zones = hot.as_ref().map_or(0, |h| h.iter().filter(|h| h.region.is_sub_cell(grid)).count())
         + low.as_ref().map_or(0, |z| z.iter().filter(|r| r.is_sub_cell(grid)).count());
     if let Some(s) = &layers.sinr {
-        files.extend(write_layer(&mut st, &cx, &layer("sinr", "Mean SINR", "dB", s, Vec::new()))?);
+        files.extend(write_layer(st, &cx, &layer("sinr", "Mean SINR", "dB", s, Vec::new()))?);
     }
-    if let Some(v) = layers.server.as_ref().filter(|_| opts.realizations <= 1) {
-        files.extend(write_layer(&mut st, &cx, &layer("server", "Best server", "", v, Vec::new()))?);
+    if let Some(v) = layers.server.as_ref().filter(|_| run.realizations <= 1) {
+        files.extend(write_layer(st, &cx, &layer("server", "Best server", "", v, Vec::new()))?);
     }
     if let Some(v) = &layers.visible {
         let title = "Nodes in line of sight";
-        files.extend(write_layer(&mut st, &cx, &layer("visible", title, "nodes", v, Vec::new()))?);
+        files.extend(write_layer(st, &cx, &layer("visible", title, "nodes", v, Vec::new()))?);
     }
-    if let Some(v) = layers.channel.as_ref().filter(|_| opts.realizations <= 1) {
-        files.extend(write_layer(&mut st, &cx, &layer("channel", "Server's channel", "", v, Vec::new()))?);
+    if let Some(v) = layers.channel.as_ref().filter(|_| run.realizations <= 1) {
+        files.extend(write_layer(st, &cx, &layer("channel", "Server's channel", "", v, Vec::new()))?);
     }
     let target_pct = sc.weather().target_pct;
     if let Some(a) = &layers.availability {
         let below = outlines(&short_of_target(grid, a, target_pct));
-        files.extend(write_layer(&mut st, &cx, &layer("availability", "Availability", AVAILABILITY, a, below))?);
+        files.extend(write_layer(st, &cx, &layer("availability", "Availability", AVAILABILITY, a, below))?);
     }
     st.write("layout.geojson", layout_geojson(&sc.nodes).to_string().as_bytes())?;
     files.push("layout.geojson".into());
+    files.push("summary.json".into());
+    let zones = ZoneCounts { hotspots, outage, sub_cell_zones };
+    let summary = summarize(sc, layers, stats, run, zones, files);
+    let json = serde_json::to_string_pretty(&summary)
+        .map_err(|e| Error::Output { path: st.dir().join("summary.json"), source: e.into() })?;
+    st.write("summary.json", json.as_bytes())?;
+    Ok(summary)
+}
+
+/// The summary of one tile (its rows' grid, no zones), for the command line's report.
+pub(crate) fn tile_summary(
+    sc: &Scenario,
+    layers: &Layers,
+    stats: &LayerStats,
+    opts: &MapOptions,
+    elapsed_s: f64,
+    sub: &crate::geometry::grid::Grid,
+) -> Summary {
+    let run = RunFacts { realizations: opts.realizations, cutoff_m: opts.cutoff_m, elapsed_s };
+    let zones = ZoneCounts { hotspots: None, outage: None, sub_cell_zones: 0 };
+    summarize(&Scenario { grid: *sub, ..sc.clone() }, layers, stats, &run, zones, Vec::new())
+}
+
+/// Zone counts for the summary.
+pub(crate) struct ZoneCounts {
+    pub(crate) hotspots: Option<usize>,
+    pub(crate) outage: Option<usize>,
+    pub(crate) sub_cell_zones: usize,
+}
+
+/// The summary of a map over `sc.grid` whose layers are `layers` (only which are present is
+/// read) with statistics `stats`.
+pub(crate) fn summarize(
+    sc: &Scenario,
+    layers: &Layers,
+    stats: &LayerStats,
+    run: &RunFacts,
+    zones: ZoneCounts,
+    files: Vec<String>,
+) -> Summary {
+    let (grid, noise_dbm, target_pct) = (&sc.grid, sc.noise_dbm(), sc.weather().target_pct);
+    let ZoneCounts { hotspots, outage, sub_cell_zones } = zones;
     let b = grid.bbox();
-    let sinr_hist = layers.sinr.as_deref().map(Histogram::of);
-    let cov_hist = layers.coverage.as_deref().map(|c| Histogram::of_scaled(c, 100.0));
-    let avail_hist = layers.availability.as_deref().map(|a| {
-        let u: Vec<f32> =
-            a.iter().map(|&v| if v == crate::NODATA { v } else { -10.0 * (100.0 - v).max(1e-6).log10() }).collect();
-        Histogram::of(&u)
-    });
+    let (sinr_hist, cov_hist, avail_hist) = (&stats.sinr, &stats.coverage, &stats.availability);
     // The layers written (the server index is left out of ensembles).
-    let server_written = layers.server.is_some() && opts.realizations <= 1;
+    let server_written = layers.server.is_some() && run.realizations <= 1;
     let names: Vec<String> = [
         ("total", layers.total.is_some()),
         ("interference", layers.interference.is_some()),
@@ -192,14 +343,13 @@ pub fn run_map(sc: &Scenario, opts: &MapOptions) -> Result<MapResult, Error> {
         ("coverage", layers.coverage.is_some()),
         ("visible", layers.visible.is_some()),
         ("availability", layers.availability.is_some()),
-        ("channel", layers.channel.is_some() && opts.realizations <= 1),
+        ("channel", layers.channel.is_some() && run.realizations <= 1),
     ]
     .into_iter()
     .filter(|(_, on)| *on)
     .map(|(n, _)| n.to_string())
     .collect();
-    files.push("summary.json".into());
-    let summary = Summary {
+    Summary {
         scenario: sc.name.clone(),
         cells: grid.cells(),
         rows: grid.rows(),
@@ -210,8 +360,8 @@ pub fn run_map(sc: &Scenario, opts: &MapOptions) -> Result<MapResult, Error> {
         noise_dbm: round_dp(noise_dbm, 2),
         receiver: if sc.receiver.is_aimed() { "aimed" } else { "omni" }.into(),
         layers: names,
-        total_dbm: layers.total.as_deref().map(|t| Spread::of(&Histogram::of(t), true)),
-        interference_dbm: layers.interference.as_deref().map(|t| Spread::of(&Histogram::of(t), true)),
+        total_dbm: stats.total.as_ref().map(|h| Spread::of(h, true)),
+        interference_dbm: stats.interference.as_ref().map(|h| Spread::of(h, true)),
         sinr_db: sinr_hist.as_ref().map(|h| Spread::of(h, false)),
         sinr_threshold_db: sc.thresholds.sinr_db,
         sinr_ok_fraction: sinr_hist
@@ -220,10 +370,10 @@ pub fn run_map(sc: &Scenario, opts: &MapOptions) -> Result<MapResult, Error> {
             .map(|f| (f * 1e6).round() / 1e6),
         hotspots,
         hotspot_i_over_n_db: sc.thresholds.hotspot_i_over_n_db,
-        cutoff_m: opts.cutoff_m,
-        neglected_db: layers.neglected_db.map(|v| round_dp(v, 2)),
-        pair_evaluations: layers.pair_evaluations,
-        elapsed_s: (elapsed_s * 1000.0).round() / 1000.0,
+        cutoff_m: run.cutoff_m,
+        neglected_db: stats.neglected_db.map(|v| round_dp(v, 2)),
+        pair_evaluations: stats.pair_evaluations,
+        elapsed_s: (run.elapsed_s * 1000.0).round() / 1000.0,
         files,
         coverage: cov_hist.as_ref().map(|h| {
             let r = |x: Option<f64>| x.map(|v| (v / 100.0 * 1e4).round() / 1e4);
@@ -250,20 +400,14 @@ pub fn run_map(sc: &Scenario, opts: &MapOptions) -> Result<MapResult, Error> {
             Spread { p10: back(h.quantile(0.1)), p50: back(h.quantile(0.5)), p90: back(h.quantile(0.9)), max: None }
         }),
         availability_target_pct: layers.availability.as_ref().map(|_| target_pct),
-        availability_ok_fraction: layers.availability.as_deref().and_then(|a| {
-            let served = a.iter().filter(|v| **v != crate::NODATA).count();
-            let ok = a.iter().filter(|v| **v != crate::NODATA && **v as f64 >= target_pct - 1e-9).count();
+        availability_ok_fraction: layers.availability.as_ref().and_then(|_| {
+            let (served, ok) = (stats.availability_served, stats.availability_ok);
             (served > 0).then(|| round_dp(ok as f64 / served as f64, 6))
         }),
         channels: layers.channel.as_ref().map(|_| sc.spectrum().channels.iter().map(|c| c.name.clone()).collect()),
-        realizations: sc.draw.as_ref().map(|_| opts.realizations.max(1)),
+        realizations: sc.draw.as_ref().map(|_| run.realizations.max(1)),
         drawn_nodes: sc.draw.as_ref().map(|_| sc.nodes.iter().filter(|n| n.id.starts_with("draw-")).count()),
-    };
-    let json = serde_json::to_string_pretty(&summary)
-        .map_err(|e| Error::Output { path: opts.out.join("summary.json"), source: e.into() })?;
-    st.write("summary.json", json.as_bytes())?;
-    let written = st.commit()?;
-    Ok(MapResult { summary, layers, files: written })
+    }
 }
 
 /// Regions a terminal is served in clear air (availability above 0) but short of the
@@ -281,9 +425,15 @@ pub fn short_of_target(
 /// `interference` as ensemble means in mW, `sinr` as the mean of its dB values, `coverage` as
 /// the mean probability, `availability` as the mean percentage; `server` is
 /// left out when n > 1. Returns the layers and the scenario with the first drawn layout.
-fn ensemble(sc: &Scenario, spec: &crate::model::draw::DrawSpec, eopts: &Options, n: usize) -> (Layers, Scenario) {
+fn ensemble(
+    sc: &Scenario,
+    spec: &crate::model::draw::DrawSpec,
+    eopts: &Options,
+    n: usize,
+    rows: std::ops::Range<usize>,
+) -> (Layers, Scenario) {
     let first = Scenario { nodes: crate::random::layout::layout(sc, spec, spec.seed), ..sc.clone() };
-    let mut acc = Engine::new(&first).run(eopts);
+    let mut acc = Engine::new(&first).run_rows(eopts, rows.clone());
     if n == 1 {
         return (acc, first);
     }
@@ -297,7 +447,7 @@ fn ensemble(sc: &Scenario, spec: &crate::model::draw::DrawSpec, eopts: &Options,
     acc.channel = None;
     for i in 1..n {
         let sci = Scenario { nodes: crate::random::layout::layout(sc, spec, spec.seed + i as u64), ..sc.clone() };
-        let mut l = Engine::new(&sci).run(eopts);
+        let mut l = Engine::new(&sci).run_rows(eopts, rows.clone());
         for (a, b) in [(&mut acc.total, &mut l.total), (&mut acc.interference, &mut l.interference)] {
             if let (Some(a), Some(b)) = (a, b) {
                 to_mw(b);

@@ -7,6 +7,8 @@ pub mod demo;
 pub mod draw;
 pub mod links;
 pub mod map;
+pub mod merge;
+pub mod tiles;
 
 /// Removes the temporaries of every run in this process (for a SIGINT/SIGTERM handler: the
 /// binary calls it before exiting; the next run into a folder also removes what a killed run
