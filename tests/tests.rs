@@ -14,4 +14,5 @@ mod random;
 mod report;
 mod spectrum;
 mod surface;
+mod tiles;
 mod weather;
