@@ -283,6 +283,12 @@ struct MapArgs {
     /// `lobemap merge`; `array/N` takes K from $SLURM_ARRAY_TASK_ID or $JOB_COMPLETION_INDEX.
     #[arg(long, value_name = "K/N")]
     tile: Option<String>,
+    /// Aggregate far nodes in clusters with at most this error on every layer (dB, 0.05 to
+    /// 6; the worst cell's bound is `far_field_bound_db` in summary.json): for dense
+    /// layouts. Layers total, interference, sinr, server (the default with this flag); omni
+    /// receiver, one channel, no surface.
+    #[arg(allow_hyphen_values = true, long, value_name = "TOL")]
+    far_field_db: Option<f64>,
 }
 
 fn bad_flag(flag: &str, msg: String) -> anyhow::Error {
@@ -524,7 +530,9 @@ fn map_cmd(sc: &Scenario, a: MapArgs, quiet: bool, default_out: Option<&str>) ->
     }
     // Over a surface the default layers include the line-of-sight count, with [rain] the
     // availability.
-    if a.layers == DEFAULT_LAYERS {
+    if a.layers == DEFAULT_LAYERS && a.far_field_db.is_some() {
+        layers.coverage = false;
+    } else if a.layers == DEFAULT_LAYERS {
         layers.visible = sc.surface().is_some();
         layers.availability = sc.weather().rain.is_some();
         layers.channel = sc.uses_channels();
@@ -559,6 +567,7 @@ fn map_cmd(sc: &Scenario, a: MapArgs, quiet: bool, default_out: Option<&str>) ->
         sc,
         &MapOptions {
             tile,
+            far_field_db: a.far_field_db,
             out: out.clone(),
             layers,
             cutoff_m: a.cutoff_m,
@@ -582,6 +591,9 @@ fn map_cmd(sc: &Scenario, a: MapArgs, quiet: bool, default_out: Option<&str>) ->
             "{}: {} nodes, {} cells ({} x {}), {:.2} s, {:.3e} pair evaluations",
             s.scenario, s.nodes, s.cells, s.cols, s.rows, s.elapsed_s, s.pair_evaluations as f64
         );
+        if let (Some(tol), Some(b)) = (s.far_field_db, s.far_field_bound_db) {
+            eprintln!("far field: worst cell's bound {b:.3} dB (tolerance {tol} dB)");
+        }
         if let (Some(f), Some(h)) = (s.sinr_ok_fraction, s.hotspots) {
             eprintln!(
                 "SINR >= {} dB on {:.1} % of cells; {} interference hot spot(s)",

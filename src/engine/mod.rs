@@ -29,6 +29,7 @@ use rayon::prelude::*;
 use rstar::{RTree, primitives::GeomWithData};
 
 mod availability;
+mod farfield;
 pub(crate) mod kernels;
 mod prepare;
 mod row;
@@ -159,6 +160,8 @@ pub struct Layers {
     pub pair_evaluations: u64,
     /// With a cutoff: the worst cell's upper bound on the dropped power, dB relative to noise.
     pub neglected_db: Option<f64>,
+    /// With far-field aggregation: the worst cell's bound on the error of any layer, dB.
+    pub far_field_bound_db: Option<f64>,
 }
 
 /// Prepared nodes and model, ready to run over the grid.
@@ -423,6 +426,7 @@ impl Engine<'_> {
             availability,
             pair_evaluations: pairs,
             neglected_db: neglected,
+            far_field_bound_db: None,
         }
     }
 }

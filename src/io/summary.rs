@@ -111,4 +111,11 @@ pub struct Summary {
     /// With `[draw]`: nodes drawn in the first layout (the one in layout.geojson).
     #[serde(skip_serializing_if = "Option::is_none")]
     pub drawn_nodes: Option<usize>,
+    /// With `--far-field-db`: the tolerance asked for, dB.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub far_field_db: Option<f64>,
+    /// With `--far-field-db`: the worst cell's bound on the error of every written layer
+    /// against the exact sum, dB (rounded up; at most the tolerance).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub far_field_bound_db: Option<f64>,
 }

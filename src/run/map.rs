@@ -34,6 +34,56 @@ pub struct MapOptions {
     pub realizations: usize,
     /// Compute one tile of the map (a block of rows) into its own folder under `out`.
     pub tile: Option<crate::run::tiles::Tile>,
+    /// Far-field aggregation with this tolerance, dB (see [`Engine::run_far_field`]).
+    pub far_field_db: Option<f64>,
+}
+
+/// Why the far-field aggregation cannot run on this scenario with these options: one problem
+/// per reason, naming the table or flag.
+pub fn far_field_problems(sc: &Scenario, opts: &MapOptions) -> Vec<Problem> {
+    let mut v = Vec::new();
+    let file = sc.path.display().to_string();
+    let why = "the far-field aggregation sums clusters of nodes as isotropic emitters";
+    if let Some(t) = opts.far_field_db
+        && !(t.is_finite() && (0.05..=6.0).contains(&t))
+    {
+        v.push(Problem::flag("--far-field-db", format!("value {t} is outside the allowed range [0.05, 6] dB")));
+    }
+    if opts.cutoff_m.is_some() {
+        v.push(Problem::flag(
+            "--cutoff-m",
+            "the far-field aggregation replaces the cutoff: give one of --far-field-db and --cutoff-m".to_string(),
+        ));
+    }
+    let l = opts.layers;
+    for (name, on) in
+        [("coverage", l.coverage), ("visible", l.visible), ("availability", l.availability), ("channel", l.channel)]
+    {
+        if on {
+            v.push(Problem::flag(
+                "--layers",
+                format!("layer `{name}` is not computed with --far-field-db ({why}); allowed there: total, interference, sinr, server"),
+            ));
+        }
+    }
+    if sc.receiver.is_aimed() {
+        v.push(Problem::new(&file, Some("[receiver]".into()), "antenna", format!("an aimed receiver is not supported with --far-field-db ({why}, and an aimed receiver weights each interferer by its direction): use an omni receiver")));
+    }
+    if sc.surface().is_some() {
+        v.push(Problem::new(&file, Some("[surface]".into()), "surface", format!("--far-field-db does not model obstruction ({why}, and each pair's line of sight differs): map without it, or in tiles")));
+    }
+    let mut classes = sc.nodes.iter().map(|n| (n.channel, n.polarisation));
+    if let Some(first) = classes.next()
+        && classes.any(|c| c != first)
+    {
+        v.push(Problem::new(
+            &file,
+            Some("[channels]".into()),
+            "channel",
+            format!("--far-field-db needs every node on one channel and polarisation ({why} of one class)"),
+        ));
+    }
+    v
 }
 
 /// What the map job produced.
@@ -121,6 +171,12 @@ pub fn map_file_names() -> Vec<String> {
 /// Runs the map job and writes every output into `opts.out` (with a tile, one tile of the
 /// map into its own folder: [`crate::run::tiles`]).
 pub fn run_map(sc: &Scenario, opts: &MapOptions) -> Result<MapResult, Error> {
+    if opts.far_field_db.is_some() {
+        let p = far_field_problems(sc, opts);
+        if !p.is_empty() {
+            return Err(Error::Input(p));
+        }
+    }
     if let Some(tile) = opts.tile {
         return crate::run::tiles::run_tile(sc, opts, tile);
     }
@@ -130,7 +186,12 @@ pub fn run_map(sc: &Scenario, opts: &MapOptions) -> Result<MapResult, Error> {
     let (layers, used) = compute(sc, opts, 0..sc.grid.rows());
     let elapsed_s = t0.elapsed().as_secs_f64();
     let stats = LayerStats::of(&layers, used.weather().target_pct);
-    let run = RunFacts { realizations: opts.realizations, cutoff_m: opts.cutoff_m, elapsed_s };
+    let run = RunFacts {
+        far_field_db: opts.far_field_db,
+        realizations: opts.realizations,
+        cutoff_m: opts.cutoff_m,
+        elapsed_s,
+    };
     let summary = write_map(&mut st, &used, &layers, &stats, &run)?;
     let written = st.commit()?;
     Ok(MapResult { summary, layers, files: written })
@@ -141,14 +202,19 @@ pub fn run_map(sc: &Scenario, opts: &MapOptions) -> Result<MapResult, Error> {
 /// layout with a `[draw]` table).
 pub(crate) fn compute(sc: &Scenario, opts: &MapOptions, rows: std::ops::Range<usize>) -> (Layers, Scenario) {
     let eopts = Options { layers: opts.layers, cutoff_m: opts.cutoff_m, progress: opts.progress };
+    let run = |e: &Engine<'_>| match opts.far_field_db {
+        Some(tol) => e.run_far_field(opts.layers, rows.clone(), tol),
+        None => e.run_rows(&eopts, rows.clone()),
+    };
     match &sc.draw {
-        None => (Engine::new(sc).run_rows(&eopts, rows), sc.clone()),
-        Some(spec) => ensemble(sc, spec, &eopts, opts.realizations.max(1), rows),
+        None => (run(&Engine::new(sc)), sc.clone()),
+        Some(spec) => ensemble(sc, spec, &run, opts.realizations.max(1)),
     }
 }
 
 /// What a run knew besides its layers, for the summary.
 pub(crate) struct RunFacts {
+    pub(crate) far_field_db: Option<f64>,
     pub(crate) realizations: usize,
     pub(crate) cutoff_m: Option<f64>,
     pub(crate) elapsed_s: f64,
@@ -171,6 +237,9 @@ pub(crate) struct LayerStats {
     pub(crate) pair_evaluations: u64,
     /// The worst cell's bound on the power a cutoff dropped, dB relative to noise (unrounded).
     neglected_db: Option<f64>,
+    /// The worst cell's far-field bound, dB (unrounded).
+    #[serde(default)]
+    far_field_bound_db: Option<f64>,
 }
 
 impl LayerStats {
@@ -193,6 +262,7 @@ impl LayerStats {
                 as u64,
             pair_evaluations: layers.pair_evaluations,
             neglected_db: layers.neglected_db,
+            far_field_bound_db: layers.far_field_bound_db,
         }
     }
 
@@ -215,6 +285,10 @@ impl LayerStats {
         self.availability_ok += o.availability_ok;
         self.pair_evaluations += o.pair_evaluations;
         self.neglected_db = match (self.neglected_db, o.neglected_db) {
+            (Some(a), Some(b)) => Some(a.max(b)),
+            (a, b) => a.or(b),
+        };
+        self.far_field_bound_db = match (self.far_field_bound_db, o.far_field_bound_db) {
             (Some(a), Some(b)) => Some(a.max(b)),
             (a, b) => a.or(b),
         };
@@ -307,7 +381,12 @@ pub(crate) fn tile_summary(
     elapsed_s: f64,
     sub: &crate::geometry::grid::Grid,
 ) -> Summary {
-    let run = RunFacts { realizations: opts.realizations, cutoff_m: opts.cutoff_m, elapsed_s };
+    let run = RunFacts {
+        far_field_db: opts.far_field_db,
+        realizations: opts.realizations,
+        cutoff_m: opts.cutoff_m,
+        elapsed_s,
+    };
     let zones = ZoneCounts { hotspots: None, outage: None, sub_cell_zones: 0 };
     summarize(&Scenario { grid: *sub, ..sc.clone() }, layers, stats, &run, zones, Vec::new())
 }
@@ -407,6 +486,8 @@ pub(crate) fn summarize(
         channels: layers.channel.as_ref().map(|_| sc.spectrum().channels.iter().map(|c| c.name.clone()).collect()),
         realizations: sc.draw.as_ref().map(|_| run.realizations.max(1)),
         drawn_nodes: sc.draw.as_ref().map(|_| sc.nodes.iter().filter(|n| n.id.starts_with("draw-")).count()),
+        far_field_db: run.far_field_db,
+        far_field_bound_db: stats.far_field_bound_db.map(|v| (v * 1000.0).ceil() / 1000.0),
     }
 }
 
@@ -428,12 +509,11 @@ pub fn short_of_target(
 fn ensemble(
     sc: &Scenario,
     spec: &crate::model::draw::DrawSpec,
-    eopts: &Options,
+    run: &dyn Fn(&Engine<'_>) -> Layers,
     n: usize,
-    rows: std::ops::Range<usize>,
 ) -> (Layers, Scenario) {
     let first = Scenario { nodes: crate::random::layout::layout(sc, spec, spec.seed), ..sc.clone() };
-    let mut acc = Engine::new(&first).run_rows(eopts, rows.clone());
+    let mut acc = run(&Engine::new(&first));
     if n == 1 {
         return (acc, first);
     }
@@ -447,7 +527,7 @@ fn ensemble(
     acc.channel = None;
     for i in 1..n {
         let sci = Scenario { nodes: crate::random::layout::layout(sc, spec, spec.seed + i as u64), ..sc.clone() };
-        let mut l = Engine::new(&sci).run_rows(eopts, rows.clone());
+        let mut l = run(&Engine::new(&sci));
         for (a, b) in [(&mut acc.total, &mut l.total), (&mut acc.interference, &mut l.interference)] {
             if let (Some(a), Some(b)) = (a, b) {
                 to_mw(b);
@@ -465,6 +545,10 @@ fn ensemble(
         }
         acc.pair_evaluations += l.pair_evaluations;
         acc.neglected_db = match (acc.neglected_db, l.neglected_db) {
+            (Some(a), Some(b)) => Some(a.max(b)),
+            (a, b) => a.or(b),
+        };
+        acc.far_field_bound_db = match (acc.far_field_bound_db, l.far_field_bound_db) {
             (Some(a), Some(b)) => Some(a.max(b)),
             (a, b) => a.or(b),
         };

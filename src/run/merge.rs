@@ -63,8 +63,11 @@ fn check_tiles(tiles: &[(PathBuf, Manifest)]) -> Result<(), Error> {
         if m.inputs_sha256 != first.inputs_sha256 {
             differ("inputs_sha256", "the inputs differ".into());
         }
-        if (m.realizations, m.cutoff_m) != (first.realizations, first.cutoff_m) {
-            differ("realizations", format!("realizations {} and cutoff {:?}", m.realizations, m.cutoff_m));
+        if (m.realizations, m.cutoff_m, m.far_field_db) != (first.realizations, first.cutoff_m, first.far_field_db) {
+            differ(
+                "realizations",
+                format!("realizations {}, cutoff {:?} and far field {:?}", m.realizations, m.cutoff_m, m.far_field_db),
+            );
         }
         if m.tiles != first.tiles {
             continue;
@@ -112,7 +115,9 @@ fn field_of(m: &Manifest, field: &str) -> String {
         "tiles" => m.tiles.to_string(),
         "grid" => format!("{:?}", m.grid),
         "layers" => format!("{:?}", m.layers),
-        "realizations" => format!("realizations {} and cutoff {:?}", m.realizations, m.cutoff_m),
+        "realizations" => {
+            format!("realizations {}, cutoff {:?} and far field {:?}", m.realizations, m.cutoff_m, m.far_field_db)
+        }
         _ => "other inputs".into(),
     }
 }
@@ -231,7 +236,12 @@ pub fn run_merge(opts: &MergeOptions) -> Result<MergeResult, Error> {
     for (name, xml) in &vrts {
         st.write(name, xml.as_bytes())?;
     }
-    let run = RunFacts { realizations: first.realizations, cutoff_m: first.cutoff_m, elapsed_s };
+    let run = RunFacts {
+        far_field_db: first.far_field_db,
+        realizations: first.realizations,
+        cutoff_m: first.cutoff_m,
+        elapsed_s,
+    };
     let summary = write_map(&mut st, &used, &layers, &stats, &run)?;
     let files = st.commit()?;
     Ok(MergeResult { summary, tiles: tiles.len(), files })

@@ -112,6 +112,9 @@ pub(crate) struct Manifest {
     pub(crate) layers: Vec<String>,
     pub(crate) realizations: usize,
     pub(crate) cutoff_m: Option<f64>,
+    /// The far-field tolerance, dB.
+    #[serde(default)]
+    pub(crate) far_field_db: Option<f64>,
     /// Computation time of the tile, s.
     pub(crate) elapsed_s: f64,
     pub(crate) stats: LayerStats,
@@ -190,6 +193,7 @@ pub(crate) fn run_tile(sc: &Scenario, opts: &MapOptions, tile: Tile) -> Result<M
         layers: names,
         realizations: opts.realizations,
         cutoff_m: opts.cutoff_m,
+        far_field_db: opts.far_field_db,
         elapsed_s,
         stats,
     };
