@@ -8,6 +8,7 @@ mod aggregate;
 mod assign;
 mod cli;
 mod coverage;
+mod farfield;
 mod faults;
 mod physics;
 mod random;

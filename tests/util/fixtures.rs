@@ -54,3 +54,36 @@ pub fn square(frame: &LocalFrame, half_m: f64) -> BBox {
     let (east, north) = frame.to_geo(half_m, half_m);
     BBox { west, south, east, north }
 }
+
+/// The exact double-precision sums at cell (row, col) of a scenario without a surface, with
+/// an omni receiver: (total, interference) in mW, with the model's link budget of every node
+/// (the server is the strongest transmitting node, as in the probe). Lean enough for 1e6
+/// nodes: endpoints are given precomputed.
+#[allow(dead_code)] // used by tests/farfield.rs and benches/farfield.rs only
+pub fn exact_sums(
+    sc: &lobemap::model::scenario::Scenario,
+    ends: &[lobemap::model::link::Endpoint],
+    row: usize,
+    col: usize,
+) -> (f64, f64) {
+    use lobemap::model::link::{Budget, Geometry};
+    let g = sc.grid();
+    let (lon, lat) = (g.lon_of_col(col), g.lat_of_row(row));
+    let rx = sc.receiver_end(lon, lat);
+    let g_omni = 10f64.powf(sc.receiver().omni_gain_dbi() / 10.0);
+    let (mut total, mut best, mut best_w) = (0.0, f64::MIN, 0.0);
+    for (n, e) in sc.nodes().iter().zip(ends) {
+        if n.activity <= 0.0 {
+            continue;
+        }
+        let b = Budget::new(sc.pathloss_of(n), n, Geometry::between(e, &rx));
+        let p = 10f64.powf(b.isotropic_dbm() / 10.0);
+        total += n.activity * p;
+        if p > best {
+            best = p;
+            best_w = n.activity * p;
+        }
+    }
+    let shadow = sc.fading().shadow_mean();
+    (shadow * g_omni * total, shadow * g_omni * (total - best_w))
+}
