@@ -254,7 +254,7 @@ impl FarTree {
         }
         // Pattern segments: flat sectors by beam width, tables by table.
         let seg_lo = self.segs.len() as u32;
-        let mut kinds: Vec<(u32, bool, u32)> = Vec::new(); // (key bits, is table, members)
+        let mut kinds: Vec<(u32, bool)> = Vec::new(); // (beam cosine bits or table, is a table)
         for &k in &members {
             let n = &e.nodes[k as usize];
             let key = match n.lut {
@@ -262,11 +262,11 @@ impl FarTree {
                 None => continue,
                 Some(t) => (t as u32, true),
             };
-            if !kinds.iter().any(|(a, b, _)| (*a, *b) == key) {
-                kinds.push((key.0, key.1, 0));
+            if !kinds.contains(&key) {
+                kinds.push(key);
             }
         }
-        for (key, is_table, _) in kinds {
+        for (key, is_table) in kinds {
             let mut list: Vec<(f64, u32)> = members
                 .iter()
                 .filter(|&&k| {
@@ -749,17 +749,10 @@ fn far_block_body<D: Decay>(
     let db = |v: f32| if v > 0.0 { 10.0 * v.log10() } else { NODATA };
     let noise = e.noise_mw as f32;
     let sm = e.shadow_mean;
-    let mut worst = 0f64;
-    let bound = lists.bound;
-    let rel_db = |v: f64| {
-        if bound <= 0.0 {
-            0.0
-        } else if bound >= v {
-            f64::INFINITY
-        } else {
-            -10.0 * (1.0 - bound / v).log10()
-        }
-    };
+    // The bound in dB falls as the value it is relative to grows: only the block's smallest
+    // value of each written layer (linear, before the receiver's gain) is needed.
+    let nv = (noise / (e.g_omni * sm)) as f64;
+    let mut least = f64::INFINITY;
     for r in r0.max(span.start)..r1.min(span.end) {
         for (j, c) in cr.clone().enumerate() {
             let i = (r - r0) * bw + j;
@@ -768,22 +761,29 @@ fn far_block_body<D: Decay>(
             let interf = e.g_omni * b.other[i];
             if let Some(t) = out[0].as_deref_mut() {
                 t[o] = db(sm * (e.g_omni * all));
-                worst = worst.max(rel_db(all as f64));
+                least = least.min(all as f64);
             }
             if let Some(it) = out[1].as_deref_mut() {
                 it[o] = db(sm * interf);
-                worst = worst.max(rel_db(b.other[i] as f64));
+                least = least.min(b.other[i] as f64);
             }
             let best = b.best[i];
             if let Some(s) = out[2].as_deref_mut() {
                 s[o] = if best > 0.0 { db(e.g_signal * best * sm / (interf * sm + noise)) } else { NODATA };
-                let nv = (noise / (e.g_omni * sm)) as f64;
-                worst = worst.max(rel_db(b.other[i] as f64 + nv));
+                least = least.min(b.other[i] as f64 + nv);
             }
             if let Some(v) = out[3].as_deref_mut() {
                 v[o] = if b.server[i] == u32::MAX { NODATA } else { b.server[i] as f32 };
             }
         }
     }
+    let bound = lists.bound;
+    let worst = if bound <= 0.0 {
+        0.0
+    } else if bound >= least {
+        f64::INFINITY
+    } else {
+        -10.0 * (1.0 - bound / least).log10()
+    };
     (pairs, worst)
 }
