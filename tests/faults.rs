@@ -114,9 +114,9 @@ fn smaller_faults_are_refused() {
         .replace(r#""id":"b""#, r#""id":123456789012345678901234567891"#);
     let (_d, p) = site(TOML, &long_ids);
     refused(&["check", &p], "write such an id as a string");
-    let comma = NODES.replace(r#""id":"a""#, r#""id":"a,1""#);
-    let (_d, p) = site(TOML, &comma);
-    refused(&["check", &p], "comma");
+    let tab = NODES.replace(r#""id":"a""#, r#""id":"a\t1""#);
+    let (_d, p) = site(TOML, &tab);
+    refused(&["check", &p], "control character");
     refused(&["aggregate", "--density-per-km2", "100", "--max-density", "--budget-dbm", "nan"], "--budget-dbm");
     refused(&["aggregate", "--density-per-km2", "100", "--model", "free-space", "--exponent", "3"], "--exponent");
     let (_d, p) = site(&TOML.replace("name = \"faults\"", "name = \"..\""), NODES);
@@ -434,6 +434,7 @@ fn a_rerun_retires_its_own_old_files_and_keeps_the_rest() {
         names.sort();
         let mut want = vec![
             "install.csv",
+            "install.json",
             "layout.geojson",
             "links.csv",
             "links.geojson",
@@ -441,9 +442,13 @@ fn a_rerun_retires_its_own_old_files_and_keeps_the_rest() {
             "report.html",
             "scenario.toml",
             "summary.json",
+            "total-sheet.png",
             "total.pgw",
             "total.png",
+            "total.png.aux.xml",
             "total.tif",
+            "total.tif.aux.xml",
+            "site.kmz",
             "user.txt",
         ];
         want.sort();
@@ -525,7 +530,7 @@ fn a_killed_commit_leaves_the_previous_or_the_new_set() {
         let o = run(&["links", &p, "--out", dir, "--no-maps", "--quiet"]);
         assert!(o.status.success(), "{}", stderr(&o));
         let mut after = snapshot(&out);
-        for f in ["links.csv", "links.geojson", "install.csv", "report.html"] {
+        for f in ["links.csv", "links.geojson", "install.csv", "install.json", "report.html"] {
             assert!(after.remove(f).is_some(), "{f} missing");
         }
         let expect = if step == "before-swap" { &previous } else { &new_set };

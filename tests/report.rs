@@ -50,17 +50,22 @@ fn links_tables_and_installer_sheet() {
     assert!((should - back).abs() < tol::TWO_DECIMALS);
     let csv = std::fs::read_to_string(out.join("install.csv")).unwrap();
     let lines: Vec<&str> = csv.lines().collect();
-    assert!(lines[0].starts_with('#') && lines[0].contains("W/m2") && lines[0].contains("local exposure rules"));
-    assert!(lines[1].starts_with(
-        "id,name,lat,lon,height_m,channel,centre_ghz,polarisation,azimuth_true_deg,azimuth_planned_deg,differs_from_plan,declination_deg,azimuth_magnetic_deg"
+    assert!(lines[0].starts_with(
+        "id,name,lat_deg,lon_deg,height_m,channel,centre_ghz,polarisation,azimuth_true_deg,azimuth_planned_deg,differs_from_plan,declination_deg,azimuth_magnetic_deg"
     ));
-    assert_eq!(lines.len(), 2 + 46);
+    let side: serde_json::Value =
+        serde_json::from_str(&std::fs::read_to_string(out.join("install.json")).unwrap()).unwrap();
+    assert!(side["reference_level"].as_str().unwrap().contains("W/m2"));
+    assert!(
+        side["cautions"].as_array().unwrap().iter().any(|c| c.as_str().unwrap().contains("local RF exposure rules"))
+    );
+    let rows: Vec<csv::StringRecord> = csv::Reader::from_reader(csv.as_bytes()).records().map(Result::unwrap).collect();
+    assert_eq!(rows.len(), 46);
     // Magnetic = true − declination, modulo 360 (the definition of declination).
-    for l in &lines[2..] {
-        let f: Vec<&str> = l.split(',').collect();
+    for f in &rows {
         let (t, d, m): (f64, f64, f64) = (f[8].parse().unwrap(), f[11].parse().unwrap(), f[12].parse().unwrap());
         let diff = ((t - d - m) % 360.0 + 360.0) % 360.0;
-        assert!(!(0.11..=359.89).contains(&diff), "{l}");
+        assert!(!(0.11..=359.89).contains(&diff), "{f:?}");
     }
 }
 
@@ -183,13 +188,13 @@ fn report_renders_in_headless_chromium() {
 #[test]
 fn installer_sheet_agrees_with_link_table() {
     let (_d, out) = links_out();
-    let csv = std::fs::read_to_string(out.join("install.csv")).unwrap();
-    let mut lines = csv.lines().skip(1);
-    let header: Vec<&str> = lines.next().unwrap().split(',').collect();
+    let mut reader = csv::Reader::from_path(out.join("install.csv")).unwrap();
+    let header: Vec<String> = reader.headers().unwrap().iter().map(String::from).collect();
     let col = |name: &str| header.iter().position(|h| *h == name).unwrap();
-    let sheet: std::collections::HashMap<String, Vec<String>> = lines
-        .map(|l| {
-            let f: Vec<String> = l.split(',').map(String::from).collect();
+    let sheet: std::collections::HashMap<String, Vec<String>> = reader
+        .records()
+        .map(|r| {
+            let f: Vec<String> = r.unwrap().iter().map(String::from).collect();
             (f[0].clone(), f)
         })
         .collect();

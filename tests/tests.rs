@@ -10,6 +10,7 @@ mod cli;
 mod coverage;
 mod farfield;
 mod faults;
+mod handoff;
 mod physics;
 mod random;
 mod report;

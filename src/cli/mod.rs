@@ -13,7 +13,7 @@ use std::process::ExitCode;
 
 /// Interference, SINR and coverage maps for directional wireless nodes.
 #[derive(Parser)]
-#[command(name = "lobemap", version, about)]
+#[command(name = "lobemap", version, about, after_help = EXIT_CODES)]
 pub struct Cli {
     #[command(subcommand)]
     cmd: Cmd,
@@ -25,7 +25,11 @@ pub struct Cli {
     quiet: bool,
 }
 
+/// The exit codes, shown under every `--help`.
+const EXIT_CODES: &str = "Exit codes: 0 success; 1 internal fault; 2 bad input (every problem named, nothing written); 3 `links --strict` found a link that fails, lacks 60 % Fresnel clearance or misses the availability target; 130 interrupted (temporaries removed).";
+
 #[derive(Subcommand)]
+#[command(after_help = EXIT_CODES)]
 enum Cmd {
     /// Compute the layers of a scenario and write GeoTIFFs, PNGs, hot spots and a summary.
     #[command(allow_negative_numbers = true)]
@@ -81,6 +85,13 @@ enum Cmd {
         #[arg(allow_hyphen_values = true, long, default_value_t = 8192)]
         max_memory_mib: u64,
     },
+    /// Print a shell completion script to stdout (install it where your shell looks).
+    Completions {
+        /// The shell.
+        shell: clap_complete::Shell,
+    },
+    /// Print the manual page (roff) to stdout: `lobemap man > lobemap.1; man ./lobemap.1`.
+    Man,
     /// Validate a scenario and its node file; list every problem.
     Check {
         /// Scenario file (TOML).
@@ -418,6 +429,18 @@ pub fn run(cli: Cli) -> anyhow::Result<ExitCode> {
                     out.display()
                 );
             }
+            Ok(ExitCode::SUCCESS)
+        }
+        Cmd::Completions { shell } => {
+            let mut cmd = <Cli as clap::CommandFactory>::command();
+            clap_complete::generate(shell, &mut cmd, "lobemap", &mut std::io::stdout());
+            Ok(ExitCode::SUCCESS)
+        }
+        Cmd::Man => {
+            let cmd = <Cli as clap::CommandFactory>::command();
+            let mut out = Vec::new();
+            clap_mangen::Man::new(cmd).render(&mut out)?;
+            std::io::Write::write_all(&mut std::io::stdout(), &out)?;
             Ok(ExitCode::SUCCESS)
         }
         Cmd::Check { scenario, max_memory_mib } => match Scenario::load(&scenario) {

@@ -105,8 +105,10 @@ pub fn nice_length_m(width_m: f64) -> f64 {
     [5.0, 2.0, 1.0].iter().map(|m| m * p).find(|l| *l <= target).unwrap_or(p)
 }
 
-/// Renders a heatmap.
-pub fn render(spec: &MapSpec) -> Result<Rendered, String> {
+/// Renders the annotated picture of a layer (map, colour bar, scale bar, north arrow,
+/// nodes, links and outlines) as PNG bytes; not georeferenced, since the panel and the
+/// annotations are not part of the grid ([`render_map_only`] is).
+pub fn render(spec: &MapSpec) -> Result<Vec<u8>, String> {
     register_font();
     let g = spec.grid;
     let side = g.cols().max(g.rows()) as f64;
@@ -122,24 +124,15 @@ pub fn render(spec: &MapSpec) -> Result<Rendered, String> {
     let (w, h) = (mw + PANEL_W, mh.max(460));
     let cmap = tideline();
     let avail = spec.unit == AVAILABILITY;
-    let (lo, hi) = match spec.unit {
-        PROBABILITY => (0.0, 1.0),
-        AVAILABILITY => (2.0, 5.0),
-        _ => colour_range(spec.data),
-    };
+    let (lo, hi) = value_range(spec.unit, spec.data);
+    let colour = Colouring { lo, hi, avail };
     let mut buf = vec![255u8; (w * h * 3) as usize];
     for y in 0..mh {
         let r = ((y as f64 + 0.5) / mh as f64 * g.rows() as f64) as usize;
         for x in 0..mw {
             let c = ((x as f64 + 0.5) / mw as f64 * g.cols() as f64) as usize;
             let v = spec.data[r.min(g.rows() - 1) * g.cols() + c.min(g.cols() - 1)];
-            let rgb = if v == NODATA || !v.is_finite() {
-                [205, 205, 205]
-            } else if avail {
-                cmap[(((nines(v) - lo) / (hi - lo)).clamp(0.0, 1.0) * 255.0).round() as usize]
-            } else {
-                cmap[(((v - lo) / (hi - lo)).clamp(0.0, 1.0) * 255.0).round() as usize]
-            };
+            let rgb = colour.rgb(&cmap, v).unwrap_or([205, 205, 205]);
             let o = ((y * w + x) * 3) as usize;
             buf[o..o + 3].copy_from_slice(&rgb);
         }
@@ -275,7 +268,64 @@ pub fn render(spec: &MapSpec) -> Result<Rendered, String> {
     let img = image::RgbImage::from_raw(w, h, buf).ok_or("image buffer size mismatch")?;
     let mut png = Vec::new();
     img.write_to(&mut std::io::Cursor::new(&mut png), image::ImageFormat::Png).map_err(|e| e.to_string())?;
-    let (pw, ph) = ((b.east - b.west) / mw as f64, (b.north - b.south) / mh as f64);
-    let world = format!("{pw:.12}\n0.0\n0.0\n{:.12}\n{:.12}\n{:.12}\n", -ph, b.west + pw / 2.0, b.north - ph / 2.0);
+    Ok(png)
+}
+
+/// The colour limits of a layer with unit `unit`: fixed for probabilities (0..1) and
+/// availability (2 to 5 nines), else from the values ([`colour_range`]).
+pub fn value_range(unit: &str, data: &[f32]) -> (f32, f32) {
+    match unit {
+        PROBABILITY => (0.0, 1.0),
+        AVAILABILITY => (2.0, 5.0),
+        _ => colour_range(data),
+    }
+}
+
+/// How values become colours: linear from `lo` to `hi` on the colour map, or by the number
+/// of nines for availability.
+struct Colouring {
+    lo: f32,
+    hi: f32,
+    avail: bool,
+}
+
+impl Colouring {
+    /// The colour of `v`, or `None` where the layer is undefined.
+    fn rgb(&self, cmap: &[[u8; 3]], v: f32) -> Option<[u8; 3]> {
+        if v == NODATA || !v.is_finite() {
+            return None;
+        }
+        let x = if self.avail { nines(v) } else { v };
+        Some(cmap[(((x - self.lo) / (self.hi - self.lo)).clamp(0.0, 1.0) * 255.0).round() as usize])
+    }
+}
+
+/// The georeferenced picture of a layer alone: one RGBA pixel per cell (north row first),
+/// transparent where the layer is undefined, with the world file that places each pixel on
+/// its cell exactly (ESRI world-file convention: pixel size and the centre of the top-left
+/// pixel).
+pub fn render_map_only(grid: &Grid, data: &[f32], unit: &str) -> Result<Rendered, String> {
+    let png = map_png(grid.cols(), grid.rows(), data, unit)?;
+    let b = grid.bbox();
+    let (pw, ph) = (grid.dlon(), grid.dlat());
+    let world = format!("{pw}\n0.0\n0.0\n{}\n{}\n{}\n", -ph, b.west + pw / 2.0, b.north - ph / 2.0);
     Ok(Rendered { png, world })
+}
+
+/// The RGBA PNG of `cols` × `rows` values (north row first) on the layer's colours,
+/// transparent where undefined.
+pub fn map_png(cols: usize, rows: usize, data: &[f32], unit: &str) -> Result<Vec<u8>, String> {
+    let cmap = tideline();
+    let (lo, hi) = value_range(unit, data);
+    let colour = Colouring { lo, hi, avail: unit == AVAILABILITY };
+    let mut buf = vec![0u8; data.len() * 4];
+    for (px, &v) in buf.chunks_exact_mut(4).zip(data) {
+        if let Some(c) = colour.rgb(&cmap, v) {
+            px.copy_from_slice(&[c[0], c[1], c[2], 255]);
+        }
+    }
+    let img = image::RgbaImage::from_raw(cols as u32, rows as u32, buf).ok_or("image buffer size mismatch")?;
+    let mut png = Vec::new();
+    img.write_to(&mut std::io::Cursor::new(&mut png), image::ImageFormat::Png).map_err(|e| e.to_string())?;
+    Ok(png)
 }

@@ -5,6 +5,7 @@ pub(crate) mod colormap;
 pub(crate) mod geotiff;
 pub(crate) mod heatmap;
 pub(crate) mod hotspots;
+pub(crate) mod kmz;
 pub(crate) mod layout;
 pub(crate) mod profile;
 pub(crate) mod report;

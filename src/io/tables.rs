@@ -1,4 +1,4 @@
-//! Text tables and CSV: the aggregate report.
+//! Text tables and CSV: the aggregate report, and the one CSV writer every table uses.
 
 use crate::config::field::FieldSpec;
 use crate::random::characterise::Report;
@@ -40,22 +40,37 @@ pub fn inputs_line(s: &FieldSpec) -> String {
     }
 }
 
+/// A CSV table through the `csv` crate (RFC 4180: fields with commas, quotes or line breaks
+/// quoted, quotes doubled): one header line, units in the header names (`_m`, `_dbm`, ...),
+/// no comment lines, `\n` line ends.
+pub fn csv_text<I>(header: &[&str], rows: I) -> String
+where
+    I: IntoIterator<Item = Vec<String>>,
+{
+    let mut w = csv::WriterBuilder::new().terminator(csv::Terminator::Any(b'\n')).from_writer(Vec::new());
+    // Writing to memory cannot fail; a row of the wrong length is a programming error.
+    w.write_record(header).expect("CSV header");
+    for r in rows {
+        assert_eq!(r.len(), header.len(), "CSV row length");
+        w.write_record(&r).expect("CSV row");
+    }
+    String::from_utf8(w.into_inner().expect("CSV buffer")).expect("CSV is UTF-8")
+}
+
 /// CSV of the CDF tables (one block per curve set).
 pub fn cdf_csv(sets: &[(String, &Report)]) -> String {
-    let mut s = String::from("set,x_dbm,cdf_gamma,cdf_exact,cdf_mc\n");
-    for (label, r) in sets {
-        for row in &r.cdf {
-            s += &format!(
-                "{},{:.3},{:.9},{:.9},{}\n",
-                label,
-                row.x_dbm,
-                row.gamma,
-                row.exact,
-                row.mc.map(|m| format!("{m:.9}")).unwrap_or_default()
-            );
-        }
-    }
-    s
+    let rows = sets.iter().flat_map(|(label, r)| {
+        r.cdf.iter().map(move |row| {
+            vec![
+                label.clone(),
+                format!("{:.3}", row.x_dbm),
+                format!("{:.9}", row.gamma),
+                format!("{:.9}", row.exact),
+                row.mc.map(|m| format!("{m:.9}")).unwrap_or_default(),
+            ]
+        })
+    });
+    csv_text(&["set", "x_dbm", "cdf_gamma", "cdf_exact", "cdf_mc"], rows)
 }
 
 /// A plain-text summary of a report.
@@ -114,4 +129,14 @@ pub fn table(label: &str, r: &Report) -> String {
         s += &format!("note: {n}\n");
     }
     s
+}
+
+#[cfg(test)]
+mod tests {
+    /// RFC 4180 section 2: a field with a comma or a quote is quoted, quotes doubled.
+    #[test]
+    fn awkward_fields_are_quoted() {
+        let t = super::csv_text(&["id", "name_x"], [vec!["A,1".into(), "say \"hi\"".into()]]);
+        assert_eq!(t, "id,name_x\n\"A,1\",\"say \"\"hi\"\"\"\n");
+    }
 }

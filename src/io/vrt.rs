@@ -17,6 +17,12 @@ pub(crate) struct Source {
     pub(crate) rows: usize,
 }
 
+/// The GDAL PAM sidecar (`.aux.xml`) that gives a world-file raster (the map-only PNGs) its
+/// CRS, EPSG:4326 with longitude first as the world file has it.
+pub(crate) fn srs_sidecar() -> String {
+    format!("<PAMDataset>\n  <SRS dataAxisToSRSAxisMapping=\"2,1\">{}</SRS>\n</PAMDataset>\n", escape(WGS84_WKT))
+}
+
 fn escape(s: &str) -> String {
     s.replace('&', "&amp;").replace('<', "&lt;").replace('>', "&gt;").replace('"', "&quot;")
 }

@@ -4,7 +4,7 @@
 
 use crate::error::Error;
 use crate::geometry::grid::Grid;
-use crate::io::heatmap::{MapSpec, Marker, render};
+use crate::io::heatmap::{MapSpec, Marker, render, render_map_only};
 use crate::io::staging::Staging;
 
 /// One layer ready to write.
@@ -21,6 +21,9 @@ pub(crate) struct LayerOut<'a> {
     pub(crate) outlines: Vec<Vec<(f64, f64)>>,
     /// Whether the layer has a colour scale (the server index has none).
     pub(crate) picture: bool,
+    /// For an index layer (server, channel): the name of each index from 0, written as an
+    /// Int32 raster with these category names.
+    pub(crate) categories: Option<Vec<String>>,
 }
 
 /// What every layer shares: the grid and the markers drawn on pictures.
@@ -34,33 +37,67 @@ pub(crate) struct Context<'a> {
 /// Writes one layer in one format; returns the file names written.
 pub(crate) trait LayerWriter: Sync {
     fn write(&self, st: &mut Staging, cx: &Context, layer: &LayerOut) -> Result<Vec<String>, Error>;
-    /// Endings of every file name this writer can write for a layer (`tif` for `total.tif`).
+    /// Endings of every file name this writer can write for a layer (`tif` for `total.tif`;
+    /// one starting with `-` follows the stem directly: `-sheet.png` for `total-sheet.png`).
     fn extensions(&self) -> &'static [&'static str];
 }
 
-/// Float32 GeoTIFF of every layer.
+/// Cloud-Optimised GeoTIFF of every layer (float32, or Int32 for index layers) with its
+/// GDAL PAM sidecar (description, unit, category names).
 pub(crate) struct GeoTiff;
 impl LayerWriter for GeoTiff {
     fn write(&self, st: &mut Staging, cx: &Context, layer: &LayerOut) -> Result<Vec<String>, Error> {
+        use crate::io::geotiff::{pam_sidecar, write_geotiff, write_index_geotiff};
         let name = format!("{}.tif", layer.name);
         st.write_with(&name, |w| {
-            crate::io::geotiff::write_geotiff(w, cx.grid, layer.data).map_err(std::io::Error::other)
+            match layer.categories {
+                None => write_geotiff(w, cx.grid, layer.data),
+                Some(_) => write_index_geotiff(w, cx.grid, layer.data),
+            }
+            .map_err(std::io::Error::other)
         })?;
-        Ok(vec![name])
+        let aux = format!("{name}.aux.xml");
+        let description = format!("{}: {}", layer.name, layer.title);
+        st.write(&aux, pam_sidecar(&description, layer.unit, layer.categories.as_deref()).as_bytes())?;
+        Ok(vec![name, aux])
     }
     fn extensions(&self) -> &'static [&'static str] {
-        &["tif"]
+        &["tif", "tif.aux.xml"]
     }
 }
 
-/// PNG heatmap with its world file, for layers with a colour scale.
-pub(crate) struct Heatmap;
-impl LayerWriter for Heatmap {
+/// The georeferenced picture of a layer alone for a GIS: one RGBA pixel per cell,
+/// transparent where undefined, its world file and its CRS in a GDAL PAM sidecar, covering
+/// exactly the grid (the GeoTIFF's extent).
+pub(crate) struct MapPicture;
+impl LayerWriter for MapPicture {
     fn write(&self, st: &mut Staging, cx: &Context, layer: &LayerOut) -> Result<Vec<String>, Error> {
         if !layer.picture {
             return Ok(Vec::new());
         }
-        let r = render(&MapSpec {
+        let r = render_map_only(cx.grid, layer.data, layer.unit)
+            .map_err(|e| Error::Output { path: st.dir().join(layer.name), source: std::io::Error::other(e) })?;
+        let (png, pgw, aux) =
+            (format!("{}.png", layer.name), format!("{}.pgw", layer.name), format!("{}.png.aux.xml", layer.name));
+        st.write(&png, &r.png)?;
+        st.write(&pgw, r.world.as_bytes())?;
+        st.write(&aux, crate::io::vrt::srs_sidecar().as_bytes())?;
+        Ok(vec![png, pgw, aux])
+    }
+    fn extensions(&self) -> &'static [&'static str] {
+        &["png", "pgw", "png.aux.xml"]
+    }
+}
+
+/// The annotated picture of a layer for people: colour bar, scale bar, north arrow, nodes,
+/// links and outlines (not georeferenced).
+pub(crate) struct Sheet;
+impl LayerWriter for Sheet {
+    fn write(&self, st: &mut Staging, cx: &Context, layer: &LayerOut) -> Result<Vec<String>, Error> {
+        if !layer.picture {
+            return Ok(Vec::new());
+        }
+        let png = render(&MapSpec {
             grid: cx.grid,
             data: layer.data,
             title: &layer.title,
@@ -71,18 +108,17 @@ impl LayerWriter for Heatmap {
             footprints: cx.footprints,
         })
         .map_err(|e| Error::Output { path: st.dir().join(layer.name), source: std::io::Error::other(e) })?;
-        let (png, pgw) = (format!("{}.png", layer.name), format!("{}.pgw", layer.name));
-        st.write(&png, &r.png)?;
-        st.write(&pgw, r.world.as_bytes())?;
-        Ok(vec![png, pgw])
+        let name = format!("{}-sheet.png", layer.name);
+        st.write(&name, &png)?;
+        Ok(vec![name])
     }
     fn extensions(&self) -> &'static [&'static str] {
-        &["png", "pgw"]
+        &["-sheet.png"]
     }
 }
 
 /// Every layer goes through these, in this order.
-pub(crate) const WRITERS: &[&dyn LayerWriter] = &[&GeoTiff, &Heatmap];
+pub(crate) const WRITERS: &[&dyn LayerWriter] = &[&GeoTiff, &MapPicture, &Sheet];
 
 /// Writes `layer` through every writer; returns the file names written.
 pub(crate) fn write_layer(st: &mut Staging, cx: &Context, layer: &LayerOut) -> Result<Vec<String>, Error> {
@@ -95,5 +131,9 @@ pub(crate) fn write_layer(st: &mut Staging, cx: &Context, layer: &LayerOut) -> R
 
 /// Every file name a layer called `stem` can have, over all writers.
 pub(crate) fn layer_file_names(stem: &str) -> impl Iterator<Item = String> + '_ {
-    WRITERS.iter().flat_map(move |w| w.extensions().iter().map(move |e| format!("{stem}.{e}")))
+    WRITERS.iter().flat_map(move |w| {
+        w.extensions()
+            .iter()
+            .map(move |e| if e.starts_with('-') { format!("{stem}{e}") } else { format!("{stem}.{e}") })
+    })
 }

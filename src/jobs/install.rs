@@ -186,36 +186,71 @@ pub fn sheet(sc: &Scenario) -> Result<InstallSheet, String> {
 
 /// CSV of the sheet, with the limit named in a comment line first.
 pub fn csv(s: &InstallSheet) -> String {
-    let mut out = format!(
-        "# keep-out: far-field distance where EIRP/(4 pi d^2) falls to {} W/m2 ({}); magnetic azimuth = true azimuth - declination (WMM, {}); estimates only: follow local exposure rules and licensed practice\n",
-        s.limit_w_m2, s.limit_name, s.declination_date
-    );
-    out += "id,name,lat,lon,height_m,channel,centre_ghz,polarisation,azimuth_true_deg,azimuth_planned_deg,differs_from_plan,declination_deg,azimuth_magnetic_deg,peer,downtilt_deg,expected_at_peer_dbm,eirp_dbm,keepout_m\n";
-    for r in &s.rows {
-        out += &format!(
-            "{},\"{}\",{:.7},{:.7},{},{},{},{},{},{},{},{},{},{},{},{},{},{}\n",
-            r.id,
-            r.name.replace('"', "'"),
-            r.lat,
-            r.lon,
-            r.height_m,
-            r.channel,
-            r.centre_ghz,
-            r.polarisation,
-            r.azimuth_true_deg,
-            r.azimuth_planned_deg,
-            r.differs_from_plan,
-            r.declination_deg,
-            r.azimuth_magnetic_deg,
-            r.peer,
+    const HEADER: &[&str] = &[
+        "id",
+        "name",
+        "lat_deg",
+        "lon_deg",
+        "height_m",
+        "channel",
+        "centre_ghz",
+        "polarisation",
+        "azimuth_true_deg",
+        "azimuth_planned_deg",
+        "differs_from_plan",
+        "declination_deg",
+        "azimuth_magnetic_deg",
+        "peer",
+        "downtilt_deg",
+        "expected_at_peer_dbm",
+        "eirp_dbm",
+        "keepout_m",
+    ];
+    let rows = s.rows.iter().map(|r| {
+        vec![
+            r.id.clone(),
+            r.name.clone(),
+            format!("{:.7}", r.lat),
+            format!("{:.7}", r.lon),
+            r.height_m.to_string(),
+            r.channel.to_string(),
+            r.centre_ghz.to_string(),
+            r.polarisation.to_string(),
+            r.azimuth_true_deg.to_string(),
+            r.azimuth_planned_deg.to_string(),
+            r.differs_from_plan.to_string(),
+            r.declination_deg.to_string(),
+            r.azimuth_magnetic_deg.to_string(),
+            r.peer.to_string(),
             r.downtilt_deg.map(|v| v.to_string()).unwrap_or_default(),
             r.expected_at_peer_dbm.map(|v| v.to_string()).unwrap_or_default(),
-            r.eirp_dbm,
-            r.keepout_m
-        );
-    }
-    out
+            r.eirp_dbm.to_string(),
+            r.keepout_m.to_string(),
+        ]
+    });
+    crate::io::tables::csv_text(HEADER, rows)
 }
+
+/// What `install.csv` leaves to its sidecar `install.json`: how the keep-out and the
+/// magnetic azimuth were found, and the cautions that go with every row.
+pub fn sidecar(s: &InstallSheet) -> serde_json::Value {
+    serde_json::json!({
+        "file": "install.csv",
+        "keepout": "far-field distance where EIRP/(4 pi d^2) falls to the reference level",
+        "reference_level_w_m2": s.limit_w_m2,
+        "reference_level": s.limit_name,
+        "magnetic_azimuth": "true azimuth - declination (World Magnetic Model)",
+        "declination_date": s.declination_date,
+        "cautions": CAUTIONS,
+    })
+}
+
+/// The cautions every installer output carries.
+pub const CAUTIONS: &[&str] = &[
+    "Keep-out distances are far-field estimates for the main beam only: follow local RF exposure rules and the equipment maker's figures.",
+    "Work at height only with training, fall protection and a second person, under local rules.",
+    "Transmit power, channel and antenna must stay within the licence or the local licence-exempt limits.",
+];
 
 #[cfg(test)]
 mod tests {

@@ -302,57 +302,94 @@ impl LinkRow {
 
 /// CSV with one row per link.
 pub fn csv(rows: &[LinkRow]) -> String {
-    let mut s = String::from(
-        "from,to,length_m,bearing_deg,misalign_from_deg,misalign_to_deg,misaligned_from,misaligned_to,azimuth_from_should_deg,azimuth_to_should_deg,tx_gain_dbi,rx_gain_dbi,path_loss_db,signal_dbm,interference_dbm,noise_dbm,sinr_db,coverage,margin_db,capacity_mbps,passes,line_of_sight,clearance_f1,clearance_ok,obstruction_db,limited_by,top_interferers,gas_db,fade_margin_db,rain_fade_db,availability_pct,outage_min_per_year,availability_bound,meets_target,channel,polarisation,mc_estimate,mc_low,mc_high\n",
-    );
-    for r in rows {
-        let mc = r
-            .monte_carlo
-            .as_ref()
-            .map(|m| format!("{:.4},{:.4},{:.4}", m.estimate, m.low, m.high))
-            .unwrap_or(",,".into());
-        s += &format!(
-            "{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},\"{}\",\"{}\",{},{},{},{},{},{},{},{},{},{}\n",
-            r.from,
-            r.to,
-            r.length_m,
-            r.bearing_deg,
-            r.misalign_from_deg,
-            r.misalign_to_deg,
-            r.misaligned_from,
-            r.misaligned_to,
-            r.azimuth_from_should_deg,
-            r.azimuth_to_should_deg,
-            r.tx_gain_dbi,
-            r.rx_gain_dbi,
-            r.path_loss_db,
-            r.signal_dbm,
+    const HEADER: &[&str] = &[
+        "from",
+        "to",
+        "length_m",
+        "bearing_deg",
+        "misalign_from_deg",
+        "misalign_to_deg",
+        "misaligned_from",
+        "misaligned_to",
+        "azimuth_from_should_deg",
+        "azimuth_to_should_deg",
+        "tx_gain_dbi",
+        "rx_gain_dbi",
+        "path_loss_db",
+        "signal_dbm",
+        "interference_dbm",
+        "noise_dbm",
+        "sinr_db",
+        "coverage_probability",
+        "margin_db",
+        "capacity_mbps",
+        "passes",
+        "line_of_sight",
+        "clearance_f1",
+        "clearance_ok",
+        "obstruction_db",
+        "limited_by",
+        "top_interferers",
+        "gas_db",
+        "fade_margin_db",
+        "rain_fade_db",
+        "availability_pct",
+        "outage_min_per_year",
+        "availability_bound",
+        "meets_target",
+        "channel",
+        "polarisation",
+        "mc_estimate",
+        "mc_low",
+        "mc_high",
+    ];
+    let s = |v: &dyn std::fmt::Display| v.to_string();
+    let table = rows.iter().map(|r| {
+        let mc = r.monte_carlo.as_ref();
+        let mcf = |f: fn(&_) -> f64| mc.map(|m| format!("{:.4}", f(m))).unwrap_or_default();
+        vec![
+            r.from.clone(),
+            r.to.clone(),
+            s(&r.length_m),
+            s(&r.bearing_deg),
+            s(&r.misalign_from_deg),
+            s(&r.misalign_to_deg),
+            s(&r.misaligned_from),
+            s(&r.misaligned_to),
+            s(&r.azimuth_from_should_deg),
+            s(&r.azimuth_to_should_deg),
+            s(&r.tx_gain_dbi),
+            s(&r.rx_gain_dbi),
+            s(&r.path_loss_db),
+            s(&r.signal_dbm),
             r.interference_dbm.map(|v| v.to_string()).unwrap_or_default(),
-            r.noise_dbm,
-            r.sinr_db,
-            r.coverage,
-            r.margin_db,
-            r.capacity_mbps,
-            r.passes,
-            r.line_of_sight,
+            s(&r.noise_dbm),
+            s(&r.sinr_db),
+            s(&r.coverage),
+            s(&r.margin_db),
+            s(&r.capacity_mbps),
+            s(&r.passes),
+            s(&r.line_of_sight),
             r.clearance_f1.map(|v| v.to_string()).unwrap_or_default(),
-            r.clearance_ok,
-            r.obstruction_db,
-            r.limited_by.as_deref().unwrap_or(""),
+            s(&r.clearance_ok),
+            s(&r.obstruction_db),
+            r.limited_by.clone().unwrap_or_default(),
             tops(r),
-            r.weather.gas_db,
+            s(&r.weather.gas_db),
             opt(r.weather.fade_margin_db),
             opt(r.weather.rain_fade_db),
             opt(r.weather.availability_pct),
             opt(r.weather.outage_min_per_year),
-            r.weather.availability_bound.map(Bound::name).unwrap_or(""),
+            r.weather.availability_bound.map(Bound::name).unwrap_or("").to_string(),
             r.meets_target.map(|b| b.to_string()).unwrap_or_default(),
-            r.channel,
-            r.polarisation,
-            mc
-        );
-    }
-    s
+            r.channel.to_string(),
+            r.polarisation.to_string(),
+            mcf(|m| m.estimate),
+            mcf(|m| m.low),
+            mcf(|m| m.high),
+        ]
+    });
+    crate::io::tables::csv_text(HEADER, table)
 }
 
 /// LineStrings from → to carrying the row's properties.

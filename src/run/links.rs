@@ -33,10 +33,11 @@ pub struct LinksResult {
     pub files: Vec<PathBuf>,
 }
 
-/// Runs the link check and writes `links.csv`, `links.geojson`, `install.csv` and
-/// `report.html` into `opts.out`.
+/// Runs the link check and writes `links.csv`, `links.geojson`, `install.csv` (with its
+/// sidecar `install.json`) and `report.html` into `opts.out`.
 pub fn run_links(sc: &Scenario, opts: &LinksOptions) -> Result<LinksResult, Error> {
-    let mut owned = ["links.csv", "links.geojson", "install.csv", "report.html"].map(String::from).to_vec();
+    let mut owned =
+        ["links.csv", "links.geojson", "install.csv", "install.json", "report.html"].map(String::from).to_vec();
     owned.extend(
         crate::model::node::peer_links(&sc.nodes).iter().map(|&(a, b)| profile_file(&sc.nodes[a].id, &sc.nodes[b].id)),
     );
@@ -76,7 +77,7 @@ pub fn run_links(sc: &Scenario, opts: &LinksOptions) -> Result<LinksResult, Erro
                 footprints: sc.surface().map_or(&[][..], |s| s.outlines()),
             })
             .map_err(|e| Error::Output { path: opts.out.join("report.html"), source: std::io::Error::other(e) })?;
-            maps.push(crate::io::report::MapImage { title, png: r.png, caption });
+            maps.push(crate::io::report::MapImage { title, png: r, caption });
             Ok(())
         };
         if let Some(c) = &l.coverage {
@@ -135,6 +136,9 @@ pub fn run_links(sc: &Scenario, opts: &LinksOptions) -> Result<LinksResult, Erro
     st.write("links.csv", crate::jobs::links::csv(&rows).as_bytes())?;
     st.write("links.geojson", crate::jobs::links::geojson(sc, &rows).to_string().as_bytes())?;
     st.write("install.csv", crate::jobs::install::csv(&sheet).as_bytes())?;
+    let side = serde_json::to_string_pretty(&crate::jobs::install::sidecar(&sheet))
+        .map_err(|e| Error::Output { path: opts.out.join("install.json"), source: e.into() })?;
+    st.write("install.json", side.as_bytes())?;
     st.write("report.html", crate::io::report::html(sc, &rows, &sheet, &maps, &profiles).as_bytes())?;
     let files = st.commit()?;
     Ok(LinksResult { rows, sheet, files })

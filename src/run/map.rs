@@ -164,7 +164,7 @@ pub(crate) const MAP_STEMS: [&str; 8] =
 /// Every file name `map` can write: a rerun retires those it does not write again.
 pub fn map_file_names() -> Vec<String> {
     let mut v: Vec<String> = MAP_STEMS.iter().flat_map(|s| crate::io::writer::layer_file_names(s)).collect();
-    v.extend(["hotspots.geojson", "layout.geojson", "summary.json"].map(String::from));
+    v.extend(["hotspots.geojson", "layout.geojson", "site.kmz", "summary.json"].map(String::from));
     v
 }
 
@@ -319,6 +319,11 @@ pub(crate) fn write_map(
         data,
         outlines,
         picture: name != "server" && name != "channel",
+        categories: match name {
+            "server" => Some(sc.nodes.iter().map(|n| n.id.clone()).collect()),
+            "channel" => Some(sc.spectrum.channels.iter().map(|c| c.name.clone()).collect()),
+            _ => None,
+        },
     };
     if let Some(t) = &layers.total {
         files.extend(write_layer(st, &cx, &layer("total", "Total received", "dBm", t, Vec::new()))?);
@@ -363,6 +368,10 @@ pub(crate) fn write_map(
     }
     st.write("layout.geojson", layout_geojson(&sc.nodes).to_string().as_bytes())?;
     files.push("layout.geojson".into());
+    let field = site_kmz(sc, layers, hot.as_deref().unwrap_or_default())
+        .map_err(|e| Error::Output { path: st.dir().join("site.kmz"), source: std::io::Error::other(e) })?;
+    st.write("site.kmz", &field)?;
+    files.push("site.kmz".into());
     files.push("summary.json".into());
     let zones = ZoneCounts { hotspots, outage, sub_cell_zones };
     let summary = summarize(sc, layers, stats, run, zones, files);
@@ -370,6 +379,28 @@ pub(crate) fn write_map(
         .map_err(|e| Error::Output { path: st.dir().join("summary.json"), source: e.into() })?;
     st.write("summary.json", json.as_bytes())?;
     Ok(summary)
+}
+
+/// The field file of a map run: the picture layers in the order `map` writes them, nodes
+/// with what the installer sets (the install sheet's rows; without magnetic figures where
+/// the magnetic model refuses the place or date), links and hot-spot outlines.
+fn site_kmz<'a>(sc: &Scenario, layers: &'a Layers, hot: &[crate::jobs::zones::Hotspot]) -> Result<Vec<u8>, String> {
+    use crate::io::kmz::Overlay;
+    let mut over = Vec::new();
+    let mut add = |name, title: String, unit, data: &'a Option<Vec<f32>>| {
+        if let Some(d) = data {
+            over.push(Overlay { name, title, unit, data: d });
+        }
+    };
+    add("interference", "Interference".into(), "dBm", &layers.interference);
+    add("sinr", "Mean SINR".into(), "dB", &layers.sinr);
+    add("total", "Total received".into(), "dBm", &layers.total);
+    add("coverage", format!("Coverage T={} dB", sc.thresholds.sinr_db), PROBABILITY, &layers.coverage);
+    add("visible", "Nodes in line of sight".into(), "nodes", &layers.visible);
+    add("availability", "Availability".into(), AVAILABILITY, &layers.availability);
+    let rings: Vec<Vec<(f64, f64)>> = hot.iter().flat_map(|h| h.region.rings_lon_lat().into_iter().take(1)).collect();
+    let sheet = crate::jobs::install::sheet(sc);
+    crate::io::kmz::kmz(sc, &over, &rings, sheet.as_ref().map_err(Clone::clone))
 }
 
 /// The summary of one tile (its rows' grid, no zones), for the command line's report.

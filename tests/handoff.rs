@@ -1,0 +1,244 @@
+//! Hand-off outputs read by independent clients: GDAL (`gdalinfo`, `ogrinfo`, from Debian's
+//! gdal-bin, which `.ci/run` installs) and Python's `csv` module (the standard library of
+//! whatever python3 the machine has). Each check names the client; a missing client is a
+//! loud skip, never a pass.
+
+use crate::util::{run, site, stderr};
+use std::path::Path;
+use std::process::Command;
+
+fn have(tool: &str) -> bool {
+    Command::new(tool).arg("--version").output().is_ok_and(|o| o.status.success())
+}
+
+fn skip(tool: &str) {
+    eprintln!("!!!!! SKIPPED: {tool} is not installed; .ci/run installs it !!!!!");
+}
+
+/// `gdalinfo -json` of a file, parsed.
+fn gdalinfo(path: &Path) -> serde_json::Value {
+    let o = Command::new("gdalinfo").arg("-json").arg(path).output().unwrap();
+    assert!(o.status.success(), "{}: {}", path.display(), String::from_utf8_lossy(&o.stderr));
+    serde_json::from_slice(&o.stdout).unwrap()
+}
+
+fn demo_map(out: &Path, layers: &str) {
+    let o = run(&[
+        "map",
+        "sites/harbourlight/scenario.toml",
+        "--layers",
+        layers,
+        "--out",
+        out.to_str().unwrap(),
+        "--quiet",
+    ]);
+    assert!(o.status.success(), "{}", stderr(&o));
+}
+
+/// GDAL's GTiff driver reports the Cloud-Optimised layout, DEFLATE with the floating-point
+/// predictor, overviews, the band description and the unit; the server layer is an integer
+/// raster whose category names are the node ids (GDAL raster data model: category names).
+#[test]
+fn geotiffs_are_cogs_gdal_describes() {
+    if !have("gdalinfo") {
+        return skip("gdalinfo");
+    }
+    let d = tempfile::tempdir().unwrap();
+    demo_map(d.path(), "total,sinr,server");
+    let total = gdalinfo(&d.path().join("total.tif"));
+    let md = &total["metadata"]["IMAGE_STRUCTURE"];
+    assert_eq!(md["LAYOUT"], "COG", "{md}");
+    assert_eq!(md["COMPRESSION"], "DEFLATE", "{md}");
+    assert_eq!(md["PREDICTOR"], "3", "{md}");
+    let band = &total["bands"][0];
+    assert_eq!(band["type"], "Float32");
+    assert_eq!(band["description"], "total: Total received");
+    assert_eq!(band["unit"], "dBm");
+    assert_eq!(band["noDataValue"], -9999.0);
+    assert_eq!(band["block"], serde_json::json!([256, 256]));
+    assert!(!band["overviews"].as_array().unwrap().is_empty(), "the demo grid is wider than one tile: {band}");
+    assert_eq!(gdalinfo(&d.path().join("sinr.tif"))["bands"][0]["unit"], "dB");
+    let server = gdalinfo(&d.path().join("server.tif"));
+    let band = &server["bands"][0];
+    assert_eq!(band["type"], "Int32");
+    let names: Vec<String> =
+        band["categories"].as_array().unwrap().iter().map(|v| v.as_str().unwrap().to_string()).collect();
+    let nodes: serde_json::Value =
+        serde_json::from_str(&std::fs::read_to_string("sites/harbourlight/nodes.geojson").unwrap()).unwrap();
+    let ids: Vec<String> = nodes["features"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|f| f["properties"]["id"].as_str().unwrap().to_string())
+        .collect();
+    assert_eq!(names, ids);
+}
+
+/// The map-only PNG covers exactly the GeoTIFF's grid in GDAL (world file + PAM CRS): same
+/// size, same geotransform to 1e-12 of a pixel, EPSG:4326, and an alpha band for nodata.
+#[test]
+fn map_png_extent_equals_the_geotiff() {
+    if !have("gdalinfo") {
+        return skip("gdalinfo");
+    }
+    let d = tempfile::tempdir().unwrap();
+    demo_map(d.path(), "interference");
+    let tif = gdalinfo(&d.path().join("interference.tif"));
+    let png = gdalinfo(&d.path().join("interference.png"));
+    assert_eq!(tif["size"], png["size"]);
+    let (a, b) = (tif["geoTransform"].as_array().unwrap(), png["geoTransform"].as_array().unwrap());
+    let pixel = a[1].as_f64().unwrap();
+    for (x, y) in a.iter().zip(b) {
+        assert!((x.as_f64().unwrap() - y.as_f64().unwrap()).abs() <= 1e-12 * pixel.max(1.0), "{a:?} vs {b:?}");
+    }
+    let wkt = png["coordinateSystem"]["wkt"].as_str().unwrap_or("");
+    assert!(wkt.contains("4326"), "no CRS on the PNG: {png}");
+    let bands = png["bands"].as_array().unwrap();
+    assert_eq!(bands.len(), 4);
+    assert_eq!(bands[3]["colorInterpretation"], "Alpha");
+    assert!(d.path().join("interference-sheet.png").exists());
+}
+
+const TOML: &str = r#"name = "quoting"
+nodes = "nodes.geojson"
+[radio]
+frequency_ghz = 60.48
+bandwidth_mhz = 2160
+noise_figure_db = 7
+[propagation]
+model = "free-space"
+[antenna]
+pattern = "parabolic"
+beamwidth_deg = 3
+gain_dbi = 34
+sidelobe_dbi = -5
+power_dbm = 10
+[grid]
+cell_m = 10
+margin_m = 50
+[install]
+declination_date = "2026-12-01"
+"#;
+
+/// Ids and names with a comma and quotes, as a GIS file may hold them.
+const NODES: &str = r#"{"type":"FeatureCollection","features":[
+{"type":"Feature","geometry":{"type":"Point","coordinates":[8.000,50.000]},"properties":{"id":"P,1 \"east\"","name":"Mast, \"old\" yard","azimuth_deg":63.9,"peer":"Q2","height_m":6}},
+{"type":"Feature","geometry":{"type":"Point","coordinates":[8.004,50.001]},"properties":{"id":"Q2","name":"Roof","azimuth_deg":243.9,"peer":"P,1 \"east\"","height_m":6}}
+]}"#;
+
+fn quoting_links() -> tempfile::TempDir {
+    let (d, p) = site(TOML, NODES);
+    let out = d.path().join("out");
+    let o = run(&["links", p.to_str().unwrap(), "--out", out.to_str().unwrap(), "--no-maps", "--quiet"]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    d
+}
+
+/// GDAL's CSV driver reads links.csv and install.csv with the intended header (first line,
+/// no comment taken as a header) and the awkward id whole.
+#[test]
+fn gdal_csv_driver_reads_every_csv() {
+    if !have("ogrinfo") {
+        return skip("ogrinfo");
+    }
+    let d = quoting_links();
+    for (file, first_field, second_field) in [("links.csv", "from", "to"), ("install.csv", "id", "name")] {
+        let path = d.path().join("out").join(file);
+        let o = Command::new("ogrinfo").args(["-ro", "-al", "-q"]).arg(&path).output().unwrap();
+        let text = String::from_utf8_lossy(&o.stdout);
+        assert!(o.status.success() && o.stderr.is_empty(), "{file}: {}", String::from_utf8_lossy(&o.stderr));
+        assert!(text.contains(&format!("{first_field} (String) = P,1 \"east\"")), "{file}: {text}");
+        let text_header = std::fs::read_to_string(&path).unwrap();
+        let header = text_header.lines().next().unwrap();
+        assert!(header.starts_with(&format!("{first_field},{second_field},")), "{file}: {header}");
+    }
+}
+
+/// Python's csv module (RFC 4180 dialect) reads every row with as many fields as the header
+/// and the awkward id and name unchanged.
+#[test]
+fn python_csv_reads_every_csv() {
+    if !Command::new("python3").arg("-c").arg("import csv").output().is_ok_and(|o| o.status.success()) {
+        return skip("python3");
+    }
+    let d = quoting_links();
+    let script = r#"
+import csv, json, sys
+out = {}
+for f in sys.argv[1:]:
+    with open(f, newline="") as h:
+        rows = list(csv.reader(h))
+    out[f.rsplit("/", 1)[-1]] = {"header": rows[0], "widths": sorted({len(r) for r in rows}), "first": rows[1][:2]}
+print(json.dumps(out))
+"#;
+    let out = d.path().join("out");
+    let o = Command::new("python3")
+        .arg("-c")
+        .arg(script)
+        .arg(out.join("links.csv"))
+        .arg(out.join("install.csv"))
+        .output()
+        .unwrap();
+    assert!(o.status.success(), "{}", String::from_utf8_lossy(&o.stderr));
+    let v: serde_json::Value = serde_json::from_slice(&o.stdout).unwrap();
+    for f in ["links.csv", "install.csv"] {
+        let t = &v[f];
+        let n = t["header"].as_array().unwrap().len();
+        assert_eq!(t["widths"], serde_json::json!([n]), "{f}: {t}");
+        assert_eq!(t["first"][0], "P,1 \"east\"", "{f}: {t}");
+    }
+    assert_eq!(v["install.csv"]["first"][1], "Mast, \"old\" yard");
+    assert!(v["install.csv"]["header"].as_array().unwrap().iter().any(|h| h == "keepout_m"));
+    let side: serde_json::Value =
+        serde_json::from_str(&std::fs::read_to_string(out.join("install.json")).unwrap()).unwrap();
+    assert!(side["reference_level_w_m2"].as_f64().unwrap() > 0.0);
+}
+
+/// GDAL's KML drivers (LIBKML, else KML) open the KML inside the map's KMZ without a warning
+/// and find the nodes, the planned links and the layers as ground overlays; the overlays'
+/// LatLonBox is the GeoTIFF's extent (OGC KML 2.2, section 11.2).
+#[test]
+fn ogrinfo_opens_the_kmz() {
+    if !have("ogrinfo") {
+        return skip("ogrinfo");
+    }
+    let d = tempfile::tempdir().unwrap();
+    demo_map(d.path(), "total,interference,sinr");
+    let kmz = d.path().join("site.kmz");
+    let inside = format!("/vsizip/{}/doc.kml", kmz.display());
+    let o = Command::new("ogrinfo").args(["-ro", "-al", "-so"]).arg(&inside).output().unwrap();
+    let text = String::from_utf8_lossy(&o.stdout);
+    let err = String::from_utf8_lossy(&o.stderr);
+    assert!(o.status.success() && !err.contains("Warning") && !err.contains("ERROR"), "{err}");
+    let count = |layer: &str| -> usize {
+        let at = text.find(&format!("Layer name: {layer}")).unwrap_or_else(|| panic!("no layer {layer}: {text}"));
+        let rest = &text[at..];
+        let line = rest.lines().find(|l| l.starts_with("Feature Count:")).unwrap();
+        line["Feature Count:".len()..].trim().parse().unwrap()
+    };
+    assert_eq!(count("Nodes"), 46);
+    // The demo plans 14 links (one profile each in `links`), 46 nodes.
+    assert_eq!(count("Planned links"), 14);
+    // Ground overlays by the document itself: three layers, boxes on the GeoTIFF's extent.
+    let mut z = zip::ZipArchive::new(std::fs::File::open(&kmz).unwrap()).unwrap();
+    let mut doc = String::new();
+    std::io::Read::read_to_string(&mut z.by_name("doc.kml").unwrap(), &mut doc).unwrap();
+    assert_eq!(doc.matches("<GroundOverlay>").count(), 3);
+    let tag = |t: &str| -> f64 {
+        let a = doc.find(&format!("<{t}>")).unwrap() + t.len() + 2;
+        doc[a..a + doc[a..].find('<').unwrap()].parse().unwrap()
+    };
+    if have("gdalinfo") {
+        let tif = gdalinfo(&d.path().join("total.tif"));
+        let g: Vec<f64> = tif["geoTransform"].as_array().unwrap().iter().map(|v| v.as_f64().unwrap()).collect();
+        let (w, h) = (tif["size"][0].as_f64().unwrap(), tif["size"][1].as_f64().unwrap());
+        for (got, want) in
+            [(tag("west"), g[0]), (tag("north"), g[3]), (tag("east"), g[0] + w * g[1]), (tag("south"), g[3] + h * g[5])]
+        {
+            assert!((got - want).abs() < 1e-9, "LatLonBox {got} vs GeoTIFF corner {want}");
+        }
+    }
+    for f in ["files/total.png", "files/interference.png", "files/sinr.png"] {
+        assert!(z.by_name(f).is_ok(), "{f} missing from the KMZ");
+    }
+}
