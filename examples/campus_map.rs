@@ -61,6 +61,12 @@ margin_m = 60
     };
     let res = run_map(&sc, &opts)?;
     let sinr = res.summary.sinr_db.as_ref().ok_or("no SINR layer")?;
-    println!("{} cells; median SINR {:.1} dB; {} files in {}", res.summary.cells, sinr.p50.unwrap_or(f64::NAN), res.files.len(), out.display());
+    println!(
+        "{} cells; median SINR {:.1} dB; {} files in {}",
+        res.summary.cells,
+        sinr.p50.unwrap_or(f64::NAN),
+        res.files.len(),
+        out.display()
+    );
     Ok(())
 }

@@ -442,6 +442,7 @@ fn a_rerun_retires_its_own_old_files_and_keeps_the_rest() {
             "report.html",
             "scenario.toml",
             "summary.json",
+            "total-sheet.pdf",
             "total-sheet.png",
             "total.pgw",
             "total.png",

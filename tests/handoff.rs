@@ -242,3 +242,122 @@ fn ogrinfo_opens_the_kmz() {
         assert!(z.by_name(f).is_ok(), "{f} missing from the KMZ");
     }
 }
+
+/// The print sheet is one A3 landscape page (ISO 216: 420 × 297 mm = 1190.55 × 841.89 pt)
+/// holding the annotated map, as poppler's pdfinfo and pdfimages read it.
+#[test]
+fn pdf_sheet_is_one_a3_page() {
+    if !have("pdfinfo") && !Command::new("pdfinfo").arg("-v").output().is_ok_and(|o| o.status.success()) {
+        return skip("pdfinfo (poppler-utils)");
+    }
+    let d = tempfile::tempdir().unwrap();
+    demo_map(d.path(), "sinr");
+    let pdf = d.path().join("sinr-sheet.pdf");
+    let o = Command::new("pdfinfo").arg(&pdf).output().unwrap();
+    let text = String::from_utf8_lossy(&o.stdout);
+    assert!(o.status.success() && o.stderr.is_empty(), "{}", String::from_utf8_lossy(&o.stderr));
+    assert!(text.contains("Pages:           1"), "{text}");
+    assert!(text.contains("1190.55 x 841.89 pts (A3)"), "{text}");
+    let img = image::open(d.path().join("sinr-sheet.png")).unwrap();
+    let o = Command::new("pdfimages").arg("-list").arg(&pdf).output().unwrap();
+    let list = String::from_utf8_lossy(&o.stdout);
+    let row = list.lines().nth(2).unwrap_or_else(|| panic!("no image in the PDF: {list}"));
+    let f: Vec<&str> = row.split_whitespace().collect();
+    assert_eq!((f[3].parse::<u32>().unwrap(), f[4].parse::<u32>().unwrap()), (img.width(), img.height()));
+}
+
+/// Fixed colour scales: two runs of different layouts colour a value alike; the scenario
+/// may set a layer's limits, and a reversed pair is refused naming table and key.
+#[test]
+fn colour_scales_are_fixed_and_overridable() {
+    let d = tempfile::tempdir().unwrap();
+    let text = crate::util::demo_scenario();
+    let set = format!("{text}\n[colour_scale]\ninterference = [-120, -60]\n");
+    let p = d.path().join("set.toml");
+    std::fs::write(&p, &set).unwrap();
+    let out = d.path().join("o");
+    let o =
+        run(&["map", p.to_str().unwrap(), "--layers", "interference,sinr", "--out", out.to_str().unwrap(), "--quiet"]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    let mut z = zip::ZipArchive::new(std::fs::File::open(out.join("site.kmz")).unwrap()).unwrap();
+    let mut doc = String::new();
+    std::io::Read::read_to_string(&mut z.by_name("doc.kml").unwrap(), &mut doc).unwrap();
+    assert!(doc.contains("Interference [dBm], colours from -120 to -60"), "{doc}");
+    // The default SINR scale, whatever the layout holds.
+    assert!(doc.contains("Mean SINR [dB], colours from -10 to 40"), "{doc}");
+    let bad = format!("{text}\n[colour_scale]\nsinr = [30, 10]\n");
+    std::fs::write(&p, &bad).unwrap();
+    let o = run(&["map", p.to_str().unwrap(), "--out", d.path().join("b").to_str().unwrap(), "--quiet"]);
+    assert_eq!(o.status.code(), Some(2));
+    let e = stderr(&o);
+    assert!(e.contains("[colour_scale]") && e.contains("sinr") && e.contains("[30, 10]"), "{e}");
+    assert!(!d.path().join("b").exists());
+}
+
+/// `--quiet` leaves stderr empty in every command that succeeds (common practice for
+/// command-line tools: chatter on stderr, data on stdout), while data on stdout stays.
+#[test]
+fn quiet_silences_stderr_in_every_command() {
+    let d = tempfile::tempdir().unwrap();
+    let o = |name: &str| d.path().join(name).to_str().unwrap().to_string();
+    let drawn = d.path().join("drawn.toml");
+    std::fs::write(
+        &drawn,
+        format!(
+            "{}\n[draw]\ndensity_per_km2 = 60\nkeep = 0.8\nhard_core_m = 10\nseed = 3\n",
+            crate::util::demo_scenario()
+        ),
+    )
+    .unwrap();
+    let demo = "sites/harbourlight/scenario.toml";
+    let runs: Vec<(Vec<String>, bool)> = vec![
+        (vec!["map".into(), demo.into(), "--layers".into(), "total".into(), "--out".into(), o("m")], false),
+        (
+            vec![
+                "map".into(),
+                demo.into(),
+                "--layers".into(),
+                "total".into(),
+                "--tile".into(),
+                "0/2".into(),
+                "--out".into(),
+                o("t"),
+            ],
+            false,
+        ),
+        (
+            vec![
+                "map".into(),
+                demo.into(),
+                "--layers".into(),
+                "total".into(),
+                "--tile".into(),
+                "1/2".into(),
+                "--out".into(),
+                o("t"),
+            ],
+            false,
+        ),
+        (vec!["merge".into(), o("t"), "--out".into(), o("merged")], false),
+        (vec!["links".into(), demo.into(), "--no-maps".into(), "--out".into(), o("l")], false),
+        (vec!["probe".into(), demo.into(), "--at".into(), "45.5002,-4.8100".into()], true),
+        (vec!["check".into(), demo.into()], false),
+        (vec!["draw".into(), drawn.to_str().unwrap().into(), "--out".into(), o("drawn.geojson")], false),
+        (vec!["assign".into(), demo.into(), "--out".into(), o("plan.geojson")], true),
+        (
+            vec!["aggregate".into(), "--density-per-km2".into(), "100".into(), "--realizations".into(), "200".into()],
+            true,
+        ),
+        (vec!["man".into()], true),
+    ];
+    for (args, prints) in runs {
+        let mut a: Vec<&str> = args.iter().map(String::as_str).collect();
+        a.push("--quiet");
+        let r = run(&a);
+        assert!(r.status.success(), "{a:?}: {}", stderr(&r));
+        assert!(r.stderr.is_empty(), "{a:?} wrote to stderr with --quiet: {}", stderr(&r));
+        if prints {
+            assert!(!r.stdout.is_empty(), "{a:?}: --quiet also silenced the data on stdout");
+        }
+    }
+}

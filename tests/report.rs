@@ -263,3 +263,65 @@ fn demo_plan_fails_only_its_deliberate_faults() {
         assert_eq!(link(from)["clearance_ok"], true, "{from}");
     }
 }
+
+/// The report fits the screen at a laptop (1280 px), tablet (820 px) and phone (390 px)
+/// width: headless Chromium measures the page's `scrollWidth` against the viewport, finds
+/// every installer card, and every RF keep-out box inside the viewport's width. A copy of
+/// the report gets the measuring script (the report itself carries no script).
+#[test]
+fn report_fits_laptop_tablet_and_phone() {
+    let Some(chromium) = ["chromium", "chromium-browser"]
+        .into_iter()
+        .find(|c| Command::new(c).arg("--version").output().is_ok_and(|o| o.status.success()))
+    else {
+        if std::env::var("LOBEMAP_BROWSER_OPTIONAL").is_ok() {
+            eprintln!("\n!!!!! SKIPPED: chromium is not installed; the report's widths were NOT measured !!!!!\n");
+            return;
+        }
+        panic!("chromium not found: install Debian's chromium package (bash .ci/run does)");
+    };
+    let (d, out) = links_out();
+    let html = std::fs::read_to_string(out.join("report.html")).unwrap();
+    let nodes = html.matches("<article class=\"card\">").count();
+    assert_eq!(nodes, 46, "one card per demo node");
+    let probe = r#"<script>addEventListener('load',()=>{const v=innerWidth;const k=[...document.querySelectorAll('.keepout')];
+const off=k.filter(e=>e.getBoundingClientRect().right>v+0.5||e.getBoundingClientRect().left<-0.5).length;
+const wide=[...document.querySelectorAll('table,figure,article')].filter(e=>e.getBoundingClientRect().right>v+0.5).length;
+parent.document.title='MEASURE '+document.documentElement.scrollWidth+' '+v+' '+document.querySelectorAll('article.card').length+' '+k.length+' '+off+' '+wide;});</script></body>"#;
+    std::fs::write(d.path().join("measure.html"), html.replace("</body>", probe)).unwrap();
+    // Headless Chromium will not open a window narrower than 500 px: the report is measured
+    // in an iframe of each width instead (its own viewport), inside a wider window.
+    for width in [1280, 820, 390] {
+        let page = d.path().join(format!("frame-{width}.html"));
+        std::fs::write(
+            &page,
+            format!(
+                "<!DOCTYPE html><html><head><title>wait</title></head><body style=\"margin:0\"><iframe src=\"measure.html\" style=\"width:{width}px;height:900px;border:0\"></iframe></body></html>"
+            ),
+        )
+        .unwrap();
+        let profile = d.path().join(format!("profile-{width}"));
+        let o = Command::new(chromium)
+            .args(["--headless", "--no-sandbox", "--disable-gpu", "--no-first-run", "--hide-scrollbars"])
+            .arg(format!("--window-size={},900", width.max(500) + 40))
+            .arg("--allow-file-access-from-files")
+            .arg(format!("--user-data-dir={}", profile.display()))
+            .arg("--virtual-time-budget=3000")
+            .arg("--dump-dom")
+            .arg(format!("file://{}", page.display()))
+            .output()
+            .unwrap();
+        let dom = String::from_utf8_lossy(&o.stdout);
+        let at = dom.find("MEASURE ").unwrap_or_else(|| panic!("{width}: no measurement; {}", stderr(&o)));
+        let f: Vec<usize> = dom[at + 8..].split('<').next().unwrap().split(' ').map(|v| v.parse().unwrap()).collect();
+        let (scroll, view, cards, keepouts, off, wide) = (f[0], f[1], f[2], f[3], f[4], f[5]);
+        eprintln!(
+            "report at {width} px: scrollWidth {scroll}, viewport {view}, cards {cards}, keep-outs off-screen {off}, wide blocks {wide}"
+        );
+        assert_eq!(view, width, "the viewport is the window width");
+        assert!(scroll <= view, "{width} px: the page scrolls sideways ({scroll} > {view})");
+        assert_eq!((cards, keepouts), (46, 46));
+        assert_eq!(off, 0, "{width} px: {off} keep-out figures off-screen");
+        assert_eq!(wide, 0, "{width} px: {wide} tables, figures or cards wider than the screen");
+    }
+}

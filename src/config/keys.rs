@@ -27,6 +27,7 @@ pub(crate) const KEYS: &[(&str, &[&str])] = &[
             "rain",
             "channels",
             "spectrum",
+            "colour_scale",
         ],
     ),
     ("radio", &["frequency_ghz", "bandwidth_mhz", "noise_figure_db"]),
@@ -46,6 +47,7 @@ pub(crate) const KEYS: &[(&str, &[&str])] = &[
     ("atmosphere", &["pressure_hpa", "temperature_c", "water_vapour_g_m3"]),
     ("rain", &["rate_mm_h", "scaling", "interferers_fade"]),
     ("spectrum", &["xpd_db", "aclr_db", "acs_db", "aclr2_db", "acs2_db"]),
+    ("colour_scale", &["total", "interference", "sinr", "visible"]),
 ];
 
 /// 1-based line and column of byte `offset` in `text`.

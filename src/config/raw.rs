@@ -30,6 +30,18 @@ pub(crate) struct RawScenario {
     pub(crate) rain: Option<RawRain>,
     pub(crate) channels: Option<std::collections::BTreeMap<String, RawChannel>>,
     pub(crate) spectrum: Option<RawSpectrum>,
+    #[serde(default)]
+    pub(crate) colour_scale: RawColourScale,
+}
+
+/// `[colour_scale]`: fixed colour limits `[low, high]` per picture layer.
+#[derive(Debug, Default, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub(crate) struct RawColourScale {
+    pub(crate) total: Option<[f64; 2]>,
+    pub(crate) interference: Option<[f64; 2]>,
+    pub(crate) sinr: Option<[f64; 2]>,
+    pub(crate) visible: Option<[f64; 2]>,
 }
 
 #[derive(Debug, Deserialize)]

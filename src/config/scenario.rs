@@ -13,7 +13,9 @@ use crate::model::antenna::Sector;
 use crate::model::channel::{Channel, RADIO_CHANNEL, Rejection, Spectrum};
 use crate::model::fading::FadingSpec;
 use crate::model::pathloss::{LawParams, PathLoss};
-use crate::model::scenario::{InstallSettings, LinkSettings, Radio, Receiver, ReceiverAntenna, Scenario, Thresholds};
+use crate::model::scenario::{
+    ColourScale, InstallSettings, LinkSettings, Radio, Receiver, ReceiverAntenna, Scenario, Thresholds,
+};
 use crate::model::weather::gas::Atmosphere;
 use crate::model::weather::rain::{Rain, Scaling};
 use crate::model::weather::{DEFAULT_TARGET_PCT, GasSource, InterfererFade, Weather};
@@ -188,6 +190,31 @@ fn weather(raw: &RawScenario, file: &str, probs: &mut Problems) -> Weather {
         w.target_pct = target;
     }
     w
+}
+
+/// `[colour_scale]` over the defaults: each given pair finite, low below high, within
+/// [−300, 300].
+fn colour_scale(raw: &crate::config::raw::RawColourScale, file: &str, probs: &mut Problems) -> ColourScale {
+    let mut c = ColourScale::DEFAULT;
+    for (key, given, slot) in [
+        ("total", raw.total, &mut c.total),
+        ("interference", raw.interference, &mut c.interference),
+        ("sinr", raw.sinr, &mut c.sinr),
+        ("visible", raw.visible, &mut c.visible),
+    ] {
+        let Some([lo, hi]) = given else { continue };
+        if !(lo.is_finite() && hi.is_finite() && lo < hi && lo >= -300.0 && hi <= 300.0) {
+            probs.push(Problem::new(
+                file,
+                Some("[colour_scale]".into()),
+                key,
+                format!("value [{lo}, {hi}] must be [low, high] with low < high, both within [-300, 300]"),
+            ));
+        } else {
+            *slot = (lo as f32, hi as f32);
+        }
+    }
+    c
 }
 
 /// `[channels]` (after the `[radio]` carrier, named `radio`) and `[spectrum]`, every problem
@@ -412,6 +439,7 @@ impl Scenario {
         }
         let weather = weather(&raw, &file, &mut probs);
         let spectrum = spectrum(&raw, &file, &mut probs);
+        let colour_scale = colour_scale(&raw.colour_scale, &file, &mut probs);
         let channel_names: Vec<String> = spectrum.channels.iter().map(|c| c.name.clone()).collect();
         let p = &raw.propagation;
         let params = LawParams { exponent: p.exponent, loss_at_1m_db: p.loss_at_1m_db };
@@ -607,6 +635,7 @@ impl Scenario {
             spectrum,
             install: InstallSettings { declination_date: declination_date.unwrap_or((2026, 1)) },
             surface,
+            colour_scale,
         })
     }
 }

@@ -33,6 +33,8 @@ pub struct Marker {
     pub azimuth_deg: f64,
     /// Main-lobe width, degrees (360 for omni).
     pub beamwidth_deg: f64,
+    /// Node id, the label beside the marker.
+    pub id: String,
 }
 
 /// What to draw.
@@ -53,6 +55,68 @@ pub struct MapSpec<'a> {
     pub outlines: &'a [Vec<(f64, f64)>],
     /// Building footprints (outer rings, lon/lat), drawn as thin grey outlines.
     pub footprints: &'a [Vec<(f64, f64)>],
+    /// Colour limits ([`layer_range`]).
+    pub range: (f32, f32),
+    /// Title-block lines under the title ([`sheet_facts`]).
+    pub facts: &'a [String],
+}
+
+/// The title block of every sheet: scenario, carrier, receiver assumption, date and
+/// version. The date is today's (UTC) unless `SOURCE_DATE_EPOCH` (seconds since 1970, the
+/// reproducible-builds convention) fixes it.
+pub fn sheet_facts(sc: &crate::model::scenario::Scenario) -> Vec<String> {
+    use crate::model::scenario::ReceiverAntenna;
+    let rx = sc.receiver();
+    let antenna = match rx.antenna {
+        ReceiverAntenna::Omni { gain_dbi } => format!("omni {gain_dbi} dBi"),
+        ReceiverAntenna::Aimed(_) => "aimed at its best server".to_string(),
+    };
+    vec![
+        format!("Scenario: {}", sc.name()),
+        format!("Carrier {} GHz, {} MHz", sc.pathloss().frequency_ghz(), sc.radio().bandwidth_mhz),
+        format!("Receiver {} m, {antenna}", rx.height_m),
+        format!("{} nodes; cell {} m", sc.nodes.len(), sc.grid.cell_m()),
+        format!("{} · lobemap {}", today_iso(), env!("CARGO_PKG_VERSION")),
+    ]
+}
+
+/// Today's date (UTC) as YYYY-MM-DD, or the one `SOURCE_DATE_EPOCH` gives.
+pub fn today_iso() -> String {
+    let secs = std::env::var("SOURCE_DATE_EPOCH").ok().and_then(|v| v.parse::<i64>().ok()).unwrap_or_else(|| {
+        std::time::SystemTime::now().duration_since(std::time::UNIX_EPOCH).map_or(0, |d| d.as_secs() as i64)
+    });
+    let (y, m, d) = civil_from_days(secs.div_euclid(86_400));
+    format!("{y:04}-{m:02}-{d:02}")
+}
+
+/// The proleptic Gregorian date of day `z` since 1970-01-01 (H. Hinnant, "chrono-Compatible
+/// Low-Level Date Algorithms", civil_from_days).
+fn civil_from_days(z: i64) -> (i64, u32, u32) {
+    let z = z + 719_468;
+    let era = z.div_euclid(146_097);
+    let doe = z - era * 146_097;
+    let yoe = (doe - doe / 1460 + doe / 36_524 - doe / 146_096) / 365;
+    let doy = doe - (365 * yoe + yoe / 4 - yoe / 100);
+    let mp = (5 * doy + 2) / 153;
+    let d = (doy - (153 * mp + 2) / 5 + 1) as u32;
+    let m = if mp < 10 { mp + 3 } else { mp - 9 } as u32;
+    (yoe + era * 400 + i64::from(m <= 2), m, d)
+}
+
+/// Graticule step, degrees: 1, 2 or 5 times a power of ten giving 2 to 6 lines over `span`.
+pub fn graticule_step(span_deg: f64) -> f64 {
+    let mut p = 10f64.powf((span_deg / 3.0).log10().floor());
+    for _ in 0..4 {
+        for m in [1.0, 2.0, 5.0] {
+            let step = m * p;
+            let n = (span_deg / step).floor();
+            if (2.0..=6.0).contains(&n) {
+                return step;
+            }
+        }
+        p /= 10.0;
+    }
+    span_deg / 4.0
 }
 
 /// Unit label of probability layers, always drawn on a fixed 0..1 scale.
@@ -75,7 +139,7 @@ pub struct Rendered {
     pub world: String,
 }
 
-const PANEL_W: u32 = 190;
+const PANEL_W: u32 = 270;
 
 /// Colour limits: from the 2nd percentile to the maximum of the defined values, widened to
 /// whole multiples of 5 and at least 10 wide.
@@ -109,6 +173,16 @@ pub fn nice_length_m(width_m: f64) -> f64 {
 /// nodes, links and outlines) as PNG bytes; not georeferenced, since the panel and the
 /// annotations are not part of the grid ([`render_map_only`] is).
 pub fn render(spec: &MapSpec) -> Result<Vec<u8>, String> {
+    let (w, h, buf) = render_rgb(spec)?;
+    let img = image::RgbImage::from_raw(w, h, buf).ok_or("image buffer size mismatch")?;
+    let mut png = Vec::new();
+    img.write_to(&mut std::io::Cursor::new(&mut png), image::ImageFormat::Png).map_err(|e| e.to_string())?;
+    Ok(png)
+}
+
+/// The annotated picture as width, height and 8-bit RGB rows (for [`render`] and the PDF
+/// sheet).
+pub fn render_rgb(spec: &MapSpec) -> Result<(u32, u32, Vec<u8>), String> {
     register_font();
     let g = spec.grid;
     let side = g.cols().max(g.rows()) as f64;
@@ -121,10 +195,10 @@ pub fn render(spec: &MapSpec) -> Result<Vec<u8>, String> {
     };
     let mw = ((g.cols() as f64 * scale).round() as u32).max(1);
     let mh = ((g.rows() as f64 * scale).round() as u32).max(1);
-    let (w, h) = (mw + PANEL_W, mh.max(460));
+    let (w, h) = (mw + PANEL_W, mh.max(700));
     let cmap = tideline();
     let avail = spec.unit == AVAILABILITY;
-    let (lo, hi) = value_range(spec.unit, spec.data);
+    let (lo, hi) = spec.range;
     let colour = Colouring { lo, hi, avail };
     let mut buf = vec![255u8; (w * h * 3) as usize];
     for y in 0..mh {
@@ -191,6 +265,79 @@ pub fn render(spec: &MapSpec) -> Result<Vec<u8>, String> {
             root.draw(&Circle::new((x, y), 4, RGBColor(255, 255, 255).filled())).map_err(e)?;
             root.draw(&Circle::new((x, y), 4, ink.stroke_width(1))).map_err(e)?;
         }
+        // Graticule: thin lines every `step` degrees, labelled on the top (longitude) and the
+        // right (latitude) edges of the map.
+        let (lon_step, lat_step) = (graticule_step(b.east - b.west), graticule_step(b.north - b.south));
+        let faint = RGBAColor(255, 255, 255, 0.45);
+        let small = (FONT, 12).into_font().color(&ink);
+        let (step, decimals) = (lon_step, (-lon_step.log10()).ceil().max(0.0) as usize);
+        let mut lon = (b.west / step).ceil() * step;
+        while lon < b.east {
+            let (x, _) = to_px(lon, b.north);
+            root.draw(&PathElement::new(vec![(x, 0), (x, mh as i32)], faint.stroke_width(1))).map_err(e)?;
+            let t = format!("{:.*}°{}", decimals, lon.abs(), if lon < 0.0 { "W" } else { "E" });
+            root.draw(&Rectangle::new(
+                [(x + 2, 2), (x + 8 + 7 * t.len() as i32, 17)],
+                RGBAColor(255, 255, 255, 0.7).filled(),
+            ))
+            .map_err(e)?;
+            root.draw(&Text::new(t, (x + 4, 3), small.clone())).map_err(e)?;
+            lon = ((lon / step).round() + 1.0) * step;
+        }
+        let (step, decimals) = (lat_step, (-lat_step.log10()).ceil().max(0.0) as usize);
+        let mut lat = (b.south / step).ceil() * step;
+        while lat < b.north {
+            let (_, y) = to_px(b.west, lat);
+            root.draw(&PathElement::new(vec![(0, y), (mw as i32, y)], faint.stroke_width(1))).map_err(e)?;
+            let t = format!("{:.*}°{}", decimals, lat.abs(), if lat < 0.0 { "S" } else { "N" });
+            let x0 = mw as i32 - 8 - 7 * t.len() as i32;
+            root.draw(&Rectangle::new(
+                [(x0 - 2, y - 16), (mw as i32 - 2, y - 1)],
+                RGBAColor(255, 255, 255, 0.7).filled(),
+            ))
+            .map_err(e)?;
+            root.draw(&Text::new(t, (x0, y - 15), small.clone())).map_err(e)?;
+            lat = ((lat / step).round() + 1.0) * step;
+        }
+        // Node labels: the first of eight places around the marker that stays on the map and
+        // clear of every marker and label placed so far; a node with no free place is left
+        // unlabelled rather than overprinted.
+        let mut taken: Vec<(i32, i32, i32, i32)> = spec
+            .markers
+            .iter()
+            .map(|m| {
+                let (x, y) = to_px(m.lon, m.lat);
+                (x - 5, y - 5, x + 5, y + 5)
+            })
+            .collect();
+        let label_font = (FONT, 13).into_font().style(FontStyle::Bold).color(&ink);
+        for m in spec.markers {
+            let (x, y) = to_px(m.lon, m.lat);
+            let (tw, th) = (8 * m.id.chars().count() as i32 + 4, 16);
+            let places = [
+                (7, -th - 2),
+                (7, 3),
+                (-tw - 7, -th - 2),
+                (-tw - 7, 3),
+                (-tw / 2, -th - 9),
+                (-tw / 2, 9),
+                (9, -th / 2),
+                (-tw - 9, -th / 2),
+            ];
+            let free = places.iter().map(|&(dx, dy)| (x + dx, y + dy, x + dx + tw, y + dy + th)).find(|r| {
+                r.0 >= 0
+                    && r.1 >= 0
+                    && r.2 <= mw as i32
+                    && r.3 <= mh as i32
+                    && taken.iter().all(|t| r.2 <= t.0 || t.2 <= r.0 || r.3 <= t.1 || t.3 <= r.1)
+            });
+            if let Some(r) = free {
+                root.draw(&Rectangle::new([(r.0, r.1), (r.2, r.3)], RGBAColor(255, 255, 255, 0.8).filled()))
+                    .map_err(e)?;
+                root.draw(&Text::new(m.id.clone(), (r.0 + 2, r.1 + 1), label_font.clone())).map_err(e)?;
+                taken.push(r);
+            }
+        }
         // North arrow (top-left): the grid is north-up.
         let (ax, ay) = (26, 18);
         root.draw(&Rectangle::new([(ax - 16, ay - 8), (ax + 16, ay + 52)], RGBAColor(255, 255, 255, 0.8).filled()))
@@ -223,7 +370,7 @@ pub fn render(spec: &MapSpec) -> Result<Vec<u8>, String> {
         ))
         .map_err(e)?;
         root.draw(&Text::new(format!("[{}]", spec.unit), (px0, 34), (FONT, 14).into_font().color(&ink))).map_err(e)?;
-        let (top, bot) = (64, h as i32 - 40);
+        let (top, bot) = (64, (h as i32 * 45 / 100).max(260));
         let bar_w = 22;
         for y in top..=bot {
             let t = (bot - y) as f64 / (bot - top) as f64;
@@ -262,22 +409,56 @@ pub fn render(spec: &MapSpec) -> Result<Vec<u8>, String> {
             root.draw(&Text::new(label, (px0 + bar_w + 10, y - 7), (FONT, 13).into_font().color(&ink))).map_err(e)?;
             v += step;
         }
-        root.draw(&Text::new("grey: no data", (px0, h as i32 - 26), (FONT, 12).into_font().color(&ink))).map_err(e)?;
+        root.draw(&Text::new("grey: no data", (px0, bot + 12), (FONT, 12).into_font().color(&ink))).map_err(e)?;
+        // Symbol legend.
+        let mut ly = bot + 44;
+        root.draw(&Text::new("Symbols", (px0, ly), (FONT, 14).into_font().style(FontStyle::Bold).color(&ink)))
+            .map_err(e)?;
+        ly += 24;
+        let text = (FONT, 12).into_font().color(&ink);
+        root.draw(&Circle::new((px0 + 10, ly + 7), 4, RGBColor(255, 255, 255).filled())).map_err(e)?;
+        root.draw(&Circle::new((px0 + 10, ly + 7), 4, ink.stroke_width(1))).map_err(e)?;
+        root.draw(&Text::new("node (id beside it)", (px0 + 30, ly), text.clone())).map_err(e)?;
+        ly += 22;
+        let wedge = vec![(px0 + 4, ly + 14), (px0 + 12, ly), (px0 + 20, ly + 2), (px0 + 4, ly + 14)];
+        root.draw(&PathElement::new(wedge, ink.stroke_width(1))).map_err(e)?;
+        root.draw(&Text::new("main beam (boresight, HPBW)", (px0 + 30, ly), text.clone())).map_err(e)?;
+        ly += 22;
+        root.draw(&PathElement::new(vec![(px0, ly + 7), (px0 + 22, ly + 7)], ink.stroke_width(1))).map_err(e)?;
+        root.draw(&Text::new("planned link", (px0 + 30, ly), text.clone())).map_err(e)?;
+        ly += 22;
+        root.draw(&PathElement::new(vec![(px0, ly + 7), (px0 + 22, ly + 7)], RGBColor(150, 20, 60).stroke_width(2)))
+            .map_err(e)?;
+        root.draw(&Text::new("hot spot / zone outline", (px0 + 30, ly), text.clone())).map_err(e)?;
+        ly += 22;
+        root.draw(&PathElement::new(vec![(px0, ly + 7), (px0 + 22, ly + 7)], RGBColor(70, 70, 70).stroke_width(1)))
+            .map_err(e)?;
+        root.draw(&Text::new("building footprint", (px0 + 30, ly), text.clone())).map_err(e)?;
+        ly += 22;
+        root.draw(&PathElement::new(vec![(px0, ly + 7), (px0 + 22, ly + 7)], RGBColor(170, 170, 170).stroke_width(1)))
+            .map_err(e)?;
+        root.draw(&Text::new(format!("graticule {lon_step}° / {lat_step}°"), (px0 + 30, ly), text.clone()))
+            .map_err(e)?;
+        // Title block (bottom of the panel), framed.
+        let tb_top = h as i32 - 20 - 18 * spec.facts.len() as i32 - 8;
+        root.draw(&Rectangle::new([(px0 - 8, tb_top - 6), (w as i32 - 8, h as i32 - 10)], ink.stroke_width(1)))
+            .map_err(e)?;
+        for (k, line) in spec.facts.iter().enumerate() {
+            root.draw(&Text::new(line.clone(), (px0 - 2, tb_top + 18 * k as i32), text.clone())).map_err(e)?;
+        }
         root.present().map_err(e)?;
     }
-    let img = image::RgbImage::from_raw(w, h, buf).ok_or("image buffer size mismatch")?;
-    let mut png = Vec::new();
-    img.write_to(&mut std::io::Cursor::new(&mut png), image::ImageFormat::Png).map_err(|e| e.to_string())?;
-    Ok(png)
+    Ok((w, h, buf))
 }
 
-/// The colour limits of a layer with unit `unit`: fixed for probabilities (0..1) and
-/// availability (2 to 5 nines), else from the values ([`colour_range`]).
-pub fn value_range(unit: &str, data: &[f32]) -> (f32, f32) {
+/// The colour limits of layer `name` with unit `unit`: fixed for probabilities (0..1) and
+/// availability (2 to 5 nines), the scenario's fixed scale for the layers it has one for
+/// ([`crate::model::scenario::ColourScale`]), else from the values ([`colour_range`]).
+pub fn layer_range(scale: &crate::model::scenario::ColourScale, name: &str, unit: &str, data: &[f32]) -> (f32, f32) {
     match unit {
         PROBABILITY => (0.0, 1.0),
         AVAILABILITY => (2.0, 5.0),
-        _ => colour_range(data),
+        _ => scale.of(name).unwrap_or_else(|| colour_range(data)),
     }
 }
 
@@ -304,8 +485,8 @@ impl Colouring {
 /// transparent where the layer is undefined, with the world file that places each pixel on
 /// its cell exactly (ESRI world-file convention: pixel size and the centre of the top-left
 /// pixel).
-pub fn render_map_only(grid: &Grid, data: &[f32], unit: &str) -> Result<Rendered, String> {
-    let png = map_png(grid.cols(), grid.rows(), data, unit)?;
+pub fn render_map_only(grid: &Grid, data: &[f32], unit: &str, range: (f32, f32)) -> Result<Rendered, String> {
+    let png = map_png(grid.cols(), grid.rows(), data, unit, range)?;
     let b = grid.bbox();
     let (pw, ph) = (grid.dlon(), grid.dlat());
     let world = format!("{pw}\n0.0\n0.0\n{}\n{}\n{}\n", -ph, b.west + pw / 2.0, b.north - ph / 2.0);
@@ -314,9 +495,9 @@ pub fn render_map_only(grid: &Grid, data: &[f32], unit: &str) -> Result<Rendered
 
 /// The RGBA PNG of `cols` × `rows` values (north row first) on the layer's colours,
 /// transparent where undefined.
-pub fn map_png(cols: usize, rows: usize, data: &[f32], unit: &str) -> Result<Vec<u8>, String> {
+pub fn map_png(cols: usize, rows: usize, data: &[f32], unit: &str, range: (f32, f32)) -> Result<Vec<u8>, String> {
     let cmap = tideline();
-    let (lo, hi) = value_range(unit, data);
+    let (lo, hi) = range;
     let colour = Colouring { lo, hi, avail: unit == AVAILABILITY };
     let mut buf = vec![0u8; data.len() * 4];
     for (px, &v) in buf.chunks_exact_mut(4).zip(data) {
@@ -328,4 +509,27 @@ pub fn map_png(cols: usize, rows: usize, data: &[f32], unit: &str) -> Result<Vec
     let mut png = Vec::new();
     img.write_to(&mut std::io::Cursor::new(&mut png), image::ImageFormat::Png).map_err(|e| e.to_string())?;
     Ok(png)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    /// Day numbers from Python's datetime (3.12: `(date(y, m, d) - date(1970, 1, 1)).days`).
+    #[test]
+    fn civil_dates_match_python() {
+        assert_eq!(civil_from_days(20789), (2026, 12, 2));
+        assert_eq!(civil_from_days(11016), (2000, 2, 29));
+        assert_eq!(civil_from_days(-1), (1969, 12, 31));
+        assert_eq!(civil_from_days(0), (1970, 1, 1));
+    }
+
+    #[test]
+    fn graticule_gives_two_to_six_lines() {
+        for span in [0.0081, 0.032, 0.3, 1.7, 45.0] {
+            let step = graticule_step(span);
+            let n = (span / step).floor();
+            assert!((2.0..=6.0).contains(&n), "{span}: step {step}, {n} lines");
+        }
+    }
 }

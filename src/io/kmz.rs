@@ -33,6 +33,7 @@ pub(crate) struct Overlay<'a> {
     pub(crate) title: String,
     pub(crate) unit: &'a str,
     pub(crate) data: &'a [f32],
+    pub(crate) range: (f32, f32),
 }
 
 fn el(name: &str, content: impl ToString) -> Element {
@@ -124,13 +125,13 @@ pub(crate) fn kmz(
     let mut overlays = Vec::new();
     for (k, l) in layers.iter().enumerate() {
         let (data, cols, rows, stride) = thinned(&sc.grid, l.data);
-        let png = map_png(cols, rows, &data, l.unit)?;
+        let png = map_png(cols, rows, &data, l.unit, l.range)?;
         // The thinned blocks may reach past the grid's east and south edges by less than one
         // block: the box covers them exactly, so every pixel sits on its cells.
         let east = b.west + (cols * stride) as f64 * sc.grid.dlon();
         let south = b.north - (rows * stride) as f64 * sc.grid.dlat();
         let href = format!("files/{}.png", l.name);
-        let (lo, hi) = crate::io::heatmap::value_range(l.unit, l.data);
+        let (lo, hi) = l.range;
         let defined = l.data.iter().any(|v| *v != NODATA);
         let describe =
             if defined { format!("{} [{}], colours from {lo} to {hi}", l.title, l.unit) } else { l.title.clone() };

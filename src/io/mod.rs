@@ -7,6 +7,7 @@ pub(crate) mod heatmap;
 pub(crate) mod hotspots;
 pub(crate) mod kmz;
 pub(crate) mod layout;
+pub(crate) mod pdf;
 pub(crate) mod profile;
 pub(crate) mod report;
 pub(crate) mod staging;

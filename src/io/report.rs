@@ -38,7 +38,67 @@ figure{margin:0 0 20px;background:#fff;padding:10px;border:1px solid #d8d4c8}fig
 figcaption{font-size:13px;color:#44506a;margin-top:6px}table{border-collapse:collapse;font-size:13px;background:#fff;width:100%}\
 th,td{border:1px solid #d8d4c8;padding:4px 6px;text-align:right;white-space:nowrap}th{background:#e8e5dc;position:sticky;top:0}\
 td.l,th.l{text-align:left}tr.fail td{background:#fbe3e3}td.warn{color:#a11d1d;font-weight:600}.scroll{overflow-x:auto}\
-.small{font-size:12px;color:#44506a}";
+.small{font-size:12px;color:#44506a}*{box-sizing:border-box}img,svg{max-width:100%;height:auto}th,td{white-space:normal;overflow-wrap:anywhere}\
+.facts{font-size:12px;color:#44506a;overflow-wrap:anywhere}\
+@media (max-width:1100px){main,header{padding:12px}table.stack,table.stack tbody,table.stack tr,table.stack td{display:block;width:auto}\
+table.stack thead{display:none}table.stack tr{border:1px solid #d8d4c8;margin:0 0 10px;background:#fff}\
+table.stack td{border:none;border-bottom:1px solid #eee;text-align:left;padding:4px 8px}\
+table.stack td::before{content:attr(data-label) \": \";font-weight:600;color:#44506a}}\
+.cards{display:grid;grid-template-columns:repeat(auto-fill,minmax(min(100%,300px),1fr));gap:14px}\
+.card{background:#fff;border:1px solid #d8d4c8;border-top:6px solid #22304a;padding:12px 14px}\
+.card h3{margin:0 0 6px;font-size:17px;overflow-wrap:anywhere}.card dl{clear:both;display:grid;grid-template-columns:auto 1fr;gap:3px 10px;margin:8px 0;font-size:14px}\
+.card dt{color:#44506a}.card dd{margin:0;font-weight:600;overflow-wrap:break-word;min-width:0}.card dd.warn{color:#a11d1d}\
+.keepout{background:#fff3d6;border-left:6px solid #b8621b;padding:6px 10px;font-size:14px;margin:8px 0}\
+.card .dial{float:right;width:88px;height:88px;margin:-4px 0 4px 8px}.card p.small{clear:both}\
+@media print{header{background:none;color:#000}.card{break-after:page;break-inside:avoid;border:1px solid #000}.scroll{overflow:visible}}";
+
+/// Adds `data-label` (the column's name) to each `<td` of a table row, in order, so a
+/// narrow screen can show the row as a stack of labelled fields.
+fn label_cells(row: &str, cols: &[&str]) -> String {
+    let mut out = String::with_capacity(row.len() + 24 * cols.len());
+    let mut rest = row;
+    let mut k = 0;
+    while let Some(i) = rest.find("<td") {
+        out += &rest[..i + 3];
+        if let Some(c) = cols.get(k) {
+            out += &format!(" data-label=\"{}\"", esc(c));
+        }
+        k += 1;
+        rest = &rest[i + 3..];
+    }
+    out += rest;
+    out
+}
+
+/// A bearing dial for a card (inline SVG): true north up, the azimuth to set as an arrow,
+/// magnetic north as an orange tick at the declination.
+fn bearing_dial(azimuth_true_deg: f64, declination_deg: f64) -> String {
+    let (c, r) = (52.0, 44.0);
+    let at = |deg: f64, rr: f64| {
+        let a = deg.to_radians();
+        (c + rr * a.sin(), c - rr * a.cos())
+    };
+    let mut ticks = String::new();
+    for k in 0..12 {
+        let (x0, y0) = at(30.0 * k as f64, r - 5.0);
+        let (x1, y1) = at(30.0 * k as f64, r);
+        ticks += &format!("<line x1=\"{x0:.1}\" y1=\"{y0:.1}\" x2=\"{x1:.1}\" y2=\"{y1:.1}\" stroke=\"#44506a\"/>");
+    }
+    let (ax, ay) = at(azimuth_true_deg, r - 8.0);
+    let (l1x, l1y) = at(azimuth_true_deg - 8.0, r - 20.0);
+    let (l2x, l2y) = at(azimuth_true_deg + 8.0, r - 20.0);
+    let (mx0, my0) = at(declination_deg, r + 2.0);
+    let (mx1, my1) = at(declination_deg, r - 10.0);
+    format!(
+        "<svg class=\"dial\" viewBox=\"0 0 104 104\" role=\"img\" aria-label=\"azimuth {azimuth_true_deg:.1} degrees true\">\
+<circle cx=\"52\" cy=\"52\" r=\"44\" fill=\"#fff\" stroke=\"#22304a\" stroke-width=\"2\"/>{ticks}\
+<text x=\"52\" y=\"20\" font-size=\"11\" text-anchor=\"middle\" fill=\"#22304a\">N</text>\
+<line x1=\"{mx0:.1}\" y1=\"{my0:.1}\" x2=\"{mx1:.1}\" y2=\"{my1:.1}\" stroke=\"#b8621b\" stroke-width=\"3\"/>\
+<line x1=\"52\" y1=\"52\" x2=\"{ax:.1}\" y2=\"{ay:.1}\" stroke=\"#a11d1d\" stroke-width=\"3\"/>\
+<polygon points=\"{ax:.1},{ay:.1} {l1x:.1},{l1y:.1} {l2x:.1},{l2y:.1}\" fill=\"#a11d1d\"/>\
+<circle cx=\"52\" cy=\"52\" r=\"3\" fill=\"#22304a\"/></svg>"
+    )
+}
 
 /// An SVG document without its XML declaration, for inlining in HTML.
 fn strip_xml_header(svg: &str) -> &str {
@@ -73,7 +133,7 @@ fn weather_section(sc: &Scenario, links: &[LinkRow]) -> String {
         );
     };
     let mut h = format!(
-        "<section><h2>Rain and availability</h2><p class=\"small\">Rain rate exceeded for 0.01 % of an average year: {} mm/h. Specific attenuation after ITU-R P.838-3 for each transmitter's polarisation and path elevation; attenuation exceeded on the path after ITU-R P.530 ({}). Fade margin: {}. Target {} % of the year. The method covers 0.001 % to 1 % of the time; figures outside it are shown as bounds. Multipath fading and other hydrometeors are not included. {}.</p><div class=\"scroll\"><table><thead><tr>",
+        "<section><h2>Rain and availability</h2><p class=\"small\">Rain rate exceeded for 0.01 % of an average year: {} mm/h. Specific attenuation after ITU-R P.838-3 for each transmitter's polarisation and path elevation; attenuation exceeded on the path after ITU-R P.530 ({}). Fade margin: {}. Target {} % of the year. The method covers 0.001 % to 1 % of the time; figures outside it are shown as bounds. Multipath fading and other hydrometeors are not included. {}.</p><div class=\"scroll\"><table class=\"stack\"><thead><tr>",
         rain.rate_mm_h,
         rain.scaling_words(),
         match w.interferers {
@@ -85,7 +145,7 @@ fn weather_section(sc: &Scenario, links: &[LinkRow]) -> String {
         w.target_pct,
         esc(&gas)
     );
-    for c in [
+    const RAIN_COLS: &[&str] = &[
         "from",
         "to",
         "length m",
@@ -95,24 +155,28 @@ fn weather_section(sc: &Scenario, links: &[LinkRow]) -> String {
         "availability",
         "outage min/year",
         "target",
-    ] {
+    ];
+    for &c in RAIN_COLS {
         h += &format!("<th class=\"{}\">{}</th>", if c == "from" || c == "to" { "l" } else { "" }, esc(c));
     }
     h += "</tr></thead><tbody>";
     for r in links {
         let below = r.meets_target == Some(false);
-        h += &format!(
-            "<tr class=\"{}\"><td class=\"l\">{}</td><td class=\"l\">{}</td><td>{:.1}</td><td>{:.2}</td><td>{}</td><td>{}</td><td>{}</td><td>{}</td><td>{}</td></tr>",
-            if below { "fail" } else { "" },
-            esc(&r.from),
-            esc(&r.to),
-            r.length_m,
-            r.weather.gas_db,
-            r.weather.fade_margin_db.map(|v| format!("{v:.2}")).unwrap_or("–".into()),
-            r.weather.rain_fade_db.map(|v| format!("{v:.2}")).unwrap_or("–".into()),
-            esc(&r.availability_words().unwrap_or("–".into())),
-            r.outage_words().unwrap_or("–".into()),
-            if below { "BELOW" } else { "ok" }
+        h += &label_cells(
+            &format!(
+                "<tr class=\"{}\"><td class=\"l\">{}</td><td class=\"l\">{}</td><td>{:.1}</td><td>{:.2}</td><td>{}</td><td>{}</td><td>{}</td><td>{}</td><td>{}</td></tr>",
+                if below { "fail" } else { "" },
+                esc(&r.from),
+                esc(&r.to),
+                r.length_m,
+                r.weather.gas_db,
+                r.weather.fade_margin_db.map(|v| format!("{v:.2}")).unwrap_or("–".into()),
+                r.weather.rain_fade_db.map(|v| format!("{v:.2}")).unwrap_or("–".into()),
+                esc(&r.availability_words().unwrap_or("–".into())),
+                r.outage_words().unwrap_or("–".into()),
+                if below { "BELOW" } else { "ok" }
+            ),
+            RAIN_COLS,
         );
     }
     h += "</tbody></table></div></section>";
@@ -126,6 +190,7 @@ pub fn html(
     sheet: &InstallSheet,
     maps: &[MapImage],
     profiles: &[ProfileImage],
+    inputs: &[(std::path::PathBuf, String)],
 ) -> String {
     let mut h = String::with_capacity(1 << 20);
     h += "<!DOCTYPE html>\n<html lang=\"en\"><head><meta charset=\"utf-8\">";
@@ -141,6 +206,20 @@ pub fn html(
         sc.noise_dbm(),
         sc.thresholds.sinr_db,
         sc.thresholds.coverage_target
+    );
+    h += &format!(
+        "<p class=\"facts\">Generated {} by lobemap {}. Inputs (SHA-256): {}</p>",
+        crate::io::heatmap::today_iso(),
+        env!("CARGO_PKG_VERSION"),
+        inputs
+            .iter()
+            .map(|(p, hex)| format!(
+                "{} {}",
+                esc(&p.file_name().map_or_else(|| p.display().to_string(), |f| f.to_string_lossy().into_owned())),
+                hex
+            ))
+            .collect::<Vec<_>>()
+            .join("; ")
     );
     h += "<section class=\"caution\"><strong>Cautions</strong><ul>";
     for c in cautions(sheet) {
@@ -160,8 +239,7 @@ pub fn html(
         }
         h += "</section>";
     }
-    h += "<section><h2>Planned links</h2><div class=\"scroll\"><table><thead><tr>";
-    for c in [
+    const LINK_COLS: &[&str] = &[
         "from",
         "to",
         "length m",
@@ -177,7 +255,9 @@ pub fn html(
         "status",
         "path",
         "top interferers",
-    ] {
+    ];
+    h += "<section><h2>Planned links</h2><div class=\"scroll\"><table class=\"stack\"><thead><tr>";
+    for &c in LINK_COLS {
         h += &format!(
             "<th class=\"{}\">{}</th>",
             if c.starts_with("top") || c == "from" || c == "to" || c == "path" { "l" } else { "" },
@@ -195,25 +275,28 @@ pub fn html(
             .map(|s| format!("{} {:.0}%", esc(&s.id), s.share * 100.0))
             .collect::<Vec<_>>()
             .join(", ");
-        h += &format!(
-            "<tr class=\"{}\"><td class=\"l\">{}</td><td class=\"l\">{}</td><td>{:.1}</td><td>{:.1}</td>{}{}<td>{:.1}</td><td>{}</td><td>{:.2}</td><td>{:.4}</td><td>{:.2}</td><td>{:.0}</td><td>{}</td><td class=\"l{}\">{}</td><td class=\"l\">{}</td></tr>",
-            if r.passes { "" } else { "fail" },
-            esc(&r.from),
-            esc(&r.to),
-            r.length_m,
-            r.bearing_deg,
-            warn(r.misaligned_from, r.misalign_from_deg, r.azimuth_from_should_deg),
-            warn(r.misaligned_to, r.misalign_to_deg, r.azimuth_to_should_deg),
-            r.signal_dbm,
-            r.interference_dbm.map(|v| format!("{v:.1}")).unwrap_or("–".into()),
-            r.sinr_db,
-            r.coverage,
-            r.margin_db,
-            r.capacity_mbps,
-            if r.passes { "ok" } else { "FAIL" },
-            if r.clearance_ok { "" } else { " warn" },
-            esc(&r.path_verdict()),
-            tops
+        h += &label_cells(
+            &format!(
+                "<tr class=\"{}\"><td class=\"l\">{}</td><td class=\"l\">{}</td><td>{:.1}</td><td>{:.1}</td>{}{}<td>{:.1}</td><td>{}</td><td>{:.2}</td><td>{:.4}</td><td>{:.2}</td><td>{:.0}</td><td>{}</td><td class=\"l{}\">{}</td><td class=\"l\">{}</td></tr>",
+                if r.passes { "" } else { "fail" },
+                esc(&r.from),
+                esc(&r.to),
+                r.length_m,
+                r.bearing_deg,
+                warn(r.misaligned_from, r.misalign_from_deg, r.azimuth_from_should_deg),
+                warn(r.misaligned_to, r.misalign_to_deg, r.azimuth_to_should_deg),
+                r.signal_dbm,
+                r.interference_dbm.map(|v| format!("{v:.1}")).unwrap_or("–".into()),
+                r.sinr_db,
+                r.coverage,
+                r.margin_db,
+                r.capacity_mbps,
+                if r.passes { "ok" } else { "FAIL" },
+                if r.clearance_ok { "" } else { " warn" },
+                esc(&r.path_verdict()),
+                tops
+            ),
+            LINK_COLS,
         );
     }
     h += &format!(
@@ -222,60 +305,43 @@ pub fn html(
     );
     h += &weather_section(sc, links);
     h += &format!(
-        "<section><h2>Installer sheet</h2><p class=\"small\">Azimuth to set: toward the peer along the geodesic, from true north at the node; where it differs from the planned azimuth the cell is marked and the planned value follows in brackets. Magnetic azimuth = azimuth to set − declination (World Magnetic Model, {}). Keep-out: far-field distance on boresight where EIRP/(4πd²) falls to {} W/m² ({}).</p><div class=\"scroll\"><table><thead><tr>",
+        "<section id=\"cards\"><h2>Installer cards</h2><p class=\"small\">One card per node, one per page when printed. Azimuth to set: toward the peer along the geodesic, from true north at the node (the dial: red arrow; orange tick: magnetic north). Magnetic azimuth = azimuth to set − declination (World Magnetic Model, {}). RF keep-out: far-field distance on boresight where EIRP/(4πd²) falls to {} W/m² ({}).</p><div class=\"cards\">",
         esc(&sheet.declination_date),
         sheet.limit_w_m2,
         esc(&sheet.limit_name)
     );
-    for c in [
-        "id",
-        "name",
-        "lat",
-        "lon",
-        "height m",
-        "channel / pol.",
-        "azimuth to set, true °",
-        "declination °",
-        "azimuth magnetic °",
-        "peer",
-        "down-tilt °",
-        "expected at peer dBm",
-        "EIRP dBm",
-        "keep-out m",
-    ] {
-        h += &format!(
-            "<th class=\"{}\">{}</th>",
-            if c == "id" || c == "name" || c == "peer" { "l" } else { "" },
-            esc(c)
-        );
-    }
-    h += "</tr></thead><tbody>";
     for r in &sheet.rows {
+        let name = if r.name.is_empty() { String::new() } else { format!(" · {}", esc(&r.name)) };
+        let azimuth = if r.differs_from_plan {
+            format!(
+                "<dd class=\"warn\">{:.1}° (planned {:.1}°: change it)</dd>",
+                r.azimuth_true_deg, r.azimuth_planned_deg
+            )
+        } else {
+            format!("<dd>{:.1}°</dd>", r.azimuth_true_deg)
+        };
         h += &format!(
-            "<tr><td class=\"l\">{}</td><td class=\"l\">{}</td><td>{:.6}</td><td>{:.6}</td><td>{}</td><td class=\"l\">{} ({} GHz) / {}</td>{}<td>{:.2}</td><td>{:.1}</td><td class=\"l\">{}</td><td>{}</td><td>{}</td><td>{:.1}</td><td>{:.2}</td></tr>",
+            "<article class=\"card\">{}<h3>{}{name}</h3><dl><dt>Position</dt><dd>{:.6}, {:.6}</dd><dt>Mount at</dt><dd>{} m above ground</dd><dt>Azimuth, true</dt>{azimuth}<dt>Azimuth, magnetic</dt><dd>{:.1}° (declination {:.2}°)</dd><dt>Down-tilt</dt><dd>{}</dd><dt>Channel / pol.</dt><dd>{} ({} GHz) / {}</dd><dt>Peer</dt><dd>{}</dd><dt>Expected at peer</dt><dd>{}</dd><dt>EIRP</dt><dd>{:.1} dBm</dd></dl><div class=\"keepout\"><strong>RF keep-out {:.2} m</strong> in front of the antenna while it transmits (reference {} W/m²).</div><p class=\"small\">{}</p></article>",
+            bearing_dial(r.azimuth_true_deg, r.declination_deg),
             esc(&r.id),
-            esc(&r.name),
             r.lat,
             r.lon,
             r.height_m,
+            r.azimuth_magnetic_deg,
+            r.declination_deg,
+            r.downtilt_deg.map(|v| format!("{v:.2}°")).unwrap_or("–".into()),
             esc(&r.channel),
             r.centre_ghz,
             esc(&r.polarisation),
-            if r.differs_from_plan {
-                format!("<td class=\"warn\">{:.1} (planned {:.1})</td>", r.azimuth_true_deg, r.azimuth_planned_deg)
-            } else {
-                format!("<td>{:.1}</td>", r.azimuth_true_deg)
-            },
-            r.declination_deg,
-            r.azimuth_magnetic_deg,
-            esc(&r.peer),
-            r.downtilt_deg.map(|v| format!("{v:.2}")).unwrap_or("–".into()),
-            r.expected_at_peer_dbm.map(|v| format!("{v:.1}")).unwrap_or("–".into()),
+            if r.peer.is_empty() { "–".to_string() } else { esc(&r.peer) },
+            r.expected_at_peer_dbm.map(|v| format!("{v:.1} dBm")).unwrap_or("–".into()),
             r.eirp_dbm,
-            r.keepout_m
+            r.keepout_m,
+            sheet.limit_w_m2,
+            crate::jobs::install::CAUTIONS.iter().map(|c| esc(c)).collect::<Vec<_>>().join(" ")
         );
     }
-    h += "</tbody></table></div></section>";
+    h += "</div></section>";
     if !profiles.is_empty() {
         h += "<section><h2>Path profiles</h2><p class=\"small\">Ground and buildings raised by the Earth bulge, the ray between the antennas and the first Fresnel zone around it. The common rule for a line-of-sight link keeps 60 % of the first Fresnel zone clear.</p>";
         for p in profiles {

@@ -4,7 +4,7 @@
 
 use crate::error::Error;
 use crate::geometry::grid::Grid;
-use crate::io::heatmap::{MapSpec, Marker, render, render_map_only};
+use crate::io::heatmap::{MapSpec, Marker, render_map_only, render_rgb};
 use crate::io::staging::Staging;
 
 /// One layer ready to write.
@@ -24,6 +24,8 @@ pub(crate) struct LayerOut<'a> {
     /// For an index layer (server, channel): the name of each index from 0, written as an
     /// Int32 raster with these category names.
     pub(crate) categories: Option<Vec<String>>,
+    /// Colour limits of the pictures.
+    pub(crate) range: (f32, f32),
 }
 
 /// What every layer shares: the grid and the markers drawn on pictures.
@@ -32,6 +34,8 @@ pub(crate) struct Context<'a> {
     pub(crate) markers: &'a [Marker],
     pub(crate) links: &'a [(usize, usize)],
     pub(crate) footprints: &'a [Vec<(f64, f64)>],
+    /// The title block's lines under the layer's title ([`crate::io::heatmap::sheet_facts`]).
+    pub(crate) facts: &'a [String],
 }
 
 /// Writes one layer in one format; returns the file names written.
@@ -75,7 +79,7 @@ impl LayerWriter for MapPicture {
         if !layer.picture {
             return Ok(Vec::new());
         }
-        let r = render_map_only(cx.grid, layer.data, layer.unit)
+        let r = render_map_only(cx.grid, layer.data, layer.unit, layer.range)
             .map_err(|e| Error::Output { path: st.dir().join(layer.name), source: std::io::Error::other(e) })?;
         let (png, pgw, aux) =
             (format!("{}.png", layer.name), format!("{}.pgw", layer.name), format!("{}.png.aux.xml", layer.name));
@@ -89,15 +93,16 @@ impl LayerWriter for MapPicture {
     }
 }
 
-/// The annotated picture of a layer for people: colour bar, scale bar, north arrow, nodes,
-/// links and outlines (not georeferenced).
+/// The annotated picture of a layer for people: colour bar, symbol legend, title block,
+/// graticule, scale bar, north arrow, labelled nodes, links and outlines (not
+/// georeferenced), as a PNG and as a one-page A3 landscape PDF for printing.
 pub(crate) struct Sheet;
 impl LayerWriter for Sheet {
     fn write(&self, st: &mut Staging, cx: &Context, layer: &LayerOut) -> Result<Vec<String>, Error> {
         if !layer.picture {
             return Ok(Vec::new());
         }
-        let png = render(&MapSpec {
+        let (w, h, rgb) = render_rgb(&MapSpec {
             grid: cx.grid,
             data: layer.data,
             title: &layer.title,
@@ -106,14 +111,24 @@ impl LayerWriter for Sheet {
             links: cx.links,
             outlines: &layer.outlines,
             footprints: cx.footprints,
+            range: layer.range,
+            facts: cx.facts,
         })
         .map_err(|e| Error::Output { path: st.dir().join(layer.name), source: std::io::Error::other(e) })?;
-        let name = format!("{}-sheet.png", layer.name);
+        let img = image::RgbImage::from_raw(w, h, rgb).ok_or_else(|| Error::Output {
+            path: st.dir().join(layer.name),
+            source: std::io::Error::other("image buffer size mismatch"),
+        })?;
+        let mut png = Vec::new();
+        img.write_to(&mut std::io::Cursor::new(&mut png), image::ImageFormat::Png)
+            .map_err(|e| Error::Output { path: st.dir().join(layer.name), source: std::io::Error::other(e) })?;
+        let (name, pdf) = (format!("{}-sheet.png", layer.name), format!("{}-sheet.pdf", layer.name));
         st.write(&name, &png)?;
-        Ok(vec![name])
+        st.write(&pdf, &crate::io::pdf::sheet_pdf(w, h, img.as_raw(), &layer.title))?;
+        Ok(vec![name, pdf])
     }
     fn extensions(&self) -> &'static [&'static str] {
-        &["-sheet.png"]
+        &["-sheet.png", "-sheet.pdf"]
     }
 }
 

@@ -145,12 +145,54 @@ pub struct Scenario {
     pub(crate) channel_pathloss: Vec<PathLoss>,
     /// Ground and buildings (`[surface]`), if given: every path is checked against it.
     pub(crate) surface: Option<std::sync::Arc<Surface>>,
+    /// Colour limits per picture layer (`[colour_scale]` over the fixed defaults).
+    pub(crate) colour_scale: ColourScale,
+}
+
+/// Fixed colour limits of the picture layers, the same in every run so maps compare:
+/// the defaults of [`ColourScale::DEFAULT`] unless `[colour_scale]` sets a layer's.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct ColourScale {
+    /// `total`, dBm.
+    pub total: (f32, f32),
+    /// `interference`, dBm.
+    pub interference: (f32, f32),
+    /// `sinr`, dB.
+    pub sinr: (f32, f32),
+    /// `visible`, nodes.
+    pub visible: (f32, f32),
+}
+
+impl ColourScale {
+    /// Defaults wide enough for millimetre-wave backhaul and narrow-band gateways alike
+    /// (noise floors from about −75 dBm at 2 GHz bandwidth to −120 dBm at 200 kHz).
+    pub const DEFAULT: ColourScale = ColourScale {
+        total: (-120.0, -30.0),
+        interference: (-130.0, -50.0),
+        sinr: (-10.0, 40.0),
+        visible: (0.0, 10.0),
+    };
+
+    /// The limits of layer `name`, if it is one of the four.
+    pub fn of(&self, name: &str) -> Option<(f32, f32)> {
+        match name {
+            "total" => Some(self.total),
+            "interference" => Some(self.interference),
+            "sinr" => Some(self.sinr),
+            "visible" => Some(self.visible),
+            _ => None,
+        }
+    }
 }
 
 impl Scenario {
     /// Scenario name (used for the default output folder).
     pub fn name(&self) -> &str {
         &self.name
+    }
+    /// Colour limits of the picture layers.
+    pub fn colour_scale(&self) -> &ColourScale {
+        &self.colour_scale
     }
     /// The scenario file.
     pub fn path(&self) -> &std::path::Path {
@@ -328,6 +370,7 @@ impl Scenario {
             draw: None,
             default_antenna: None,
             fading: FadingSpec::default(),
+            colour_scale: ColourScale::DEFAULT,
             links: LinkSettings { capacity_gap_db: 3.0, max_spectral_efficiency: 8.0 },
             install: InstallSettings { declination_date: (2026, 1) },
             weather: crate::model::weather::Weather::default(),

@@ -58,9 +58,11 @@ pub fn run_links(sc: &Scenario, opts: &LinksOptions) -> Result<LinksResult, Erro
         check_memory(sc, layers.count(), opts.max_memory_mib)?;
         let l = Engine::new(sc).run(&Options { layers, cutoff_m: None, progress: false });
         let (markers, links) = markers_and_links(sc);
+        let facts = crate::io::heatmap::sheet_facts(sc);
         let grid = &sc.grid;
         let noise = sc.noise_dbm();
-        let mut add = |title: String,
+        let mut add = |name: &str,
+                       title: String,
                        unit: &str,
                        data: &[f32],
                        outlines: Vec<Vec<(f64, f64)>>,
@@ -75,6 +77,8 @@ pub fn run_links(sc: &Scenario, opts: &LinksOptions) -> Result<LinksResult, Erro
                 links: &links,
                 outlines: &outlines,
                 footprints: sc.surface().map_or(&[][..], |s| s.outlines()),
+                range: crate::io::heatmap::layer_range(&sc.colour_scale, name, unit, data),
+                facts: &facts,
             })
             .map_err(|e| Error::Output { path: opts.out.join("report.html"), source: std::io::Error::other(e) })?;
             maps.push(crate::io::report::MapImage { title, png: r, caption });
@@ -83,6 +87,7 @@ pub fn run_links(sc: &Scenario, opts: &LinksOptions) -> Result<LinksResult, Erro
         if let Some(c) = &l.coverage {
             let target = sc.thresholds.coverage_target;
             add(
+                "coverage",
                 format!("Coverage T={} dB", sc.thresholds.sinr_db),
                 crate::io::heatmap::PROBABILITY,
                 c,
@@ -95,6 +100,7 @@ pub fn run_links(sc: &Scenario, opts: &LinksOptions) -> Result<LinksResult, Erro
         if let Some(i) = &l.interference {
             let level = noise + sc.thresholds.hotspot_i_over_n_db;
             add(
+                "interference",
                 "Interference".into(),
                 "dBm",
                 i,
@@ -108,6 +114,7 @@ pub fn run_links(sc: &Scenario, opts: &LinksOptions) -> Result<LinksResult, Erro
         if let Some(a) = &l.availability {
             let target = sc.weather().target_pct;
             add(
+                "availability",
                 "Availability".into(),
                 crate::io::heatmap::AVAILABILITY,
                 a,
@@ -119,6 +126,7 @@ pub fn run_links(sc: &Scenario, opts: &LinksOptions) -> Result<LinksResult, Erro
         }
         if let Some(s) = &l.sinr {
             add(
+                "sinr",
                 "Mean SINR".into(),
                 "dB",
                 s,
@@ -139,7 +147,8 @@ pub fn run_links(sc: &Scenario, opts: &LinksOptions) -> Result<LinksResult, Erro
     let side = serde_json::to_string_pretty(&crate::jobs::install::sidecar(&sheet))
         .map_err(|e| Error::Output { path: opts.out.join("install.json"), source: e.into() })?;
     st.write("install.json", side.as_bytes())?;
-    st.write("report.html", crate::io::report::html(sc, &rows, &sheet, &maps, &profiles).as_bytes())?;
+    let inputs = crate::run::tiles::input_hashes(sc)?;
+    st.write("report.html", crate::io::report::html(sc, &rows, &sheet, &maps, &profiles, &inputs).as_bytes())?;
     let files = st.commit()?;
     Ok(LinksResult { rows, sheet, files })
 }

@@ -152,6 +152,7 @@ pub fn markers_and_links(sc: &Scenario) -> (Vec<Marker>, Vec<(usize, usize)>) {
             lat: n.lat,
             azimuth_deg: n.azimuth_deg,
             beamwidth_deg: n.pattern.beamwidth_deg(),
+            id: n.id.clone(),
         })
         .collect();
     (markers, crate::model::node::peer_links(&sc.nodes))
@@ -308,7 +309,8 @@ pub(crate) fn write_map(
     let grid = &sc.grid;
     let (markers, links) = markers_and_links(sc);
     let footprints = sc.surface().map_or(&[][..], |s| s.outlines());
-    let cx = Context { grid, markers: &markers, links: &links, footprints };
+    let facts = crate::io::heatmap::sheet_facts(sc);
+    let cx = Context { grid, markers: &markers, links: &links, footprints, facts: &facts };
     let mut files: Vec<String> = Vec::new();
     let hot = layers.interference.as_deref().map(|i| hotspots(sc, i));
     let low = layers.coverage.as_deref().map(|c| outage_zones(sc, c));
@@ -324,6 +326,7 @@ pub(crate) fn write_map(
             "channel" => Some(sc.spectrum.channels.iter().map(|c| c.name.clone()).collect()),
             _ => None,
         },
+        range: crate::io::heatmap::layer_range(&sc.colour_scale, name, unit, data),
     };
     if let Some(t) = &layers.total {
         files.extend(write_layer(st, &cx, &layer("total", "Total received", "dBm", t, Vec::new()))?);
@@ -389,7 +392,8 @@ fn site_kmz<'a>(sc: &Scenario, layers: &'a Layers, hot: &[crate::jobs::zones::Ho
     let mut over = Vec::new();
     let mut add = |name, title: String, unit, data: &'a Option<Vec<f32>>| {
         if let Some(d) = data {
-            over.push(Overlay { name, title, unit, data: d });
+            let range = crate::io::heatmap::layer_range(&sc.colour_scale, name, unit, d);
+            over.push(Overlay { name, title, unit, data: d, range });
         }
     };
     add("interference", "Interference".into(), "dBm", &layers.interference);
