@@ -361,3 +361,49 @@ fn quiet_silences_stderr_in_every_command() {
         }
     }
 }
+
+/// `[context] layers`: the user's lines are drawn beneath the sheet (the sheet changes where
+/// the line runs, the GeoTIFF does not), the file joins the input hashes, and a Point feature
+/// or a swapped coordinate is refused naming the file, the feature and the field.
+#[test]
+fn context_layers_are_drawn_and_checked() {
+    let d = tempfile::tempdir().unwrap();
+    let text = crate::util::demo_scenario();
+    let line = r#"{"type":"FeatureCollection","features":[{"type":"Feature","properties":{"name":"Quay Road"},"geometry":{"type":"LineString","coordinates":[[-4.8150,45.4990],[-4.7850,45.5030]]}}]}"#;
+    std::fs::write(d.path().join("streets.geojson"), line).unwrap();
+    let with = d.path().join("with.toml");
+    std::fs::write(&with, format!("{text}\n[context]\nlayers = [\"streets.geojson\"]\n")).unwrap();
+    let plain = d.path().join("plain.toml");
+    std::fs::write(&plain, &text).unwrap();
+    for (p, out) in [(&with, "a"), (&plain, "b")] {
+        let o = run(&[
+            "map",
+            p.to_str().unwrap(),
+            "--layers",
+            "total",
+            "--out",
+            d.path().join(out).to_str().unwrap(),
+            "--quiet",
+        ]);
+        assert!(o.status.success(), "{}", stderr(&o));
+    }
+    let read = |f: &str| std::fs::read(d.path().join(f)).unwrap();
+    assert_ne!(read("a/total-sheet.png"), read("b/total-sheet.png"), "the context line was not drawn");
+    assert_eq!(read("a/total.tif"), read("b/total.tif"), "context must not change the computation");
+    for (bad, field) in [
+        (
+            r#"{"type":"FeatureCollection","features":[{"type":"Feature","properties":{},"geometry":{"type":"Point","coordinates":[-4.8,45.5]}}]}"#,
+            "geometry",
+        ),
+        (
+            r#"{"type":"FeatureCollection","features":[{"type":"Feature","properties":{},"geometry":{"type":"LineString","coordinates":[[45.5,-4.8],[45.5,-94.8]]}}]}"#,
+            "coordinates",
+        ),
+    ] {
+        std::fs::write(d.path().join("streets.geojson"), bad).unwrap();
+        let o = run(&["check", with.to_str().unwrap()]);
+        assert_eq!(o.status.code(), Some(2));
+        let e = stderr(&o);
+        assert!(e.contains("streets.geojson") && e.contains("feature 0") && e.contains(field), "{e}");
+    }
+}

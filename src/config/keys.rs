@@ -28,6 +28,7 @@ pub(crate) const KEYS: &[(&str, &[&str])] = &[
             "channels",
             "spectrum",
             "colour_scale",
+            "context",
         ],
     ),
     ("radio", &["frequency_ghz", "bandwidth_mhz", "noise_figure_db"]),
@@ -48,6 +49,7 @@ pub(crate) const KEYS: &[(&str, &[&str])] = &[
     ("rain", &["rate_mm_h", "scaling", "interferers_fade"]),
     ("spectrum", &["xpd_db", "aclr_db", "acs_db", "aclr2_db", "acs2_db"]),
     ("colour_scale", &["total", "interference", "sinr", "visible"]),
+    ("context", &["layers"]),
 ];
 
 /// 1-based line and column of byte `offset` in `text`.

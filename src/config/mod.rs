@@ -1,6 +1,7 @@
 //! Configuration: the scenario file and the node file, parsed and validated.
 
 pub(crate) mod antenna;
+pub mod context;
 pub(crate) mod draw;
 pub mod field;
 pub(crate) mod keys;

@@ -32,6 +32,16 @@ pub(crate) struct RawScenario {
     pub(crate) spectrum: Option<RawSpectrum>,
     #[serde(default)]
     pub(crate) colour_scale: RawColourScale,
+    #[serde(default)]
+    pub(crate) context: RawContext,
+}
+
+/// `[context]`: GeoJSON files drawn beneath the sheets.
+#[derive(Debug, Default, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub(crate) struct RawContext {
+    #[serde(default)]
+    pub(crate) layers: Vec<String>,
 }
 
 /// `[colour_scale]`: fixed colour limits `[low, high]` per picture layer.

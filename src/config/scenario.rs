@@ -440,6 +440,11 @@ impl Scenario {
         let weather = weather(&raw, &file, &mut probs);
         let spectrum = spectrum(&raw, &file, &mut probs);
         let colour_scale = colour_scale(&raw.colour_scale, &file, &mut probs);
+        let context = crate::config::context::read(
+            path.parent().unwrap_or(std::path::Path::new(".")),
+            &raw.context.layers,
+            &mut probs,
+        );
         let channel_names: Vec<String> = spectrum.channels.iter().map(|c| c.name.clone()).collect();
         let p = &raw.propagation;
         let params = LawParams { exponent: p.exponent, loss_at_1m_db: p.loss_at_1m_db };
@@ -636,6 +641,7 @@ impl Scenario {
             install: InstallSettings { declination_date: declination_date.unwrap_or((2026, 1)) },
             surface,
             colour_scale,
+            context,
         })
     }
 }

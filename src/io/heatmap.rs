@@ -59,6 +59,8 @@ pub struct MapSpec<'a> {
     pub range: (f32, f32),
     /// Title-block lines under the title ([`sheet_facts`]).
     pub facts: &'a [String],
+    /// The user's context lines (`[context] layers`, lon/lat), drawn beneath everything.
+    pub context: &'a [Vec<(f64, f64)>],
 }
 
 /// The title block of every sheet: scenario, carrier, receiver assumption, date and
@@ -222,7 +224,12 @@ pub fn render_rgb(spec: &MapSpec) -> Result<(u32, u32, Vec<u8>), String> {
         let root = BitMapBackend::with_buffer(&mut buf, (w, h)).into_drawing_area();
         let e = |x: DrawingAreaErrorKind<_>| x.to_string();
         let ink = RGBColor(20, 24, 32);
-        // Building footprints beneath everything else.
+        // The user's context lines (coast, streets, ...) beneath everything, then footprints.
+        for line in spec.context {
+            let pts: Vec<(i32, i32)> = line.iter().map(|&(lon, lat)| to_px(lon, lat)).collect();
+            root.draw(&PathElement::new(pts, RGBColor(235, 238, 245).stroke_width(1))).map_err(e)?;
+        }
+        // Building footprints.
         for ring in spec.footprints {
             let pts: Vec<(i32, i32)> = ring.iter().map(|&(lon, lat)| to_px(lon, lat)).collect();
             root.draw(&PathElement::new(pts, RGBColor(70, 70, 70).stroke_width(1))).map_err(e)?;

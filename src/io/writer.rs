@@ -36,6 +36,8 @@ pub(crate) struct Context<'a> {
     pub(crate) footprints: &'a [Vec<(f64, f64)>],
     /// The title block's lines under the layer's title ([`crate::io::heatmap::sheet_facts`]).
     pub(crate) facts: &'a [String],
+    /// The user's context lines (`[context] layers`).
+    pub(crate) context: &'a [Vec<(f64, f64)>],
 }
 
 /// Writes one layer in one format; returns the file names written.
@@ -113,6 +115,7 @@ impl LayerWriter for Sheet {
             footprints: cx.footprints,
             range: layer.range,
             facts: cx.facts,
+            context: cx.context,
         })
         .map_err(|e| Error::Output { path: st.dir().join(layer.name), source: std::io::Error::other(e) })?;
         let img = image::RgbImage::from_raw(w, h, rgb).ok_or_else(|| Error::Output {

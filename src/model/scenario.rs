@@ -147,6 +147,8 @@ pub struct Scenario {
     pub(crate) surface: Option<std::sync::Arc<Surface>>,
     /// Colour limits per picture layer (`[colour_scale]` over the fixed defaults).
     pub(crate) colour_scale: ColourScale,
+    /// Lines drawn beneath the sheets (`[context] layers`).
+    pub(crate) context: crate::config::context::Context,
 }
 
 /// Fixed colour limits of the picture layers, the same in every run so maps compare:
@@ -256,6 +258,7 @@ impl Scenario {
         if let Some(s) = &self.surface {
             v.extend(s.files.iter().map(|p| p.as_path()));
         }
+        v.extend(self.context.files.iter().map(|p| p.as_path()));
         v
     }
     /// Ground and buildings, if the scenario has a `[surface]`.
@@ -371,6 +374,7 @@ impl Scenario {
             default_antenna: None,
             fading: FadingSpec::default(),
             colour_scale: ColourScale::DEFAULT,
+            context: Default::default(),
             links: LinkSettings { capacity_gap_db: 3.0, max_spectral_efficiency: 8.0 },
             install: InstallSettings { declination_date: (2026, 1) },
             weather: crate::model::weather::Weather::default(),

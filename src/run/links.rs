@@ -79,6 +79,7 @@ pub fn run_links(sc: &Scenario, opts: &LinksOptions) -> Result<LinksResult, Erro
                 footprints: sc.surface().map_or(&[][..], |s| s.outlines()),
                 range: crate::io::heatmap::layer_range(&sc.colour_scale, name, unit, data),
                 facts: &facts,
+                context: &sc.context.lines,
             })
             .map_err(|e| Error::Output { path: opts.out.join("report.html"), source: std::io::Error::other(e) })?;
             maps.push(crate::io::report::MapImage { title, png: r, caption });

@@ -310,7 +310,7 @@ pub(crate) fn write_map(
     let (markers, links) = markers_and_links(sc);
     let footprints = sc.surface().map_or(&[][..], |s| s.outlines());
     let facts = crate::io::heatmap::sheet_facts(sc);
-    let cx = Context { grid, markers: &markers, links: &links, footprints, facts: &facts };
+    let cx = Context { grid, markers: &markers, links: &links, footprints, facts: &facts, context: &sc.context.lines };
     let mut files: Vec<String> = Vec::new();
     let hot = layers.interference.as_deref().map(|i| hotspots(sc, i));
     let low = layers.coverage.as_deref().map(|c| outage_zones(sc, c));
