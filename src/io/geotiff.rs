@@ -19,6 +19,7 @@
 
 use crate::NODATA;
 use crate::geometry::grid::Grid;
+use crate::io::report::esc;
 use geotiff_writer::{CogBuilder, Compression, GeoTiffBuilder, Predictor};
 use ndarray::ArrayView2;
 use std::fmt::Write as _;
@@ -73,22 +74,18 @@ pub fn write_index_geotiff<W: Write + Seek>(w: W, grid: &Grid, data: &[f32]) -> 
         .map_err(|e| e.to_string())
 }
 
-fn escape(s: &str) -> String {
-    s.replace('&', "&amp;").replace('<', "&lt;").replace('>', "&gt;").replace('"', "&quot;")
-}
-
 /// The GDAL PAM sidecar (`.aux.xml`) of a one-band raster: its description, unit and, for
 /// an index layer, the name of each index from 0 (GDAL's category names).
 pub fn pam_sidecar(description: &str, unit: &str, categories: Option<&[String]>) -> String {
     let mut x = String::from("<PAMDataset>\n  <PAMRasterBand band=\"1\">\n");
-    let _ = writeln!(x, "    <Description>{}</Description>", escape(description));
+    let _ = writeln!(x, "    <Description>{}</Description>", esc(description));
     if !unit.is_empty() {
-        let _ = writeln!(x, "    <UnitType>{}</UnitType>", escape(unit));
+        let _ = writeln!(x, "    <UnitType>{}</UnitType>", esc(unit));
     }
     if let Some(names) = categories {
         x += "    <CategoryNames>\n";
         for n in names {
-            let _ = writeln!(x, "      <Category>{}</Category>", escape(n));
+            let _ = writeln!(x, "      <Category>{}</Category>", esc(n));
         }
         x += "    </CategoryNames>\n";
     }

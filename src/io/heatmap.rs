@@ -176,9 +176,21 @@ pub fn nice_length_m(width_m: f64) -> f64 {
 /// annotations are not part of the grid ([`render_map_only`] is).
 pub fn render(spec: &MapSpec) -> Result<Vec<u8>, String> {
     let (w, h, buf) = render_rgb(spec)?;
-    let img = image::RgbImage::from_raw(w, h, buf).ok_or("image buffer size mismatch")?;
+    rgb_png(w, h, &buf)
+}
+
+/// PNG bytes of a `w` × `h` picture of 8-bit RGB rows.
+pub fn rgb_png(w: u32, h: u32, rgb: &[u8]) -> Result<Vec<u8>, String> {
     let mut png = Vec::new();
-    img.write_to(&mut std::io::Cursor::new(&mut png), image::ImageFormat::Png).map_err(|e| e.to_string())?;
+    image::write_buffer_with_format(
+        &mut std::io::Cursor::new(&mut png),
+        rgb,
+        w,
+        h,
+        image::ExtendedColorType::Rgb8,
+        image::ImageFormat::Png,
+    )
+    .map_err(|e| e.to_string())?;
     Ok(png)
 }
 

@@ -118,16 +118,11 @@ impl LayerWriter for Sheet {
             context: cx.context,
         })
         .map_err(|e| Error::Output { path: st.dir().join(layer.name), source: std::io::Error::other(e) })?;
-        let img = image::RgbImage::from_raw(w, h, rgb).ok_or_else(|| Error::Output {
-            path: st.dir().join(layer.name),
-            source: std::io::Error::other("image buffer size mismatch"),
-        })?;
-        let mut png = Vec::new();
-        img.write_to(&mut std::io::Cursor::new(&mut png), image::ImageFormat::Png)
+        let png = crate::io::heatmap::rgb_png(w, h, &rgb)
             .map_err(|e| Error::Output { path: st.dir().join(layer.name), source: std::io::Error::other(e) })?;
         let (name, pdf) = (format!("{}-sheet.png", layer.name), format!("{}-sheet.pdf", layer.name));
         st.write(&name, &png)?;
-        st.write(&pdf, &crate::io::pdf::sheet_pdf(w, h, img.as_raw(), &layer.title))?;
+        st.write(&pdf, &crate::io::pdf::sheet_pdf(w, h, &rgb, &layer.title))?;
         Ok(vec![name, pdf])
     }
     fn extensions(&self) -> &'static [&'static str] {
