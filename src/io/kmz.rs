@@ -16,25 +16,18 @@
 use crate::NODATA;
 use crate::geometry::grid::Grid;
 use crate::io::heatmap::map_png;
+use crate::io::writer::LayerOut;
 use crate::jobs::install::{CAUTIONS, InstallSheet};
 use crate::model::scenario::Scenario;
 use kml::types::{Coord, Element, Folder, LineString, Placemark, Point};
 use kml::{Kml, KmlDocument, KmlVersion, KmlWriter};
+use std::borrow::Cow;
 use std::collections::HashMap;
 use std::io::Write as _;
 
 /// Largest side of a ground-overlay picture, pixels (larger layers are thinned by a whole
 /// stride, nearest cell).
 pub const OVERLAY_MAX_PX: usize = 2048;
-
-/// One picture layer for the KMZ.
-pub(crate) struct Overlay<'a> {
-    pub(crate) name: &'a str,
-    pub(crate) title: String,
-    pub(crate) unit: &'a str,
-    pub(crate) data: &'a [f32],
-    pub(crate) range: (f32, f32),
-}
 
 fn el(name: &str, content: impl ToString) -> Element {
     Element { name: name.into(), content: Some(content.to_string()), ..Default::default() }
@@ -46,10 +39,10 @@ fn parent(name: &str, children: Vec<Element>) -> Element {
 
 /// The layer thinned to at most [`OVERLAY_MAX_PX`] a side (every `stride`-th cell, each
 /// standing for a block of `stride` × `stride` cells): values, columns, rows and stride.
-fn thinned(grid: &Grid, data: &[f32]) -> (Vec<f32>, usize, usize, usize) {
+fn thinned<'a>(grid: &Grid, data: &'a [f32]) -> (Cow<'a, [f32]>, usize, usize, usize) {
     let stride = grid.cols().max(grid.rows()).div_ceil(OVERLAY_MAX_PX).max(1);
     if stride == 1 {
-        return (data.to_vec(), grid.cols(), grid.rows(), 1);
+        return (Cow::Borrowed(data), grid.cols(), grid.rows(), 1);
     }
     let (cols, rows) = (grid.cols().div_ceil(stride), grid.rows().div_ceil(stride));
     let mut out = Vec::with_capacity(cols * rows);
@@ -58,7 +51,7 @@ fn thinned(grid: &Grid, data: &[f32]) -> (Vec<f32>, usize, usize, usize) {
             out.push(data[(r * stride) * grid.cols() + c * stride]);
         }
     }
-    (out, cols, rows, stride)
+    (Cow::Owned(out), cols, rows, stride)
 }
 
 fn placemark(name: String, description: String, geometry: kml::types::Geometry) -> Kml {
@@ -76,35 +69,29 @@ fn folder(name: &str, elements: Vec<Kml>) -> Kml {
 
 /// The node's description on a placemark: what the installer sets and the cautions.
 fn node_text(sc: &Scenario, i: usize, sheet: Result<&InstallSheet, &str>) -> String {
-    let n = &sc.nodes[i];
-    let mut s = match sheet.map(|sh| &sh.rows[i]) {
-        Ok(r) => {
+    let mut s = match sheet {
+        Ok(sh) => {
+            let r = &sh.rows[i];
             let mut s = format!(
                 "Height {} m above ground. Azimuth to set {:.1}° true, {:.1}° magnetic (declination {:.2}°, {}).",
-                r.height_m,
-                r.azimuth_true_deg,
-                r.azimuth_magnetic_deg,
-                r.declination_deg,
-                sheet.map(|sh| sh.declination_date.as_str()).unwrap_or("")
+                r.height_m, r.azimuth_true_deg, r.azimuth_magnetic_deg, r.declination_deg, sh.declination_date
             );
             if let Some(t) = r.downtilt_deg {
                 s += &format!(" Down-tilt {t:.1}° toward {}.", r.peer);
             }
             s += &format!(
                 " Channel {} ({} GHz), polarisation {}. EIRP {:.1} dBm; RF keep-out {:.2} m in front of the antenna ({} W/m²).",
-                r.channel,
-                r.centre_ghz,
-                r.polarisation,
-                r.eirp_dbm,
-                r.keepout_m,
-                sheet.map(|sh| sh.limit_w_m2).unwrap_or(0.0)
+                r.channel, r.centre_ghz, r.polarisation, r.eirp_dbm, r.keepout_m, sh.limit_w_m2
             );
             s
         }
-        Err(why) => format!(
-            "Height {} m above ground. Planned azimuth {:.1}° true; no magnetic azimuth or keep-out: {why}.",
-            n.height_m, n.azimuth_deg
-        ),
+        Err(why) => {
+            let n = &sc.nodes[i];
+            format!(
+                "Height {} m above ground. Planned azimuth {:.1}° true; no magnetic azimuth or keep-out: {why}.",
+                n.height_m, n.azimuth_deg
+            )
+        }
     };
     for c in CAUTIONS {
         s += "\n";
@@ -113,16 +100,18 @@ fn node_text(sc: &Scenario, i: usize, sheet: Result<&InstallSheet, &str>) -> Str
     s
 }
 
-/// The KMZ bytes of a map run: overlays of `layers`, nodes, links and hot-spot outlines.
+/// The KMZ bytes of a map run: overlays of `layers` (interference shown, the others listed
+/// hidden), nodes, links and hot-spot outlines.
 pub(crate) fn kmz(
     sc: &Scenario,
-    layers: &[Overlay],
+    layers: &[&LayerOut],
     hot_rings: &[Vec<(f64, f64)>],
     sheet: Result<&InstallSheet, String>,
 ) -> Result<Vec<u8>, String> {
     let b = sc.grid.bbox();
     let mut pictures: Vec<(String, Vec<u8>)> = Vec::new();
     let mut overlays = Vec::new();
+    let shown = layers.iter().position(|l| l.name == "interference").unwrap_or(0);
     for (k, l) in layers.iter().enumerate() {
         let (data, cols, rows, stride) = thinned(&sc.grid, l.data);
         let png = map_png(cols, rows, &data, l.unit, l.range)?;
@@ -139,7 +128,7 @@ pub(crate) fn kmz(
             "GroundOverlay",
             vec![
                 el("name", &l.title),
-                el("visibility", if k == 0 { 1 } else { 0 }),
+                el("visibility", if k == shown { 1 } else { 0 }),
                 el("description", describe),
                 parent("Icon", vec![el("href", &href)]),
                 parent(

@@ -312,6 +312,8 @@ pub(crate) fn write_map(
     let facts = crate::io::heatmap::sheet_facts(sc);
     let cx = Context { grid, markers: &markers, links: &links, footprints, facts: &facts, context: &sc.context.lines };
     let mut files: Vec<String> = Vec::new();
+    // Every layer written, in order, for the field file.
+    let mut outs: Vec<LayerOut> = Vec::new();
     let hot = layers.interference.as_deref().map(|i| hotspots(sc, i));
     let low = layers.coverage.as_deref().map(|c| outage_zones(sc, c));
     let layer = |name, title: &str, unit, data, outlines| LayerOut {
@@ -329,15 +331,15 @@ pub(crate) fn write_map(
         range: crate::io::heatmap::layer_range(&sc.colour_scale, name, unit, data),
     };
     if let Some(t) = &layers.total {
-        files.extend(write_layer(st, &cx, &layer("total", "Total received", "dBm", t, Vec::new()))?);
+        put(st, &cx, &mut files, &mut outs, layer("total", "Total received", "dBm", t, Vec::new()))?;
     }
     if let (Some(i), Some(h)) = (&layers.interference, &hot) {
         let outlines = h.iter().flat_map(|h| h.region.rings_lon_lat()).collect();
-        files.extend(write_layer(st, &cx, &layer("interference", "Interference", "dBm", i, outlines))?);
+        put(st, &cx, &mut files, &mut outs, layer("interference", "Interference", "dBm", i, outlines))?;
     }
     if let (Some(cv), Some(z)) = (&layers.coverage, &low) {
         let title = format!("Coverage T={} dB", sc.thresholds.sinr_db);
-        files.extend(write_layer(st, &cx, &layer("coverage", &title, PROBABILITY, cv, outlines(z)))?);
+        put(st, &cx, &mut files, &mut outs, layer("coverage", &title, PROBABILITY, cv, outlines(z)))?;
     }
     if hot.is_some() || low.is_some() {
         let (h, z) = (hot.as_deref().unwrap_or_default(), low.as_deref().unwrap_or_default());
@@ -352,26 +354,26 @@ pub(crate) fn write_map(
     let sub_cell_zones = hot.as_ref().map_or(0, |h| h.iter().filter(|h| h.region.is_sub_cell(grid)).count())
         + low.as_ref().map_or(0, |z| z.iter().filter(|r| r.is_sub_cell(grid)).count());
     if let Some(s) = &layers.sinr {
-        files.extend(write_layer(st, &cx, &layer("sinr", "Mean SINR", "dB", s, Vec::new()))?);
+        put(st, &cx, &mut files, &mut outs, layer("sinr", "Mean SINR", "dB", s, Vec::new()))?;
     }
     if let Some(v) = layers.server.as_ref().filter(|_| run.realizations <= 1) {
-        files.extend(write_layer(st, &cx, &layer("server", "Best server", "", v, Vec::new()))?);
+        put(st, &cx, &mut files, &mut outs, layer("server", "Best server", "", v, Vec::new()))?;
     }
     if let Some(v) = &layers.visible {
         let title = "Nodes in line of sight";
-        files.extend(write_layer(st, &cx, &layer("visible", title, "nodes", v, Vec::new()))?);
+        put(st, &cx, &mut files, &mut outs, layer("visible", title, "nodes", v, Vec::new()))?;
     }
     if let Some(v) = layers.channel.as_ref().filter(|_| run.realizations <= 1) {
-        files.extend(write_layer(st, &cx, &layer("channel", "Server's channel", "", v, Vec::new()))?);
+        put(st, &cx, &mut files, &mut outs, layer("channel", "Server's channel", "", v, Vec::new()))?;
     }
     let target_pct = sc.weather().target_pct;
     if let Some(a) = &layers.availability {
         let below = outlines(&short_of_target(grid, a, target_pct));
-        files.extend(write_layer(st, &cx, &layer("availability", "Availability", AVAILABILITY, a, below))?);
+        put(st, &cx, &mut files, &mut outs, layer("availability", "Availability", AVAILABILITY, a, below))?;
     }
     st.write("layout.geojson", layout_geojson(&sc.nodes).to_string().as_bytes())?;
     files.push("layout.geojson".into());
-    let field = site_kmz(sc, layers, hot.as_deref().unwrap_or_default())
+    let field = site_kmz(sc, &outs, hot.as_deref().unwrap_or_default())
         .map_err(|e| Error::Output { path: st.dir().join("site.kmz"), source: std::io::Error::other(e) })?;
     st.write("site.kmz", &field)?;
     files.push("site.kmz".into());
@@ -384,27 +386,27 @@ pub(crate) fn write_map(
     Ok(summary)
 }
 
-/// The field file of a map run: the picture layers in the order `map` writes them, nodes
-/// with what the installer sets (the install sheet's rows; without magnetic figures where
-/// the magnetic model refuses the place or date), links and hot-spot outlines.
-fn site_kmz<'a>(sc: &Scenario, layers: &'a Layers, hot: &[crate::jobs::zones::Hotspot]) -> Result<Vec<u8>, String> {
-    use crate::io::kmz::Overlay;
-    let mut over = Vec::new();
-    let mut add = |name, title: String, unit, data: &'a Option<Vec<f32>>| {
-        if let Some(d) = data {
-            let range = crate::io::heatmap::layer_range(&sc.colour_scale, name, unit, d);
-            over.push(Overlay { name, title, unit, data: d, range });
-        }
-    };
-    add("interference", "Interference".into(), "dBm", &layers.interference);
-    add("sinr", "Mean SINR".into(), "dB", &layers.sinr);
-    add("total", "Total received".into(), "dBm", &layers.total);
-    add("coverage", format!("Coverage T={} dB", sc.thresholds.sinr_db), PROBABILITY, &layers.coverage);
-    add("visible", "Nodes in line of sight".into(), "nodes", &layers.visible);
-    add("availability", "Availability".into(), AVAILABILITY, &layers.availability);
+/// Writes `l` through every writer, notes its files and keeps it for the field file.
+fn put<'a>(
+    st: &mut Staging,
+    cx: &Context,
+    files: &mut Vec<String>,
+    outs: &mut Vec<LayerOut<'a>>,
+    l: LayerOut<'a>,
+) -> Result<(), Error> {
+    files.extend(write_layer(st, cx, &l)?);
+    outs.push(l);
+    Ok(())
+}
+
+/// The field file of a map run: the picture layers `map` wrote, nodes with what the
+/// installer sets (the install sheet's rows; without magnetic figures where the magnetic
+/// model refuses the place or date), links and hot-spot outlines.
+fn site_kmz(sc: &Scenario, outs: &[LayerOut], hot: &[crate::jobs::zones::Hotspot]) -> Result<Vec<u8>, String> {
+    let pictures: Vec<&LayerOut> = outs.iter().filter(|l| l.picture).collect();
     let rings: Vec<Vec<(f64, f64)>> = hot.iter().flat_map(|h| h.region.rings_lon_lat().into_iter().take(1)).collect();
     let sheet = crate::jobs::install::sheet(sc);
-    crate::io::kmz::kmz(sc, &over, &rings, sheet.as_ref().map_err(Clone::clone))
+    crate::io::kmz::kmz(sc, &pictures, &rings, sheet.as_ref().map_err(Clone::clone))
 }
 
 /// The summary of one tile (its rows' grid, no zones), for the command line's report.
