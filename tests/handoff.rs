@@ -7,8 +7,10 @@ use crate::util::{run, site, stderr};
 use std::path::Path;
 use std::process::Command;
 
+/// Whether `tool` is installed: it can be started (its answer to `--version`, which
+/// poppler's tools reject, does not matter).
 fn have(tool: &str) -> bool {
-    Command::new(tool).arg("--version").output().is_ok_and(|o| o.status.success())
+    Command::new(tool).arg("--version").output().is_ok()
 }
 
 fn skip(tool: &str) {
@@ -247,7 +249,7 @@ fn ogrinfo_opens_the_kmz() {
 /// holding the annotated map, as poppler's pdfinfo and pdfimages read it.
 #[test]
 fn pdf_sheet_is_one_a3_page() {
-    if !have("pdfinfo") && !Command::new("pdfinfo").arg("-v").output().is_ok_and(|o| o.status.success()) {
+    if !have("pdfinfo") {
         return skip("pdfinfo (poppler-utils)");
     }
     let d = tempfile::tempdir().unwrap();
