@@ -17,6 +17,7 @@ pub mod io;
 pub mod jobs;
 pub(crate) mod math;
 pub mod model;
+pub mod progress;
 pub mod random;
 pub mod run;
 

@@ -356,6 +356,7 @@ impl AggArgs {
 
 /// Runs a parsed command line; the error's type decides the exit code (see `main`).
 pub fn run(cli: Cli) -> anyhow::Result<ExitCode> {
+    lobemap::progress::show(!cli.quiet);
     if let Some(t) = cli.threads {
         if t == 0 || t > 1024 {
             return Err(bad_flag("--threads", format!("value {t} is outside the allowed range [1, 1024]")));
@@ -627,7 +628,7 @@ fn map_cmd(sc: &Scenario, a: MapArgs, quiet: bool, default_out: Option<&str>) ->
         }
         match tile {
             Some(t) => eprintln!("wrote tile {} of {} to {}", t.index, t.count, out.join(t.folder()).display()),
-            None => eprintln!("wrote {} files to {}", res.files.len(), out.display()),
+            None => eprintln!("wrote {} files to {} in {:.2} s", res.files.len(), out.display(), res.write_s),
         }
     }
     Ok(ExitCode::SUCCESS)

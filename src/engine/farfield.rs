@@ -455,6 +455,7 @@ impl Engine<'_> {
             .enumerate()
             .map(|(i, (((t, it), s), v))| (b0 + i, [t, it, s, v]))
             .collect();
+        let bar = crate::progress::bar("far-field map", work.len() as u64, "block rows");
         let res: Vec<(u64, f64)> = work
             .into_par_iter()
             .map(|(br, mut out)| {
@@ -468,9 +469,11 @@ impl Engine<'_> {
                     pairs += p;
                     worst = worst.max(w);
                 }
+                bar.inc(1);
                 (pairs, worst)
             })
             .collect();
+        bar.finish_and_clear();
         let worst = res.iter().map(|r| r.1).fold(0.0, f64::max);
         Layers {
             total,

@@ -311,13 +311,7 @@ impl Engine<'_> {
             .map(|(r, (((((t, i), s), v), cv), av))| (r0 + r, [t, i, s, v, cv, av]))
             .collect();
         let bar = if opts.progress && rows * cols * self.nodes.len() > 50_000_000 {
-            let b = indicatif::ProgressBar::new(rows as u64);
-            b.set_style(
-                indicatif::ProgressStyle::with_template("{msg} [{bar:40}] {pos}/{len} rows, {eta} left")
-                    .unwrap_or_else(|_| indicatif::ProgressStyle::default_bar()),
-            );
-            b.set_message("map");
-            b
+            crate::progress::styled("map", rows as u64, "rows")
         } else {
             indicatif::ProgressBar::hidden()
         };

@@ -369,6 +369,11 @@ pub fn search_with(sc: &Scenario, locked: &[bool], seed: u64, exhaustive_max: f6
     let mut evaluated = 1u64;
     let plans = (candidates.len() as f64).powi(pr.free.len() as i32);
     let exhaustive = plans <= exhaustive_max;
+    let bar = if exhaustive {
+        crate::progress::bar("plan search", plans as u64, "plans")
+    } else {
+        crate::progress::bar("plan search", 4, "starts")
+    };
     if exhaustive {
         // Odometer over the free groups, one group's move at a time (incremental).
         let mut cls = start.clone();
@@ -380,6 +385,9 @@ pub fn search_with(sc: &Scenario, locked: &[bool], seed: u64, exhaustive_max: f6
         loop {
             let s = pr.score(&cls, &intf);
             evaluated += 1;
+            if evaluated.is_multiple_of(4096) {
+                bar.inc(4096);
+            }
             if s.better(&best.1) {
                 best = (cls.clone(), s);
             }
@@ -449,8 +457,10 @@ pub fn search_with(sc: &Scenario, locked: &[bool], seed: u64, exhaustive_max: f6
             if cur.better(&best.1) {
                 best = (cls, cur);
             }
+            bar.inc(1);
         }
     }
+    bar.finish_and_clear();
     let (cls, _) = best;
     let exact_after = pr.score(&cls, &pr.interference(&cls));
     let classes = (0..sc.nodes.len()).map(|i| pr.classes[cls[pr.group_of[i]]]).collect();

@@ -125,7 +125,8 @@ pub const CLEARANCE_RULE: f64 = 0.6;
 pub fn links(sc: &Scenario, mc: Option<(usize, u64)>) -> Vec<LinkRow> {
     let pos: Vec<Endpoint> = sc.nodes.iter().map(|n| sc.node_end(n)).collect();
     let pairs = crate::model::node::peer_pairs(&sc.nodes);
-    pairs
+    let bar = crate::progress::bar("links", pairs.len() as u64, "links");
+    let rows = pairs
         .par_iter()
         .enumerate()
         .map(|(k, &(f, t))| {
@@ -134,9 +135,13 @@ pub fn links(sc: &Scenario, mc: Option<(usize, u64)>) -> Vec<LinkRow> {
             // The receiving end's noise on its channel.
             let noise_dbm = sc.noise_dbm_of(b);
             let cov = CoverageModel::new(sc.fading, sc.thresholds.sinr_db, noise_dbm);
-            one(sc, &pos, f, t, a, b, &cov, noise_dbm, link_mc)
+            let row = one(sc, &pos, f, t, a, b, &cov, noise_dbm, link_mc);
+            bar.inc(1);
+            row
         })
-        .collect()
+        .collect();
+    bar.finish_and_clear();
+    rows
 }
 
 #[allow(clippy::too_many_arguments)]

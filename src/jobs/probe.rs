@@ -176,7 +176,9 @@ pub fn probe_with(sc: &Scenario, lat: f64, lon: f64, mc: Option<(usize, u64)>) -
         contributions.iter().filter(|c| c.index != server).map(|c| (c.activity, coupled(c))).collect();
     let coverage = cov.probability(signal_mw, &interferers);
     let monte_carlo = mc.map(|(trials, seed)| {
-        let (estimate, low, high) = cov.monte_carlo(signal_mw, &interferers, trials, seed);
+        let bar = crate::progress::bar("Monte Carlo", trials as u64, "trials");
+        let (estimate, low, high) = cov.monte_carlo_ticking(signal_mw, &interferers, trials, seed, &bar);
+        bar.finish_and_clear();
         McCheck { trials, seed, estimate, low, high }
     });
     let wanted = Path { tx: &sc.nodes[server], rx_lat: lat, geometry: &budgets[server].geometry };

@@ -26,6 +26,7 @@ fn mix(mut z: u64) -> u64 {
 /// number of interferer draws made.
 pub fn simulate(field: &Field, realizations: usize, seed: u64) -> (Vec<f64>, u64) {
     let chunks = realizations.div_ceil(CHUNK);
+    let bar = crate::progress::bar("Monte Carlo", realizations as u64, "realisations");
     let per: Vec<(Vec<f64>, u64)> = (0..chunks)
         .into_par_iter()
         .map(|c| {
@@ -44,9 +45,11 @@ pub fn simulate(field: &Field, realizations: usize, seed: u64) -> (Vec<f64>, u64
                     x
                 })
                 .collect();
+            bar.inc(n as u64);
             (v, draws)
         })
         .collect();
+    bar.finish_and_clear();
     let draws = per.iter().map(|p| p.1).sum();
     (per.into_iter().flat_map(|p| p.0).collect(), draws)
 }

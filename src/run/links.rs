@@ -56,7 +56,7 @@ pub fn run_links(sc: &Scenario, opts: &LinksOptions) -> Result<LinksResult, Erro
             ..LayerSet::NONE
         };
         check_memory(sc, layers.count(), opts.max_memory_mib)?;
-        let l = Engine::new(sc).run(&Options { layers, cutoff_m: None, progress: false });
+        let l = Engine::new(sc).run(&Options { layers, cutoff_m: None, progress: crate::progress::shown() });
         let (markers, links) = markers_and_links(sc);
         let facts = crate::io::heatmap::sheet_facts(sc);
         let grid = &sc.grid;

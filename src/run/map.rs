@@ -94,6 +94,9 @@ pub struct MapResult {
     pub layers: Layers,
     /// Paths written.
     pub files: Vec<PathBuf>,
+    /// Seconds spent writing (statistics, zones, every file and the commit), beside the
+    /// summary's `elapsed_s` of computation.
+    pub write_s: f64,
 }
 
 /// Estimated peak memory of a map of `layers` layers, bytes: the grid's estimate
@@ -195,21 +198,24 @@ pub fn run_map(sc: &Scenario, opts: &MapOptions) -> Result<MapResult, Error> {
     };
     let summary = write_map(&mut st, &used, &layers, &stats, &run)?;
     let written = st.commit()?;
-    Ok(MapResult { summary, layers, files: written })
+    Ok(MapResult { summary, layers, files: written, write_s: t0.elapsed().as_secs_f64() - elapsed_s })
 }
 
 /// Computes the layers of rows `rows` of the grid (one layout, or the ensemble of a
 /// `[draw]` table); returns them with the scenario they were computed on (the first drawn
 /// layout with a `[draw]` table).
 pub(crate) fn compute(sc: &Scenario, opts: &MapOptions, rows: std::ops::Range<usize>) -> (Layers, Scenario) {
-    let eopts = Options { layers: opts.layers, cutoff_m: opts.cutoff_m, progress: opts.progress };
+    // A drawn ensemble counts its realisations instead of each engine run's rows.
+    let n = opts.realizations.max(1);
+    let per_run = opts.progress && (sc.draw.is_none() || n == 1);
+    let eopts = Options { layers: opts.layers, cutoff_m: opts.cutoff_m, progress: per_run };
     let run = |e: &Engine<'_>| match opts.far_field_db {
         Some(tol) => e.run_far_field(opts.layers, rows.clone(), tol),
         None => e.run_rows(&eopts, rows.clone()),
     };
     match &sc.draw {
         None => (run(&Engine::new(sc)), sc.clone()),
-        Some(spec) => ensemble(sc, spec, &run, opts.realizations.max(1)),
+        Some(spec) => ensemble(sc, spec, &run, n, opts.progress),
     }
 }
 
@@ -312,6 +318,13 @@ pub(crate) fn write_map(
     let facts = crate::io::heatmap::sheet_facts(sc);
     let cx = Context { grid, markers: &markers, links: &links, footprints, facts: &facts, context: &sc.context.lines };
     let mut files: Vec<String> = Vec::new();
+    let present = [&layers.total, &layers.interference, &layers.coverage, &layers.sinr, &layers.server]
+        .into_iter()
+        .chain([&layers.visible, &layers.channel, &layers.availability])
+        .filter(|l| l.is_some())
+        .count();
+    // One step a layer, and one for the zones, the field file and the summary.
+    let bar = crate::progress::bar("writing", present as u64 + 1, "steps");
     // Every layer written, in order, for the field file.
     let mut outs: Vec<LayerOut> = Vec::new();
     let hot = layers.interference.as_deref().map(|i| hotspots(sc, i));
@@ -331,15 +344,15 @@ pub(crate) fn write_map(
         range: crate::io::heatmap::layer_range(&sc.colour_scale, name, unit, data),
     };
     if let Some(t) = &layers.total {
-        put(st, &cx, &mut files, &mut outs, layer("total", "Total received", "dBm", t, Vec::new()))?;
+        put(st, &cx, &bar, &mut files, &mut outs, layer("total", "Total received", "dBm", t, Vec::new()))?;
     }
     if let (Some(i), Some(h)) = (&layers.interference, &hot) {
         let outlines = h.iter().flat_map(|h| h.region.rings_lon_lat()).collect();
-        put(st, &cx, &mut files, &mut outs, layer("interference", "Interference", "dBm", i, outlines))?;
+        put(st, &cx, &bar, &mut files, &mut outs, layer("interference", "Interference", "dBm", i, outlines))?;
     }
     if let (Some(cv), Some(z)) = (&layers.coverage, &low) {
         let title = format!("Coverage T={} dB", sc.thresholds.sinr_db);
-        put(st, &cx, &mut files, &mut outs, layer("coverage", &title, PROBABILITY, cv, outlines(z)))?;
+        put(st, &cx, &bar, &mut files, &mut outs, layer("coverage", &title, PROBABILITY, cv, outlines(z)))?;
     }
     if hot.is_some() || low.is_some() {
         let (h, z) = (hot.as_deref().unwrap_or_default(), low.as_deref().unwrap_or_default());
@@ -354,22 +367,22 @@ pub(crate) fn write_map(
     let sub_cell_zones = hot.as_ref().map_or(0, |h| h.iter().filter(|h| h.region.is_sub_cell(grid)).count())
         + low.as_ref().map_or(0, |z| z.iter().filter(|r| r.is_sub_cell(grid)).count());
     if let Some(s) = &layers.sinr {
-        put(st, &cx, &mut files, &mut outs, layer("sinr", "Mean SINR", "dB", s, Vec::new()))?;
+        put(st, &cx, &bar, &mut files, &mut outs, layer("sinr", "Mean SINR", "dB", s, Vec::new()))?;
     }
     if let Some(v) = layers.server.as_ref().filter(|_| run.realizations <= 1) {
-        put(st, &cx, &mut files, &mut outs, layer("server", "Best server", "", v, Vec::new()))?;
+        put(st, &cx, &bar, &mut files, &mut outs, layer("server", "Best server", "", v, Vec::new()))?;
     }
     if let Some(v) = &layers.visible {
         let title = "Nodes in line of sight";
-        put(st, &cx, &mut files, &mut outs, layer("visible", title, "nodes", v, Vec::new()))?;
+        put(st, &cx, &bar, &mut files, &mut outs, layer("visible", title, "nodes", v, Vec::new()))?;
     }
     if let Some(v) = layers.channel.as_ref().filter(|_| run.realizations <= 1) {
-        put(st, &cx, &mut files, &mut outs, layer("channel", "Server's channel", "", v, Vec::new()))?;
+        put(st, &cx, &bar, &mut files, &mut outs, layer("channel", "Server's channel", "", v, Vec::new()))?;
     }
     let target_pct = sc.weather().target_pct;
     if let Some(a) = &layers.availability {
         let below = outlines(&short_of_target(grid, a, target_pct));
-        put(st, &cx, &mut files, &mut outs, layer("availability", "Availability", AVAILABILITY, a, below))?;
+        put(st, &cx, &bar, &mut files, &mut outs, layer("availability", "Availability", AVAILABILITY, a, below))?;
     }
     st.write("layout.geojson", layout_geojson(&sc.nodes).to_string().as_bytes())?;
     files.push("layout.geojson".into());
@@ -383,6 +396,7 @@ pub(crate) fn write_map(
     let json = serde_json::to_string_pretty(&summary)
         .map_err(|e| Error::Output { path: st.dir().join("summary.json"), source: e.into() })?;
     st.write("summary.json", json.as_bytes())?;
+    bar.finish_and_clear();
     Ok(summary)
 }
 
@@ -390,12 +404,14 @@ pub(crate) fn write_map(
 fn put<'a>(
     st: &mut Staging,
     cx: &Context,
+    bar: &indicatif::ProgressBar,
     files: &mut Vec<String>,
     outs: &mut Vec<LayerOut<'a>>,
     l: LayerOut<'a>,
 ) -> Result<(), Error> {
     files.extend(write_layer(st, cx, &l)?);
     outs.push(l);
+    bar.inc(1);
     Ok(())
 }
 
@@ -548,9 +564,16 @@ fn ensemble(
     spec: &crate::model::draw::DrawSpec,
     run: &dyn Fn(&Engine<'_>) -> Layers,
     n: usize,
+    progress: bool,
 ) -> (Layers, Scenario) {
     let first = Scenario { nodes: crate::random::layout::layout(sc, spec, spec.seed), ..sc.clone() };
+    let bar = if progress && n > 1 {
+        crate::progress::styled("drawn layouts", n as u64, "realisations")
+    } else {
+        indicatif::ProgressBar::hidden()
+    };
     let mut acc = run(&Engine::new(&first));
+    bar.inc(1);
     if n == 1 {
         return (acc, first);
     }
@@ -589,7 +612,9 @@ fn ensemble(
             (Some(a), Some(b)) => Some(a.max(b)),
             (a, b) => a.or(b),
         };
+        bar.inc(1);
     }
+    bar.finish_and_clear();
     let nf = n as f32;
     for l in [&mut acc.total, &mut acc.interference].into_iter().flatten() {
         l.iter_mut().for_each(|x| *x = if *x > 0.0 { mw_to_dbm((*x / nf) as f64) as f32 } else { crate::NODATA });

@@ -202,7 +202,7 @@ pub(crate) fn run_tile(sc: &Scenario, opts: &MapOptions, tile: Tile) -> Result<M
     st.write(MANIFEST, json.as_bytes())?;
     let files = st.commit()?;
     let summary = crate::run::map::tile_summary(&used, &layers, &manifest.stats, opts, elapsed_s, &sub);
-    Ok(MapResult { summary, layers, files })
+    Ok(MapResult { summary, layers, files, write_s: t0.elapsed().as_secs_f64() - elapsed_s })
 }
 
 /// Every tile folder in `dirs`: a folder holding a manifest, or a folder whose

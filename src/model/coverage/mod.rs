@@ -333,6 +333,18 @@ impl CoverageModel {
 
     /// Seeded Monte Carlo of P\[SINR ≥ T\]: (estimate, 95 % Wilson interval low, high).
     pub fn monte_carlo(&self, s_mw: f64, interferers: &[(f64, f64)], trials: usize, seed: u64) -> (f64, f64, f64) {
+        self.monte_carlo_ticking(s_mw, interferers, trials, seed, &indicatif::ProgressBar::hidden())
+    }
+
+    /// [`Self::monte_carlo`], advancing `bar` by each chunk's trials.
+    pub(crate) fn monte_carlo_ticking(
+        &self,
+        s_mw: f64,
+        interferers: &[(f64, f64)],
+        trials: usize,
+        seed: u64,
+        bar: &indicatif::ProgressBar,
+    ) -> (f64, f64, f64) {
         const CHUNK: usize = 4096;
         let chunks = trials.div_ceil(CHUNK);
         let sigma_ln = self.s_ln;
@@ -364,6 +376,7 @@ impl CoverageModel {
                         hits += 1;
                     }
                 }
+                bar.inc(n as u64);
                 hits
             })
             .sum();
