@@ -246,7 +246,9 @@ fn ogrinfo_opens_the_kmz() {
 }
 
 /// The print sheet is one A3 landscape page (ISO 216: 420 × 297 mm = 1190.55 × 841.89 pt)
-/// holding the annotated map, as poppler's pdfinfo and pdfimages read it.
+/// holding the annotated map drawn for print: the screen sheet's picture at 200 pixels per
+/// inch or more on the page (common practice for printed maps: 150 to 300), as poppler's
+/// pdfinfo and pdfimages read it.
 #[test]
 fn pdf_sheet_is_one_a3_page() {
     if !have("pdfinfo") {
@@ -265,7 +267,17 @@ fn pdf_sheet_is_one_a3_page() {
     let list = String::from_utf8_lossy(&o.stdout);
     let row = list.lines().nth(2).unwrap_or_else(|| panic!("no image in the PDF: {list}"));
     let f: Vec<&str> = row.split_whitespace().collect();
-    assert_eq!((f[3].parse::<u32>().unwrap(), f[4].parse::<u32>().unwrap()), (img.width(), img.height()));
+    let num = |k: usize| f[k].parse::<f64>().unwrap_or_else(|_| panic!("column {k} of {row}"));
+    // The same drawing, larger: width and height grow by one factor (each rounded to whole
+    // pixels, hence the 2-pixel allowance), and the resolution poppler reports reaches 200.
+    let k = num(3) / f64::from(img.width());
+    assert!(
+        k >= 1.0 && (num(4) - k * f64::from(img.height())).abs() <= 2.0,
+        "{row} against {}x{}",
+        img.width(),
+        img.height()
+    );
+    assert!(num(12) >= 200.0 && num(13) >= 200.0, "print resolution below 200 ppi: {row}");
 }
 
 /// Fixed colour scales: two runs of different layouts colour a value alike; the scenario
@@ -361,6 +373,72 @@ fn quiet_silences_stderr_in_every_command() {
         if prints {
             assert!(!r.stdout.is_empty(), "{a:?}: --quiet also silenced the data on stdout");
         }
+    }
+}
+
+/// What a person sees on the terminal when running `lobemap args`: the command run under a
+/// pseudo-terminal by util-linux's `script`, its screen (stdout and stderr) with the escape
+/// sequences removed.
+fn on_terminal(args: &[String]) -> String {
+    let bin = std::env::var("LOBEMAP_TEST_BIN").unwrap_or_else(|_| env!("CARGO_BIN_EXE_lobemap").to_string());
+    let line: Vec<String> =
+        std::iter::once(&bin).chain(args).map(|a| format!("'{}'", a.replace('\'', "'\\''"))).collect();
+    let o = Command::new("script")
+        .args(["-qec", &line.join(" "), "/dev/null"])
+        .current_dir(env!("CARGO_MANIFEST_DIR"))
+        .output()
+        .unwrap();
+    assert!(o.status.success(), "{line:?}: {}", String::from_utf8_lossy(&o.stdout));
+    let screen = String::from_utf8_lossy(&o.stdout).replace('\r', "\n");
+    let mut plain = String::new();
+    let mut chars = screen.chars();
+    while let Some(c) = chars.next() {
+        if c == '\u{1b}' {
+            // CSI: ESC [ parameters, then one final letter.
+            for d in chars.by_ref() {
+                if d.is_ascii_alphabetic() {
+                    break;
+                }
+            }
+        } else {
+            plain.push(c);
+        }
+    }
+    plain
+}
+
+/// On a terminal every step that can take more than a second draws a progress bar on stderr
+/// (common practice for command-line tools), each named for its step; `--quiet` draws none.
+/// The steps here are sized to be short in CI; a bar is drawn from its first step.
+#[test]
+fn long_steps_draw_progress_bars_on_a_terminal() {
+    if !have("script") {
+        return skip("script (util-linux)");
+    }
+    let d = tempfile::tempdir().unwrap();
+    let o = |name: &str| d.path().join(name).to_str().unwrap().to_string();
+    let drawn = d.path().join("drawn.toml");
+    let draw = "\n[draw]\ndensity_per_km2 = 60\nkeep = 0.8\nhard_core_m = 10\nseed = 3\n";
+    std::fs::write(&drawn, format!("{}{draw}", crate::util::demo_scenario())).unwrap();
+    let demo = "sites/harbourlight/scenario.toml".to_string();
+    let s = |v: &[&str]| v.iter().map(|x| x.to_string()).collect::<Vec<String>>();
+    let cases: Vec<(Vec<String>, &str)> = vec![
+        (s(&["aggregate", "--density-per-km2", "300", "--realizations", "300000"]), "Monte Carlo ["),
+        (s(&["probe", &demo, "--at", "45.5002,-4.8100", "--monte-carlo", "200000"]), "Monte Carlo ["),
+        (s(&["links", &demo, "--no-maps", "--monte-carlo", "5000", "--out", &o("l")]), "links ["),
+        (s(&["assign", &demo, "--out", &o("plan.geojson")]), "plan search ["),
+        (
+            s(&["map", drawn.to_str().unwrap(), "--layers", "total", "--realizations", "3", "--out", &o("e")]),
+            "drawn layouts [",
+        ),
+        (s(&["map", &demo, "--layers", "total", "--out", &o("m")]), "writing ["),
+    ];
+    for (mut args, label) in cases {
+        let seen = on_terminal(&args);
+        assert!(seen.contains(label), "{args:?}: no '{label}' bar on the terminal:\n{seen}");
+        args.push("--quiet".into());
+        let seen = on_terminal(&args);
+        assert!(!seen.contains(label), "{args:?}: a bar under --quiet:\n{seen}");
     }
 }
 

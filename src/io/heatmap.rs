@@ -194,10 +194,22 @@ pub fn rgb_png(w: u32, h: u32, rgb: &[u8]) -> Result<Vec<u8>, String> {
     Ok(png)
 }
 
-/// The annotated picture as width, height and 8-bit RGB rows (for [`render`] and the PDF
-/// sheet).
+/// The annotated picture as width, height and 8-bit RGB rows, at screen resolution (for
+/// [`render`]); [`render_rgb_at`] draws it larger for print.
 pub fn render_rgb(spec: &MapSpec) -> Result<(u32, u32, Vec<u8>), String> {
+    render_rgb_at(spec, 1.0)
+}
+
+/// The annotated picture with every length (map pixels, lines, text, margins) multiplied by
+/// `k` ≥ 1: the same sheet at `k` times the resolution, for the print PDF. `k` = 1 is
+/// [`render_rgb`].
+pub fn render_rgb_at(spec: &MapSpec, k: f64) -> Result<(u32, u32, Vec<u8>), String> {
     register_font();
+    let k = k.max(1.0);
+    // Lengths of the screen sheet, in pixels, scaled to this one.
+    let s = |v: i32| -> i32 { (v as f64 * k).round() as i32 };
+    let su = |v: u32| -> u32 { ((v as f64 * k).round() as u32).max(1) };
+    let pt = |v: f64| -> f64 { v * k };
     let g = spec.grid;
     let side = g.cols().max(g.rows()) as f64;
     let scale = if side < 900.0 {
@@ -206,23 +218,36 @@ pub fn render_rgb(spec: &MapSpec) -> Result<(u32, u32, Vec<u8>), String> {
         2400.0 / side
     } else {
         1.0
-    };
+    } * k;
     let mw = ((g.cols() as f64 * scale).round() as u32).max(1);
     let mh = ((g.rows() as f64 * scale).round() as u32).max(1);
-    let (w, h) = (mw + PANEL_W, mh.max(700));
+    let (w, h) = (mw + su(PANEL_W), mh.max(su(700)));
     let cmap = tideline();
     let avail = spec.unit == AVAILABILITY;
     let (lo, hi) = spec.range;
     let colour = Colouring { lo, hi, avail };
-    let mut buf = vec![255u8; (w * h * 3) as usize];
-    for y in 0..mh {
-        let r = ((y as f64 + 0.5) / mh as f64 * g.rows() as f64) as usize;
-        for x in 0..mw {
-            let c = ((x as f64 + 0.5) / mw as f64 * g.cols() as f64) as usize;
-            let v = spec.data[r.min(g.rows() - 1) * g.cols() + c.min(g.cols() - 1)];
-            let rgb = colour.rgb(&cmap, v).unwrap_or([205, 205, 205]);
-            let o = ((y * w + x) * 3) as usize;
-            buf[o..o + 3].copy_from_slice(&rgb);
+    let mut buf = vec![255u8; (w as usize) * (h as usize) * 3];
+    // Each picture pixel shows the cell under its centre: a picture row repeats the one above
+    // when both fall in one grid row, and a pixel repeats its left neighbour in one cell.
+    let col_of: Vec<usize> =
+        (0..mw).map(|x| (((x as f64 + 0.5) / mw as f64 * g.cols() as f64) as usize).min(g.cols() - 1)).collect();
+    let stride = (w as usize) * 3;
+    let mut prev_r = usize::MAX;
+    for y in 0..mh as usize {
+        let r = (((y as f64 + 0.5) / mh as f64 * g.rows() as f64) as usize).min(g.rows() - 1);
+        let (done, rest) = buf.split_at_mut(y * stride);
+        let line = &mut rest[..mw as usize * 3];
+        if r == prev_r {
+            line.copy_from_slice(&done[(y - 1) * stride..(y - 1) * stride + mw as usize * 3]);
+            continue;
+        }
+        prev_r = r;
+        let mut last = (usize::MAX, [0u8; 3]);
+        for (px, &c) in line.chunks_exact_mut(3).zip(&col_of) {
+            if c != last.0 {
+                last = (c, colour.rgb(&cmap, spec.data[r * g.cols() + c]).unwrap_or([205, 205, 205]));
+            }
+            px.copy_from_slice(&last.1);
         }
     }
     let b = g.bbox();
@@ -239,83 +264,83 @@ pub fn render_rgb(spec: &MapSpec) -> Result<(u32, u32, Vec<u8>), String> {
         // The user's context lines (coast, streets, ...) beneath everything, then footprints.
         for line in spec.context {
             let pts: Vec<(i32, i32)> = line.iter().map(|&(lon, lat)| to_px(lon, lat)).collect();
-            root.draw(&PathElement::new(pts, RGBColor(235, 238, 245).stroke_width(1))).map_err(e)?;
+            root.draw(&PathElement::new(pts, RGBColor(235, 238, 245).stroke_width(su(1)))).map_err(e)?;
         }
         // Building footprints.
         for ring in spec.footprints {
             let pts: Vec<(i32, i32)> = ring.iter().map(|&(lon, lat)| to_px(lon, lat)).collect();
-            root.draw(&PathElement::new(pts, RGBColor(70, 70, 70).stroke_width(1))).map_err(e)?;
+            root.draw(&PathElement::new(pts, RGBColor(70, 70, 70).stroke_width(su(1)))).map_err(e)?;
         }
         // Planned links.
         for &(a, bb) in spec.links {
             let (p, q) = (&spec.markers[a], &spec.markers[bb]);
             root.draw(&PathElement::new(
                 vec![to_px(p.lon, p.lat), to_px(q.lon, q.lat)],
-                RGBColor(250, 250, 250).stroke_width(3),
+                RGBColor(250, 250, 250).stroke_width(su(3)),
             ))
             .map_err(e)?;
-            root.draw(&PathElement::new(vec![to_px(p.lon, p.lat), to_px(q.lon, q.lat)], ink.stroke_width(1)))
+            root.draw(&PathElement::new(vec![to_px(p.lon, p.lat), to_px(q.lon, q.lat)], ink.stroke_width(su(1))))
                 .map_err(e)?;
         }
         // Outlined regions (hot spots): a light halo under a dark crimson line.
         for ring in spec.outlines {
             let pts: Vec<(i32, i32)> = ring.iter().map(|&(lon, lat)| to_px(lon, lat)).collect();
-            root.draw(&PathElement::new(pts.clone(), RGBColor(255, 255, 255).stroke_width(4))).map_err(e)?;
-            root.draw(&PathElement::new(pts, RGBColor(150, 20, 60).stroke_width(2))).map_err(e)?;
+            root.draw(&PathElement::new(pts.clone(), RGBColor(255, 255, 255).stroke_width(su(4)))).map_err(e)?;
+            root.draw(&PathElement::new(pts, RGBColor(150, 20, 60).stroke_width(su(2)))).map_err(e)?;
         }
         // Beam wedges and markers.
-        let rad = ((mw.min(mh) as f64) * 0.06).clamp(14.0, 48.0);
+        let rad = ((mw.min(mh) as f64) * 0.06).clamp(14.0 * k, 48.0 * k);
         for m in spec.markers {
             let (x, y) = to_px(m.lon, m.lat);
             if m.beamwidth_deg >= 360.0 {
-                root.draw(&Circle::new((x, y), rad as i32 / 2, ink.stroke_width(1))).map_err(e)?;
+                root.draw(&Circle::new((x, y), rad as i32 / 2, ink.stroke_width(su(1)))).map_err(e)?;
             } else {
                 let mut pts = vec![(x, y)];
                 let steps = 12;
-                for k in 0..=steps {
-                    let a = (m.azimuth_deg - m.beamwidth_deg / 2.0 + m.beamwidth_deg * k as f64 / steps as f64)
+                for j in 0..=steps {
+                    let a = (m.azimuth_deg - m.beamwidth_deg / 2.0 + m.beamwidth_deg * j as f64 / steps as f64)
                         .to_radians();
                     pts.push((x + (rad * a.sin()) as i32, y - (rad * a.cos()) as i32));
                 }
                 root.draw(&Polygon::new(pts.clone(), RGBAColor(255, 255, 255, 0.35).filled())).map_err(e)?;
                 pts.push((x, y));
-                root.draw(&PathElement::new(pts, ink.stroke_width(1))).map_err(e)?;
+                root.draw(&PathElement::new(pts, ink.stroke_width(su(1)))).map_err(e)?;
             }
-            root.draw(&Circle::new((x, y), 4, RGBColor(255, 255, 255).filled())).map_err(e)?;
-            root.draw(&Circle::new((x, y), 4, ink.stroke_width(1))).map_err(e)?;
+            root.draw(&Circle::new((x, y), s(4), RGBColor(255, 255, 255).filled())).map_err(e)?;
+            root.draw(&Circle::new((x, y), s(4), ink.stroke_width(su(1)))).map_err(e)?;
         }
         // Graticule: thin lines every `step` degrees, labelled on the top (longitude) and the
         // right (latitude) edges of the map.
         let (lon_step, lat_step) = (graticule_step(b.east - b.west), graticule_step(b.north - b.south));
         let faint = RGBAColor(255, 255, 255, 0.45);
-        let small = (FONT, 12).into_font().color(&ink);
+        let small = (FONT, pt(12.0)).into_font().color(&ink);
         let (step, decimals) = (lon_step, (-lon_step.log10()).ceil().max(0.0) as usize);
         let mut lon = (b.west / step).ceil() * step;
         while lon < b.east {
             let (x, _) = to_px(lon, b.north);
-            root.draw(&PathElement::new(vec![(x, 0), (x, mh as i32)], faint.stroke_width(1))).map_err(e)?;
+            root.draw(&PathElement::new(vec![(x, 0), (x, mh as i32)], faint.stroke_width(su(1)))).map_err(e)?;
             let t = format!("{:.*}°{}", decimals, lon.abs(), if lon < 0.0 { "W" } else { "E" });
             root.draw(&Rectangle::new(
-                [(x + 2, 2), (x + 8 + 7 * t.len() as i32, 17)],
+                [(x + s(2), s(2)), (x + s(8 + 7 * t.len() as i32), s(17))],
                 RGBAColor(255, 255, 255, 0.7).filled(),
             ))
             .map_err(e)?;
-            root.draw(&Text::new(t, (x + 4, 3), small.clone())).map_err(e)?;
+            root.draw(&Text::new(t, (x + s(4), s(3)), small.clone())).map_err(e)?;
             lon = ((lon / step).round() + 1.0) * step;
         }
         let (step, decimals) = (lat_step, (-lat_step.log10()).ceil().max(0.0) as usize);
         let mut lat = (b.south / step).ceil() * step;
         while lat < b.north {
             let (_, y) = to_px(b.west, lat);
-            root.draw(&PathElement::new(vec![(0, y), (mw as i32, y)], faint.stroke_width(1))).map_err(e)?;
+            root.draw(&PathElement::new(vec![(0, y), (mw as i32, y)], faint.stroke_width(su(1)))).map_err(e)?;
             let t = format!("{:.*}°{}", decimals, lat.abs(), if lat < 0.0 { "S" } else { "N" });
-            let x0 = mw as i32 - 8 - 7 * t.len() as i32;
+            let x0 = mw as i32 - s(8 + 7 * t.len() as i32);
             root.draw(&Rectangle::new(
-                [(x0 - 2, y - 16), (mw as i32 - 2, y - 1)],
+                [(x0 - s(2), y - s(16)), (mw as i32 - s(2), y - s(1))],
                 RGBAColor(255, 255, 255, 0.7).filled(),
             ))
             .map_err(e)?;
-            root.draw(&Text::new(t, (x0, y - 15), small.clone())).map_err(e)?;
+            root.draw(&Text::new(t, (x0, y - s(15)), small.clone())).map_err(e)?;
             lat = ((lat / step).round() + 1.0) * step;
         }
         // Node labels: the first of eight places around the marker that stays on the map and
@@ -326,10 +351,10 @@ pub fn render_rgb(spec: &MapSpec) -> Result<(u32, u32, Vec<u8>), String> {
             .iter()
             .map(|m| {
                 let (x, y) = to_px(m.lon, m.lat);
-                (x - 5, y - 5, x + 5, y + 5)
+                (x - s(5), y - s(5), x + s(5), y + s(5))
             })
             .collect();
-        let label_font = (FONT, 13).into_font().style(FontStyle::Bold).color(&ink);
+        let label_font = (FONT, pt(13.0)).into_font().style(FontStyle::Bold).color(&ink);
         for m in spec.markers {
             let (x, y) = to_px(m.lon, m.lat);
             let (tw, th) = (8 * m.id.chars().count() as i32 + 4, 16);
@@ -343,60 +368,69 @@ pub fn render_rgb(spec: &MapSpec) -> Result<(u32, u32, Vec<u8>), String> {
                 (9, -th / 2),
                 (-tw - 9, -th / 2),
             ];
-            let free = places.iter().map(|&(dx, dy)| (x + dx, y + dy, x + dx + tw, y + dy + th)).find(|r| {
-                r.0 >= 0
-                    && r.1 >= 0
-                    && r.2 <= mw as i32
-                    && r.3 <= mh as i32
-                    && taken.iter().all(|t| r.2 <= t.0 || t.2 <= r.0 || r.3 <= t.1 || t.3 <= r.1)
-            });
+            let (tw, th) = (s(tw), s(th));
+            let free =
+                places.iter().map(|&(dx, dy)| (x + s(dx), y + s(dy), x + s(dx) + tw, y + s(dy) + th)).find(|r| {
+                    r.0 >= 0
+                        && r.1 >= 0
+                        && r.2 <= mw as i32
+                        && r.3 <= mh as i32
+                        && taken.iter().all(|t| r.2 <= t.0 || t.2 <= r.0 || r.3 <= t.1 || t.3 <= r.1)
+                });
             if let Some(r) = free {
                 root.draw(&Rectangle::new([(r.0, r.1), (r.2, r.3)], RGBAColor(255, 255, 255, 0.8).filled()))
                     .map_err(e)?;
-                root.draw(&Text::new(m.id.clone(), (r.0 + 2, r.1 + 1), label_font.clone())).map_err(e)?;
+                root.draw(&Text::new(m.id.clone(), (r.0 + s(2), r.1 + s(1)), label_font.clone())).map_err(e)?;
                 taken.push(r);
             }
         }
         // North arrow (top-left): the grid is north-up.
-        let (ax, ay) = (26, 18);
-        root.draw(&Rectangle::new([(ax - 16, ay - 8), (ax + 16, ay + 52)], RGBAColor(255, 255, 255, 0.8).filled()))
-            .map_err(e)?;
-        root.draw(&Polygon::new(vec![(ax, ay), (ax - 9, ay + 26), (ax, ay + 20), (ax + 9, ay + 26)], ink.filled()))
-            .map_err(e)?;
-        root.draw(&Text::new("N", (ax - 5, ay + 28), (FONT, 16).into_font().color(&ink))).map_err(e)?;
+        let (ax, ay) = (s(26), s(18));
+        root.draw(&Rectangle::new(
+            [(ax - s(16), ay - s(8)), (ax + s(16), ay + s(52))],
+            RGBAColor(255, 255, 255, 0.8).filled(),
+        ))
+        .map_err(e)?;
+        root.draw(&Polygon::new(
+            vec![(ax, ay), (ax - s(9), ay + s(26)), (ax, ay + s(20)), (ax + s(9), ay + s(26))],
+            ink.filled(),
+        ))
+        .map_err(e)?;
+        root.draw(&Text::new("N", (ax - s(5), ay + s(28)), (FONT, pt(16.0)).into_font().color(&ink))).map_err(e)?;
         // Scale bar (bottom-left).
         let width_m = g.cols() as f64 * g.cell_m();
         let len_m = nice_length_m(width_m);
         let len_px = (len_m / width_m * mw as f64).round() as i32;
-        let (sx, sy) = (14, mh as i32 - 22);
+        let (sx, sy) = (s(14), mh as i32 - s(22));
         root.draw(&Rectangle::new(
-            [(sx - 6, sy - 22), (sx + len_px + 8, sy + 12)],
+            [(sx - s(6), sy - s(22)), (sx + len_px + s(8), sy + s(12))],
             RGBAColor(255, 255, 255, 0.8).filled(),
         ))
         .map_err(e)?;
-        root.draw(&Rectangle::new([(sx, sy), (sx + len_px, sy + 6)], ink.filled())).map_err(e)?;
-        root.draw(&Rectangle::new([(sx + len_px / 2, sy), (sx + len_px, sy + 6)], RGBColor(255, 255, 255).filled()))
+        root.draw(&Rectangle::new([(sx, sy), (sx + len_px, sy + s(6))], ink.filled())).map_err(e)?;
+        root.draw(&Rectangle::new([(sx + len_px / 2, sy), (sx + len_px, sy + s(6))], RGBColor(255, 255, 255).filled()))
             .map_err(e)?;
-        root.draw(&Rectangle::new([(sx, sy), (sx + len_px, sy + 6)], ink.stroke_width(1))).map_err(e)?;
+        root.draw(&Rectangle::new([(sx, sy), (sx + len_px, sy + s(6))], ink.stroke_width(su(1)))).map_err(e)?;
         let label = if len_m >= 1000.0 { format!("{} km", len_m / 1000.0) } else { format!("{len_m} m") };
-        root.draw(&Text::new(label, (sx, sy - 19), (FONT, 14).into_font().color(&ink))).map_err(e)?;
+        root.draw(&Text::new(label, (sx, sy - s(19)), (FONT, pt(14.0)).into_font().color(&ink))).map_err(e)?;
         // Colour bar (right panel).
-        let px0 = mw as i32 + 24;
+        let px0 = mw as i32 + s(24);
         root.draw(&Text::new(
             spec.title.to_string(),
-            (px0, 12),
-            (FONT, 17).into_font().style(FontStyle::Bold).color(&ink),
+            (px0, s(12)),
+            (FONT, pt(17.0)).into_font().style(FontStyle::Bold).color(&ink),
         ))
         .map_err(e)?;
-        root.draw(&Text::new(format!("[{}]", spec.unit), (px0, 34), (FONT, 14).into_font().color(&ink))).map_err(e)?;
-        let (top, bot) = (64, (h as i32 * 45 / 100).max(260));
-        let bar_w = 22;
+        root.draw(&Text::new(format!("[{}]", spec.unit), (px0, s(34)), (FONT, pt(14.0)).into_font().color(&ink)))
+            .map_err(e)?;
+        let (top, bot) = (s(64), (h as i32 * 45 / 100).max(s(260)));
+        let bar_w = s(22);
         for y in top..=bot {
             let t = (bot - y) as f64 / (bot - top) as f64;
             let c = cmap[(t * 255.0).round() as usize];
             root.draw(&PathElement::new(vec![(px0, y), (px0 + bar_w, y)], RGBColor(c[0], c[1], c[2]))).map_err(e)?;
         }
-        root.draw(&Rectangle::new([(px0, top), (px0 + bar_w, bot)], ink.stroke_width(1))).map_err(e)?;
+        root.draw(&Rectangle::new([(px0, top), (px0 + bar_w, bot)], ink.stroke_width(su(1)))).map_err(e)?;
         let span = hi - lo;
         let step = if avail {
             1.0
@@ -410,7 +444,7 @@ pub fn render_rgb(spec: &MapSpec) -> Result<(u32, u32, Vec<u8>), String> {
         let mut v = (lo / step).ceil() * step;
         while v <= hi + 1e-3 {
             let y = bot - ((v - lo) / span * (bot - top) as f32).round() as i32;
-            root.draw(&PathElement::new(vec![(px0 + bar_w, y), (px0 + bar_w + 6, y)], ink.stroke_width(1)))
+            root.draw(&PathElement::new(vec![(px0 + bar_w, y), (px0 + bar_w + s(6), y)], ink.stroke_width(su(1))))
                 .map_err(e)?;
             let label = if avail {
                 // 2 → 99, 3 → 99.9, …: the percentage with v − 2 nines after the point.
@@ -425,45 +459,51 @@ pub fn render_rgb(spec: &MapSpec) -> Result<(u32, u32, Vec<u8>), String> {
             } else {
                 format!("{v:.0}")
             };
-            root.draw(&Text::new(label, (px0 + bar_w + 10, y - 7), (FONT, 13).into_font().color(&ink))).map_err(e)?;
+            root.draw(&Text::new(label, (px0 + bar_w + s(10), y - s(7)), (FONT, pt(13.0)).into_font().color(&ink)))
+                .map_err(e)?;
             v += step;
         }
-        root.draw(&Text::new("grey: no data", (px0, bot + 12), (FONT, 12).into_font().color(&ink))).map_err(e)?;
+        root.draw(&Text::new("grey: no data", (px0, bot + s(12)), (FONT, pt(12.0)).into_font().color(&ink)))
+            .map_err(e)?;
         // Symbol legend.
-        let mut ly = bot + 44;
-        root.draw(&Text::new("Symbols", (px0, ly), (FONT, 14).into_font().style(FontStyle::Bold).color(&ink)))
+        let mut ly = bot + s(44);
+        root.draw(&Text::new("Symbols", (px0, ly), (FONT, pt(14.0)).into_font().style(FontStyle::Bold).color(&ink)))
             .map_err(e)?;
-        ly += 24;
-        let text = (FONT, 12).into_font().color(&ink);
-        root.draw(&Circle::new((px0 + 10, ly + 7), 4, RGBColor(255, 255, 255).filled())).map_err(e)?;
-        root.draw(&Circle::new((px0 + 10, ly + 7), 4, ink.stroke_width(1))).map_err(e)?;
-        root.draw(&Text::new("node (id beside it)", (px0 + 30, ly), text.clone())).map_err(e)?;
-        ly += 22;
-        let wedge = vec![(px0 + 4, ly + 14), (px0 + 12, ly), (px0 + 20, ly + 2), (px0 + 4, ly + 14)];
-        root.draw(&PathElement::new(wedge, ink.stroke_width(1))).map_err(e)?;
-        root.draw(&Text::new("main beam (boresight, HPBW)", (px0 + 30, ly), text.clone())).map_err(e)?;
-        ly += 22;
-        root.draw(&PathElement::new(vec![(px0, ly + 7), (px0 + 22, ly + 7)], ink.stroke_width(1))).map_err(e)?;
-        root.draw(&Text::new("planned link", (px0 + 30, ly), text.clone())).map_err(e)?;
-        ly += 22;
-        root.draw(&PathElement::new(vec![(px0, ly + 7), (px0 + 22, ly + 7)], RGBColor(150, 20, 60).stroke_width(2)))
+        ly += s(24);
+        let text = (FONT, pt(12.0)).into_font().color(&ink);
+        root.draw(&Circle::new((px0 + s(10), ly + s(7)), s(4), RGBColor(255, 255, 255).filled())).map_err(e)?;
+        root.draw(&Circle::new((px0 + s(10), ly + s(7)), s(4), ink.stroke_width(su(1)))).map_err(e)?;
+        root.draw(&Text::new("node (id beside it)", (px0 + s(30), ly), text.clone())).map_err(e)?;
+        ly += s(22);
+        let wedge =
+            vec![(px0 + s(4), ly + s(14)), (px0 + s(12), ly), (px0 + s(20), ly + s(2)), (px0 + s(4), ly + s(14))];
+        root.draw(&PathElement::new(wedge, ink.stroke_width(su(1)))).map_err(e)?;
+        root.draw(&Text::new("main beam (boresight, HPBW)", (px0 + s(30), ly), text.clone())).map_err(e)?;
+        let legend_line = |ly: i32, colour: RGBColor, width: u32, label: String| -> Result<(), String> {
+            root.draw(&PathElement::new(
+                vec![(px0, ly + s(7)), (px0 + s(22), ly + s(7))],
+                colour.stroke_width(su(width)),
+            ))
             .map_err(e)?;
-        root.draw(&Text::new("hot spot / zone outline", (px0 + 30, ly), text.clone())).map_err(e)?;
-        ly += 22;
-        root.draw(&PathElement::new(vec![(px0, ly + 7), (px0 + 22, ly + 7)], RGBColor(70, 70, 70).stroke_width(1)))
-            .map_err(e)?;
-        root.draw(&Text::new("building footprint", (px0 + 30, ly), text.clone())).map_err(e)?;
-        ly += 22;
-        root.draw(&PathElement::new(vec![(px0, ly + 7), (px0 + 22, ly + 7)], RGBColor(170, 170, 170).stroke_width(1)))
-            .map_err(e)?;
-        root.draw(&Text::new(format!("graticule {lon_step}° / {lat_step}°"), (px0 + 30, ly), text.clone()))
-            .map_err(e)?;
+            root.draw(&Text::new(label, (px0 + s(30), ly), text.clone())).map_err(e)
+        };
+        ly += s(22);
+        legend_line(ly, ink, 1, "planned link".into())?;
+        ly += s(22);
+        legend_line(ly, RGBColor(150, 20, 60), 2, "hot spot / zone outline".into())?;
+        ly += s(22);
+        legend_line(ly, RGBColor(70, 70, 70), 1, "building footprint".into())?;
+        ly += s(22);
+        legend_line(ly, RGBColor(170, 170, 170), 1, format!("graticule {lon_step}° / {lat_step}°"))?;
         // Title block (bottom of the panel), framed.
-        let tb_top = h as i32 - 20 - 18 * spec.facts.len() as i32 - 8;
-        root.draw(&Rectangle::new([(px0 - 8, tb_top - 6), (w as i32 - 8, h as i32 - 10)], ink.stroke_width(1)))
-            .map_err(e)?;
-        for (k, line) in spec.facts.iter().enumerate() {
-            root.draw(&Text::new(line.clone(), (px0 - 2, tb_top + 18 * k as i32), text.clone())).map_err(e)?;
+        let tb_top = h as i32 - s(20 + 18 * spec.facts.len() as i32 + 8);
+        root.draw(&Rectangle::new(
+            [(px0 - s(8), tb_top - s(6)), (w as i32 - s(8), h as i32 - s(10))],
+            ink.stroke_width(su(1)),
+        ))
+        .map_err(e)?;
+        for (j, line) in spec.facts.iter().enumerate() {
+            root.draw(&Text::new(line.clone(), (px0 - s(2), tb_top + s(18 * j as i32)), text.clone())).map_err(e)?;
         }
         root.present().map_err(e)?;
     }

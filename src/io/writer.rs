@@ -4,7 +4,7 @@
 
 use crate::error::Error;
 use crate::geometry::grid::Grid;
-use crate::io::heatmap::{MapSpec, Marker, render_map_only, render_rgb};
+use crate::io::heatmap::{MapSpec, Marker, render_map_only, render_rgb, render_rgb_at};
 use crate::io::staging::Staging;
 
 /// One layer ready to write.
@@ -104,7 +104,7 @@ impl LayerWriter for Sheet {
         if !layer.picture {
             return Ok(Vec::new());
         }
-        let (w, h, rgb) = render_rgb(&MapSpec {
+        let spec = MapSpec {
             grid: cx.grid,
             data: layer.data,
             title: &layer.title,
@@ -116,13 +116,15 @@ impl LayerWriter for Sheet {
             range: layer.range,
             facts: cx.facts,
             context: cx.context,
-        })
-        .map_err(|e| Error::Output { path: st.dir().join(layer.name), source: std::io::Error::other(e) })?;
-        let png = crate::io::heatmap::rgb_png(w, h, &rgb)
-            .map_err(|e| Error::Output { path: st.dir().join(layer.name), source: std::io::Error::other(e) })?;
+        };
+        let failed = |e: String| Error::Output { path: st.dir().join(layer.name), source: std::io::Error::other(e) };
+        let (w, h, rgb) = render_rgb(&spec).map_err(failed)?;
+        let png = crate::io::heatmap::rgb_png(w, h, &rgb).map_err(failed)?;
+        // The print sheet: the same drawing redone at the print resolution.
+        let (pw, ph, print) = render_rgb_at(&spec, crate::io::pdf::print_scale(w, h)).map_err(failed)?;
         let (name, pdf) = (format!("{}-sheet.png", layer.name), format!("{}-sheet.pdf", layer.name));
         st.write(&name, &png)?;
-        st.write(&pdf, &crate::io::pdf::sheet_pdf(w, h, &rgb, &layer.title))?;
+        st.write(&pdf, &crate::io::pdf::sheet_pdf(pw, ph, &print, &layer.title))?;
         Ok(vec![name, pdf])
     }
     fn extensions(&self) -> &'static [&'static str] {
