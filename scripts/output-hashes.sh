@@ -20,7 +20,7 @@ trap 'rm -rf "$work"' EXIT
 "$bin" links sites/harbourlight/scenario.toml --out "$work/links" --json --no-maps --monte-carlo 2000 --quiet > "$work/links.json"
 "$bin" check sites/harbourlight/scenario.toml > "$work/check.txt"
 # A random layout: the demo scenario with a [draw] table, drawn once and mapped as an ensemble.
-sed "s#^nodes = .*#nodes = \"$PWD/sites/harbourlight/nodes.geojson\"#; s#^cell_m = .*#cell_m = 12#; s#^ground = \"#ground = \"$PWD/sites/harbourlight/#; s#^buildings = \"#buildings = \"$PWD/sites/harbourlight/#" \
+sed "s#^nodes = .*#nodes = \"$PWD/sites/harbourlight/nodes.geojson\"#; s#^cell_m = .*#cell_m = 12#; s#^ground = \"#ground = \"$PWD/sites/harbourlight/#; s#^buildings = \"#buildings = \"$PWD/sites/harbourlight/#; s#^layers = \[\"#layers = [\"$PWD/sites/harbourlight/#" \
   sites/harbourlight/scenario.toml > "$work/drawn.toml"
 printf '\n[draw]\ndensity_per_km2 = 150\nkeep = 0.8\nhard_core_m = 10\nazimuth = "nearest"\nseed = 4\n' >> "$work/drawn.toml"
 "$bin" draw "$work/drawn.toml" --out "$work/draw/layout.geojson" --quiet

@@ -448,13 +448,15 @@ fn long_steps_draw_progress_bars_on_a_terminal() {
 #[test]
 fn context_layers_are_drawn_and_checked() {
     let d = tempfile::tempdir().unwrap();
-    let text = crate::util::demo_scenario();
+    // The demo without its own context (its last table), to add one.
+    let demo = crate::util::demo_scenario();
+    let text = demo.split("\n[context]").next().unwrap();
     let line = r#"{"type":"FeatureCollection","features":[{"type":"Feature","properties":{"name":"Quay Road"},"geometry":{"type":"LineString","coordinates":[[-4.8150,45.4990],[-4.7850,45.5030]]}}]}"#;
     std::fs::write(d.path().join("streets.geojson"), line).unwrap();
     let with = d.path().join("with.toml");
     std::fs::write(&with, format!("{text}\n[context]\nlayers = [\"streets.geojson\"]\n")).unwrap();
     let plain = d.path().join("plain.toml");
-    std::fs::write(&plain, &text).unwrap();
+    std::fs::write(&plain, text).unwrap();
     for (p, out) in [(&with, "a"), (&plain, "b")] {
         let o = run(&[
             "map",

@@ -1,5 +1,5 @@
 """Builds the invented Harbourlight Quay demo site (a made-up 60 GHz waterfront mesh on made-up
-land): nodes.geojson, buildings.geojson and ground.tif. Deterministic: run
+land): nodes.geojson, buildings.geojson, context.geojson and ground.tif. Deterministic: run
 `python3 make_site.py` (needs pyproj, for the ground model's UTM grid) to rebuild the committed
 files. No real place, survey or operator is behind any of it."""
 import json, math, struct, zlib
@@ -166,6 +166,15 @@ for b in bfeats:
 
 json.dump({"type": "FeatureCollection", "features": feats}, open("nodes.geojson", "w"), indent=1)
 json.dump({"type": "FeatureCollection", "features": bfeats}, open("buildings.geojson", "w"), indent=1)
+
+# ---- context.geojson: lines a crew places the map by (drawn beneath the sheets only) -------
+# The quay edge (40 m seaward of the quay line, where the ground model drops to the water), the
+# quay road behind the apron, and two lanes between the rows of houses on the hillside.
+def line(name, offset):
+    pts = [geo(e, shore_n(e) + offset) for e in range(-1400, 1401, 20)]
+    return {"type": "Feature", "geometry": {"type": "LineString", "coordinates": pts}, "properties": {"name": name}}
+cfeats = [line("Quay edge", -40), line("Quay road", 60), line("Upper lane", 225), line("Top lane", 295)]
+json.dump({"type": "FeatureCollection", "features": cfeats}, open("context.geojson", "w"), indent=1)
 
 # ---- ground.tif: float32, 5 m pixels in UTM zone 30N (EPSG:32630), DEFLATE ----------------
 to_utm = Transformer.from_crs(4326, 32630, always_xy=True)

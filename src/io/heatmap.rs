@@ -495,6 +495,10 @@ pub fn render_rgb_at(spec: &MapSpec, k: f64) -> Result<(u32, u32, Vec<u8>), Stri
         legend_line(ly, RGBColor(70, 70, 70), 1, "building footprint".into())?;
         ly += s(22);
         legend_line(ly, RGBColor(170, 170, 170), 1, format!("graticule {lon_step}° / {lat_step}°"))?;
+        if !spec.context.is_empty() {
+            ly += s(22);
+            legend_line(ly, RGBColor(200, 205, 215), 1, "context lines ([context] layers)".into())?;
+        }
         // Title block (bottom of the panel), framed.
         let tb_top = h as i32 - s(20 + 18 * spec.facts.len() as i32 + 8);
         root.draw(&Rectangle::new(

@@ -22,7 +22,7 @@ pub fn site(toml: &str, nodes: &str) -> (tempfile::TempDir, std::path::PathBuf) 
 pub fn demo_scenario() -> String {
     let root = env!("CARGO_MANIFEST_DIR");
     let text = std::fs::read_to_string(format!("{root}/sites/harbourlight/scenario.toml")).unwrap();
-    ["nodes.geojson", "ground.tif", "buildings.geojson"]
+    ["nodes.geojson", "ground.tif", "buildings.geojson", "context.geojson"]
         .iter()
         .fold(text, |t, f| t.replace(&format!("\"{f}\""), &format!("\"{root}/sites/harbourlight/{f}\"")))
 }
