@@ -570,7 +570,7 @@ fn full_and_read_only_file_systems_leave_the_previous_output() {
     let pf = d.path().join("fine.toml");
     let pf = pf.to_str().unwrap();
     let mnt = d.path().join("mnt");
-    if !mount_tmpfs(&mnt, "1m") {
+    if !mount_tmpfs(&mnt, "2m") {
         return;
     }
     struct Unmount<'a>(&'a Path);
