@@ -23,6 +23,12 @@ use rayon::prelude::*;
 /// Plans up to this many are enumerated whole.
 pub const EXHAUSTIVE_MAX: f64 = 2.0e6;
 
+/// Each link leaves out its weakest interferers whose powers, each at its strongest channel
+/// and with full coupling, add up to at most this share of the noise: the interference it
+/// sees is then at most that much lower than the link table's, so a margin is at most
+/// 10 log10(1 + 1e-4) = 0.0004 dB higher (the table rounds to 0.01 dB).
+pub const PRUNE: f64 = 1e-4;
+
 /// One link's figures under a plan.
 #[derive(Debug, Clone, serde::Serialize)]
 pub struct LinkFigure {
@@ -78,8 +84,16 @@ struct Problem<'a> {
     candidates: usize,
     /// Per link and channel: wanted power, mW (shadow mean included).
     s: Vec<Vec<f64>>,
-    /// Per link, node and channel: activity-weighted power at the link's receiver, mW.
-    p: Vec<Vec<Vec<f64>>>,
+    /// Per link: the interferers kept ([`PRUNE`]), node indices.
+    near: Vec<Vec<usize>>,
+    /// Per link: each kept interferer's activity-weighted power at the link's receiver on
+    /// every channel, mW (`near[l][j]` on channel `c` at `p[l][j * nch + c]`).
+    p: Vec<Vec<f64>>,
+    nch: usize,
+    /// Per group: (link, position in `near[link]`) of each of its nodes' terms.
+    touches: Vec<Vec<(usize, usize)>>,
+    /// Per group: the links it receives on.
+    receives: Vec<Vec<usize>>,
     /// Per channel: noise, mW.
     noise: Vec<f64>,
     /// Per group: its nodes; per node its group.
@@ -91,8 +105,31 @@ struct Problem<'a> {
     coupling: Vec<Vec<f64>>,
     /// Rain: per link and class, the path's P.530 figures.
     rain: Option<Vec<Vec<crate::model::weather::rain::RainPath>>>,
-    thr_db: f64,
+    /// The SINR threshold as a ratio.
+    thr_lin: f64,
 }
+
+/// A plan and what it gives: per link the interference (mW), the margin (dB) and the
+/// outage term of the objective, kept up to date as groups move: the worst margin in a
+/// tournament tree (its root), the failing links counted and the outage summed in whole
+/// micro-units, so a move costs the links it reaches and the sums never drift.
+#[derive(Clone)]
+struct State {
+    cls: Vec<usize>,
+    intf: Vec<f64>,
+    /// Per link, the SINR over the threshold as a ratio (the margin is its dB value; kept
+    /// linear so that a link that closes needs no logarithm).
+    ratio: Vec<f64>,
+    /// Outage term per link, millionths of its unit.
+    short: Vec<i64>,
+    /// Tournament tree of the ratios: leaves from `tree.len() / 2`, +∞ beyond the links.
+    tree: Vec<f64>,
+    failing: usize,
+    outage: i64,
+}
+
+/// Millionths of an outage unit (minutes a year, or dB of shortfall).
+const OUTAGE_UNIT: f64 = 1e6;
 
 /// The objective: larger is better, compared in order.
 #[derive(Debug, Clone, Copy, PartialEq)]
@@ -103,15 +140,21 @@ struct Score {
 }
 
 impl Score {
+    /// Whether `self` beats `o`: a higher worst margin, then fewer failing links, then an
+    /// outage lower by more than half its printed step (0.1 minute a year or 0.1 dB), so the
+    /// search does not chase outage differences the plan's table cannot show. (The worst
+    /// margin is compared strictly: on large layouts a max-min search climbs in many steps
+    /// of a hundredth of a dB, which add up to a dB.)
     fn better(&self, o: &Score) -> bool {
         const EPS: f64 = 1e-9;
+        const OUTAGE_STEP: f64 = 0.05;
         if (self.worst - o.worst).abs() > EPS {
             return self.worst > o.worst;
         }
         if self.failing != o.failing {
             return self.failing < o.failing;
         }
-        self.outage < o.outage - EPS
+        self.outage < o.outage - OUTAGE_STEP
     }
 }
 
@@ -135,7 +178,15 @@ impl<'a> Problem<'a> {
         let shadow = sc.fading.shadow_mean();
         // Per link (in parallel; each link's figures depend on nothing else): the wanted power
         // and every interferer's power on every channel.
-        let (s, p): (Vec<Vec<f64>>, Vec<Vec<Vec<f64>>>) = links
+        let noise: Vec<f64> = sc
+            .spectrum
+            .channels
+            .iter()
+            .map(|c| dbm_to_mw(crate::model::noise::noise_dbm(c.bandwidth_mhz, sc.radio.noise_figure_db)))
+            .collect();
+        let noise_least = noise.iter().copied().fold(f64::INFINITY, f64::min);
+        #[allow(clippy::type_complexity)]
+        let (s, kept): (Vec<Vec<f64>>, Vec<(Vec<usize>, Vec<f64>)>) = links
             .par_iter()
             .map(|&(f, t)| {
                 let (a, b) = (&sc.nodes[f], &sc.nodes[t]);
@@ -168,15 +219,26 @@ impl<'a> Problem<'a> {
                             .collect()
                     })
                     .collect();
-                (s, row)
+                // The weakest terms whose strongest-channel powers add up to PRUNE of the
+                // least noise are left out.
+                let strongest: Vec<f64> = row.iter().map(|v| v.iter().copied().fold(0.0, f64::max)).collect();
+                let mut order: Vec<usize> = (0..row.len()).filter(|&i| strongest[i] > 0.0).collect();
+                order.sort_by(|&a, &b| strongest[a].total_cmp(&strongest[b]).then(a.cmp(&b)));
+                let (mut dropped, mut skip) = (0.0, 0);
+                for &i in &order {
+                    if dropped + strongest[i] > PRUNE * noise_least {
+                        break;
+                    }
+                    dropped += strongest[i];
+                    skip += 1;
+                }
+                let mut kept = order.split_off(skip);
+                kept.sort_unstable();
+                let p = kept.iter().flat_map(|&i| row[i].iter().copied()).collect();
+                (s, (kept, p))
             })
             .unzip();
-        let noise = sc
-            .spectrum
-            .channels
-            .iter()
-            .map(|c| dbm_to_mw(crate::model::noise::noise_dbm(c.bandwidth_mhz, sc.radio.noise_figure_db)))
-            .collect();
+        let (near, p): (Vec<Vec<usize>>, Vec<Vec<f64>>) = kept.into_iter().unzip();
         // Groups: the connected parts of the peer graph.
         let n = sc.nodes.len();
         let mut parent: Vec<usize> = (0..n).collect();
@@ -206,7 +268,22 @@ impl<'a> Problem<'a> {
                 index[r]
             })
             .collect();
-        let free = (0..groups.len()).filter(|&g| !groups[g].iter().any(|&i| locked[i])).collect();
+        let mut touches = vec![Vec::new(); groups.len()];
+        for (l, kept) in near.iter().enumerate() {
+            for (j, &i) in kept.iter().enumerate() {
+                touches[group_of[i]].push((l, j));
+            }
+        }
+        let mut receives = vec![Vec::new(); groups.len()];
+        for (l, &(_, t)) in links.iter().enumerate() {
+            receives[group_of[t]].push(l);
+        }
+        // Groups that may change and change something: a group no link hears (after the
+        // pruning) and that receives no link leaves every margin as it is on any class.
+        let free = (0..groups.len())
+            .filter(|&g| !groups[g].iter().any(|&i| locked[i]))
+            .filter(|&g| !touches[g].is_empty() || !receives[g].is_empty())
+            .collect();
         let coupling = classes
             .iter()
             .map(|&(ci, pi)| classes.iter().map(|&(cr, pr)| sc.spectrum.coupling(ci, pi, cr, pr)).collect())
@@ -239,96 +316,135 @@ impl<'a> Problem<'a> {
             classes,
             candidates,
             s,
+            near,
             p,
+            nch,
+            touches,
+            receives,
             noise,
             groups,
             group_of,
             free,
             coupling,
             rain,
-            thr_db: sc.thresholds.sinr_db,
+            thr_lin: crate::model::units::db_to_lin(sc.thresholds.sinr_db),
         }
     }
 
-    /// Each link's interference under `cls` (class index per group), from scratch.
-    fn interference(&self, cls: &[usize]) -> Vec<f64> {
-        self.links
+    /// Link `l`'s interference under `cls` (class index per group), from its kept terms.
+    fn interference_of(&self, cls: &[usize], l: usize) -> f64 {
+        let kv = cls[self.group_of[self.links[l].1]];
+        self.near[l]
             .iter()
             .enumerate()
-            .map(|(l, &(_, t))| {
-                let kv = cls[self.group_of[t]];
-                let ch = |i: usize| self.classes[cls[self.group_of[i]]].0;
-                (0..self.sc.nodes.len()).map(|i| self.p[l][i][ch(i)] * self.coupling[cls[self.group_of[i]]][kv]).sum()
+            .map(|(j, &i)| {
+                let ki = cls[self.group_of[i]];
+                self.p[l][j * self.nch + self.classes[ki].0] * self.coupling[ki][kv]
             })
-            .collect()
+            .sum()
     }
 
-    fn margins(&self, cls: &[usize], intf: &[f64]) -> Vec<f64> {
-        self.links
-            .iter()
-            .enumerate()
-            .map(|(l, &(_, t))| {
-                let (c, _) = self.classes[cls[self.group_of[t]]];
-                lin_to_db(self.s[l][c] / (intf[l] + self.noise[c])) - self.thr_db
-            })
-            .collect()
-    }
-
-    fn score(&self, cls: &[usize], intf: &[f64]) -> Score {
-        let m = self.margins(cls, intf);
-        let worst = m.iter().copied().fold(f64::INFINITY, f64::min);
-        let failing = m.iter().filter(|x| **x < 0.0).count();
-        let outage = match &self.rain {
-            Some(r) => m
-                .iter()
-                .enumerate()
-                .map(|(l, &mg)| {
-                    let t = self.links[l].1;
-                    r[l][cls[self.group_of[t]]].availability(mg).outage_min_per_year
-                })
-                .sum(),
-            None => m.iter().map(|x| (-x).max(0.0)).sum(),
+    /// The state of plan `cls`, from scratch.
+    fn state(&self, cls: Vec<usize>) -> State {
+        let n = self.links.len();
+        let leaves = n.next_power_of_two();
+        let mut st = State {
+            intf: vec![0.0; n],
+            ratio: vec![f64::INFINITY; n],
+            short: vec![0; n],
+            tree: vec![f64::INFINITY; 2 * leaves],
+            failing: 0,
+            outage: 0,
+            cls,
         };
-        Score { worst: if worst.is_finite() { worst } else { 0.0 }, failing, outage }
+        for l in 0..n {
+            st.intf[l] = self.interference_of(&st.cls, l);
+            self.refresh(&mut st, l);
+        }
+        st
     }
 
-    /// Moves group `g` to class `k`, updating `intf` by the group's terms (and recomputing
-    /// the links the group receives on).
-    fn apply(&self, cls: &mut [usize], intf: &mut [f64], g: usize, k: usize) {
-        let old = cls[g];
+    /// Recomputes link `l`'s margin and outage from its interference, and the sums and the
+    /// worst margin with them.
+    fn refresh(&self, st: &mut State, l: usize) {
+        let k = st.cls[self.group_of[self.links[l].1]];
+        let c = self.classes[k].0;
+        let x = self.s[l][c] / (st.intf[l] + self.noise[c]) / self.thr_lin;
+        let short = match &self.rain {
+            Some(r) => (r[l][k].availability(lin_to_db(x)).outage_min_per_year * OUTAGE_UNIT).round() as i64,
+            None if x < 1.0 => (-lin_to_db(x) * OUTAGE_UNIT).round() as i64,
+            None => 0,
+        };
+        st.failing = st.failing + usize::from(x < 1.0) - usize::from(st.ratio[l] < 1.0);
+        st.outage += short - st.short[l];
+        st.ratio[l] = x;
+        st.short[l] = short;
+        // Up the tree while the minimum below changes.
+        let mut i = st.tree.len() / 2 + l;
+        st.tree[i] = x;
+        while i > 1 {
+            i /= 2;
+            let m = st.tree[2 * i].min(st.tree[2 * i + 1]);
+            if m == st.tree[i] {
+                break;
+            }
+            st.tree[i] = m;
+        }
+    }
+
+    /// Whether moving group `g` can improve the score at all. Without rain the outage term
+    /// sums the failing links' shortfalls only, so a move that reaches neither the worst link
+    /// nor a failing one leaves the worst margin, the failing count and the outage at best
+    /// as they are: such a group is skipped. With rain every link's outage counts.
+    fn may_improve(&self, st: &State, g: usize) -> bool {
+        if self.rain.is_some() {
+            return true;
+        }
+        // The worst link: down the tree along the minimum.
+        let mut i = 1;
+        while i < st.tree.len() / 2 {
+            i = if st.tree[2 * i] <= st.tree[2 * i + 1] { 2 * i } else { 2 * i + 1 };
+        }
+        let worst = i - st.tree.len() / 2;
+        let hit = |l: usize| l == worst || st.ratio[l] < 1.0;
+        self.receives[g].iter().any(|&l| hit(l)) || self.touches[g].iter().any(|&(l, _)| hit(l))
+    }
+
+    fn score(&self, st: &State) -> Score {
+        let worst = st.tree.get(1).copied().unwrap_or(f64::INFINITY);
+        let outage = st.outage as f64 / OUTAGE_UNIT;
+        Score { worst: if worst.is_finite() { lin_to_db(worst) } else { 0.0 }, failing: st.failing, outage }
+    }
+
+    /// Moves group `g` to class `k`, updating the interference of the links its terms reach
+    /// by those terms, and recomputing the links it receives on.
+    fn apply(&self, st: &mut State, g: usize, k: usize) {
+        let old = st.cls[g];
         if old == k {
             return;
         }
         let (co, cn) = (self.classes[old].0, self.classes[k].0);
-        for (l, &(_, t)) in self.links.iter().enumerate() {
-            if self.group_of[t] == g {
+        for &(l, j) in &self.touches[g] {
+            let kv = st.cls[self.group_of[self.links[l].1]];
+            if self.group_of[self.links[l].1] == g {
                 continue;
             }
-            let kv = cls[self.group_of[t]];
-            for &i in &self.groups[g] {
-                intf[l] += self.p[l][i][cn] * self.coupling[k][kv] - self.p[l][i][co] * self.coupling[old][kv];
-            }
+            let row = &self.p[l][j * self.nch..(j + 1) * self.nch];
+            st.intf[l] += row[cn] * self.coupling[k][kv] - row[co] * self.coupling[old][kv];
+            self.refresh(st, l);
         }
-        cls[g] = k;
-        for (l, &(_, t)) in self.links.iter().enumerate() {
-            if self.group_of[t] == g {
-                let kv = cls[g];
-                intf[l] = (0..self.sc.nodes.len())
-                    .map(|i| {
-                        let ki = cls[self.group_of[i]];
-                        self.p[l][i][self.classes[ki].0] * self.coupling[ki][kv]
-                    })
-                    .sum();
-            }
+        st.cls[g] = k;
+        for &l in &self.receives[g] {
+            st.intf[l] = self.interference_of(&st.cls, l);
+            self.refresh(st, l);
         }
     }
 
     fn figures(&self, cls: &[usize]) -> Vec<LinkFigure> {
-        let intf = self.interference(cls);
-        let m = self.margins(cls, &intf);
+        let st = self.state(cls.to_vec());
         self.links
             .iter()
-            .zip(m)
+            .zip(st.ratio.into_iter().map(lin_to_db))
             .map(|(&(f, t), margin_db)| {
                 let (c, pol) = self.classes[cls[self.group_of[t]]];
                 LinkFigure {
@@ -362,10 +478,10 @@ pub fn search_with(sc: &Scenario, locked: &[bool], seed: u64, exhaustive_max: f6
         })
         .collect();
     let candidates: Vec<usize> = (0..pr.candidates).collect();
-    let before = pr.figures(&start);
-    let intf0 = pr.interference(&start);
-    let score0 = pr.score(&start, &intf0);
-    let mut best = (start.clone(), score0);
+    let st0 = pr.state(start);
+    let before = pr.figures(&st0.cls);
+    let score0 = pr.score(&st0);
+    let mut best = (st0.cls.clone(), score0);
     let mut evaluated = 1u64;
     let plans = (candidates.len() as f64).powi(pr.free.len() as i32);
     let exhaustive = plans <= exhaustive_max;
@@ -376,20 +492,19 @@ pub fn search_with(sc: &Scenario, locked: &[bool], seed: u64, exhaustive_max: f6
     };
     if exhaustive {
         // Odometer over the free groups, one group's move at a time (incremental).
-        let mut cls = start.clone();
-        let mut intf = intf0.clone();
+        let mut st = st0.clone();
         for &g in &pr.free {
-            pr.apply(&mut cls, &mut intf, g, candidates[0]);
+            pr.apply(&mut st, g, candidates[0]);
         }
         let mut digit = vec![0usize; pr.free.len()];
         loop {
-            let s = pr.score(&cls, &intf);
+            let s = pr.score(&st);
             evaluated += 1;
             if evaluated.is_multiple_of(4096) {
                 bar.inc(4096);
             }
             if s.better(&best.1) {
-                best = (cls.clone(), s);
+                best = (st.cls.clone(), s);
             }
             let mut k = 0;
             loop {
@@ -398,11 +513,11 @@ pub fn search_with(sc: &Scenario, locked: &[bool], seed: u64, exhaustive_max: f6
                 }
                 digit[k] += 1;
                 if digit[k] < candidates.len() {
-                    pr.apply(&mut cls, &mut intf, pr.free[k], candidates[digit[k]]);
+                    pr.apply(&mut st, pr.free[k], candidates[digit[k]]);
                     break;
                 }
                 digit[k] = 0;
-                pr.apply(&mut cls, &mut intf, pr.free[k], candidates[0]);
+                pr.apply(&mut st, pr.free[k], candidates[0]);
                 k += 1;
             }
             if k == digit.len() {
@@ -412,15 +527,14 @@ pub fn search_with(sc: &Scenario, locked: &[bool], seed: u64, exhaustive_max: f6
     } else {
         let mut rng = rand_pcg::Pcg64::seed_from_u64(seed);
         for restart in 0..4 {
-            let mut cls = start.clone();
-            let mut intf = intf0.clone();
+            let mut st = st0.clone();
             if restart > 0 {
                 for &g in &pr.free {
                     let k = candidates[rng.random_range(0..candidates.len())];
-                    pr.apply(&mut cls, &mut intf, g, k);
+                    pr.apply(&mut st, g, k);
                 }
             }
-            let mut cur = pr.score(&cls, &intf);
+            let mut cur = pr.score(&st);
             for _ in 0..50 {
                 let mut order = pr.free.clone();
                 for i in (1..order.len()).rev() {
@@ -428,41 +542,44 @@ pub fn search_with(sc: &Scenario, locked: &[bool], seed: u64, exhaustive_max: f6
                 }
                 let mut changed = false;
                 for &g in &order {
-                    let keep = cls[g];
+                    if !pr.may_improve(&st, g) {
+                        continue;
+                    }
+                    let keep = st.cls[g];
                     let mut pick = (keep, cur);
                     for &k in &candidates {
                         if k == keep {
                             continue;
                         }
-                        pr.apply(&mut cls, &mut intf, g, k);
-                        let s = pr.score(&cls, &intf);
+                        pr.apply(&mut st, g, k);
+                        let s = pr.score(&st);
                         evaluated += 1;
                         if s.better(&pick.1) {
                             pick = (k, s);
                         }
                     }
-                    pr.apply(&mut cls, &mut intf, g, pick.0);
+                    pr.apply(&mut st, g, pick.0);
                     if pick.0 != keep {
                         changed = true;
                         cur = pick.1;
                     }
                 }
                 // Drift of the incremental sums: start each pass from exact sums.
-                intf = pr.interference(&cls);
-                cur = pr.score(&cls, &intf);
+                st = pr.state(st.cls);
+                cur = pr.score(&st);
                 if !changed {
                     break;
                 }
             }
             if cur.better(&best.1) {
-                best = (cls, cur);
+                best = (st.cls, cur);
             }
             bar.inc(1);
         }
     }
     bar.finish_and_clear();
     let (cls, _) = best;
-    let exact_after = pr.score(&cls, &pr.interference(&cls));
+    let exact_after = pr.score(&pr.state(cls.clone()));
     let classes = (0..sc.nodes.len()).map(|i| pr.classes[cls[pr.group_of[i]]]).collect();
     Plan {
         worst_margin_db_before: crate::model::units::round_dp(score0.worst, 2),
