@@ -117,13 +117,17 @@ impl LayerWriter for Sheet {
             facts: cx.facts,
             context: cx.context,
         };
-        let failed = |e: String| Error::Output { path: st.dir().join(layer.name), source: std::io::Error::other(e) };
-        let (w, h, rgb) = render_rgb(&spec).map_err(failed)?;
-        let png = crate::io::heatmap::rgb_png(w, h, &rgb).map_err(failed)?;
-        // The print sheet: the same drawing redone at the print resolution.
-        let (pw, ph, print) = render_rgb_at(&spec, crate::io::pdf::print_scale(w, h)).map_err(failed)?;
+        let at = st.dir().join(layer.name);
+        let failed = |e: String| Error::Output { path: at.clone(), source: std::io::Error::other(e) };
         let (name, pdf) = (format!("{}-sheet.png", layer.name), format!("{}-sheet.pdf", layer.name));
-        st.write(&name, &png)?;
+        let (w, h) = {
+            let (w, h, rgb) = render_rgb(&spec).map_err(failed)?;
+            st.write(&name, &crate::io::heatmap::rgb_png(w, h, &rgb).map_err(failed)?)?;
+            (w, h)
+        };
+        // The print sheet: the same drawing redone at the print resolution (the screen
+        // picture is dropped first, so only one is held at a time).
+        let (pw, ph, print) = render_rgb_at(&spec, crate::io::pdf::print_scale(w, h)).map_err(failed)?;
         st.write(&pdf, &crate::io::pdf::sheet_pdf(pw, ph, &print, &layer.title))?;
         Ok(vec![name, pdf])
     }
