@@ -6,11 +6,14 @@
 //!
 //! The link budget is the link table's (`jobs::links`, mean powers with the mean shadowing)
 //! precomputed per channel: the wanted power of each link and every interferer's power at
-//! each link's receiver. A change of one group's class updates each link's interference by
-//! that group's terms only (incremental). Up to `EXHAUSTIVE_MAX` plans the search enumerates
-//! every plan; beyond, seeded local search (best class per group in a shuffled order until a
-//! pass changes nothing) from the node file's plan and from random plans. Deterministic for a
-//! seed.
+//! each link's receiver, less each link's weakest interferers that add up to [`PRUNE`] of the
+//! noise. A change of one group's class updates only the links its terms reach (each group
+//! lists them), and the objective with them: the worst margin in a tournament tree, the
+//! failing links counted, the outage summed in whole micro-units (no drift). Up to
+//! `EXHAUSTIVE_MAX` plans the search enumerates every plan; beyond, seeded local search (best
+//! class per group in a shuffled order until a pass changes nothing; without rain, only the
+//! groups that reach the worst or a failing link, the only ones that can improve the plan)
+//! from the node file's plan and from random plans. Deterministic for a seed.
 
 use crate::model::link::{Budget, Endpoint, Geometry, gain_toward};
 use crate::model::node::{Polarisation, peer_pairs};
