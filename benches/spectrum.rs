@@ -79,7 +79,14 @@ fn main() {
     }
     println!("lobemap spectrum benchmark, {} threads, best of {reps}", rayon::current_num_threads());
     println!(
-        "map default layers, 1000 sectors x {} cells: one channel {t1:.3} s ({:.3e} pairs/s), 4 channels x 2 polarisations {t4:.3} s: {:.2}x",
+        "map {}, 1000 sectors x {} cells: one channel {t1:.3} s ({:.3e} pairs/s), 4 channels x 2 polarisations {t4:.3} s: {:.2}x",
+        if only_sinr {
+            "sinr only"
+        } else if only_cov {
+            "coverage only"
+        } else {
+            "default layers"
+        },
         one.grid().cells(),
         pairs as f64 / t1,
         t4 / t1

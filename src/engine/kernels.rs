@@ -83,33 +83,64 @@ impl NodeFactor for ObstructedNode<'_> {
 }
 
 /// Per interferer–receiver coupling on interference (channel overlap, polarisation): the seam
-/// through which spectrum enters. `apply` returns `p` times the factor between interferer
-/// `interferer` and a receiver served by `server`.
+/// through which spectrum enters. Once a row's servers are known, `fill_row` writes each
+/// interferer class's factor into each cell's server class to a row buffer; `for_node` gives
+/// one interferer's factors over the row, read cell by cell in the kernels' vectorised loops
+/// (a contiguous load, where a lookup through each cell's server would be a gather).
 pub(crate) trait RxCoupling: Copy + Send + Sync {
     /// Whether the factor is 1 for every pair; then the omni interference needs no pass that
     /// knows the server.
     const IDENTITY: bool;
-    /// `p` coupled from `interferer` into a receiver served by `server`.
-    fn apply(self, interferer: u32, server: u32, p: f32) -> f32;
+    /// One interferer's factors over the row.
+    type Node<'b>: NodeCoupling;
+    /// Writes the row's factors into `fac` for cells served by `server`.
+    fn fill_row(self, server: &[u32], fac: &mut Vec<f32>);
+    /// Interferer `interferer`'s factors, from the buffer `fill_row` wrote.
+    fn for_node(self, interferer: u32, fac: &[f32], len: usize) -> Self::Node<'_>;
 }
 
-/// Nodes on several channels or polarisations: the coupling of each interferer class
-/// (channel and polarisation) into a receiver served by each node,
-/// `by_server[interferer_class * nodes + server]`: one lookup a pair (the row of the
-/// interferer's class is the same over a node's cells).
+/// [`RxCoupling`] for one interferer over a row.
+pub(crate) trait NodeCoupling: Copy {
+    /// `p` coupled into the receiver of cell `col`.
+    fn apply(self, col: usize, p: f32) -> f32;
+}
+
+/// Nodes on several channels or polarisations: each node's class (channel and polarisation)
+/// and `table[interferer_class * classes + receiver_class]`.
 #[derive(Clone, Copy)]
 pub(crate) struct Coupled<'a> {
     pub(crate) class: &'a [u32],
-    pub(crate) by_server: &'a [f32],
+    pub(crate) table: &'a [f32],
+    pub(crate) classes: usize,
 }
+/// [`Coupled`] for one interferer: its factor per cell of the row.
+#[derive(Clone, Copy)]
+pub(crate) struct CoupledNode<'b>(&'b [f32]);
 impl RxCoupling for Coupled<'_> {
     const IDENTITY: bool = false;
+    type Node<'b> = CoupledNode<'b>;
+    fn fill_row(self, server: &[u32], fac: &mut Vec<f32>) {
+        let (len, m, last) = (server.len(), self.classes, self.class.len() - 1);
+        fac.clear();
+        fac.resize(m * len, 0.0);
+        for (k, row) in fac.chunks_exact_mut(len).enumerate() {
+            // A cell without a server (u32::MAX) reads the last node's class; its value is
+            // unused.
+            for (f, &s) in row.iter_mut().zip(server) {
+                *f = self.table[k * m + self.class[(s as usize).min(last)] as usize];
+            }
+        }
+    }
     #[inline(always)]
-    fn apply(self, interferer: u32, server: u32, p: f32) -> f32 {
-        let nodes = self.class.len();
-        // A cell without a server (u32::MAX) reads the last node's entry; its value is unused.
-        let s = (server as usize).min(nodes - 1);
-        p * self.by_server[self.class[interferer as usize] as usize * nodes + s]
+    fn for_node(self, interferer: u32, fac: &[f32], len: usize) -> CoupledNode<'_> {
+        let base = self.class[interferer as usize] as usize * len;
+        CoupledNode(&fac[base..base + len])
+    }
+}
+impl NodeCoupling for CoupledNode<'_> {
+    #[inline(always)]
+    fn apply(self, col: usize, p: f32) -> f32 {
+        p * self.0[col]
     }
 }
 
@@ -118,8 +149,16 @@ impl RxCoupling for Coupled<'_> {
 pub(crate) struct CoChannel;
 impl RxCoupling for CoChannel {
     const IDENTITY: bool = true;
+    type Node<'b> = CoChannel;
+    fn fill_row(self, _server: &[u32], _fac: &mut Vec<f32>) {}
     #[inline(always)]
-    fn apply(self, _interferer: u32, _server: u32, p: f32) -> f32 {
+    fn for_node(self, _interferer: u32, _fac: &[f32], _len: usize) -> CoChannel {
+        CoChannel
+    }
+}
+impl NodeCoupling for CoChannel {
+    #[inline(always)]
+    fn apply(self, _col: usize, p: f32) -> f32 {
         p
     }
 }
@@ -260,6 +299,9 @@ pub(crate) struct RowBufs {
     /// With channels: the aimed interference summed per interferer class (channel and
     /// polarisation), coupled into each cell's server class at the end of the pass.
     pub(crate) iacc_cls: Vec<Vec<f32>>,
+    /// With channels: each interferer class's coupling into each cell's server class
+    /// (`RxCoupling::fill_row`).
+    pub(crate) cfac: Vec<f32>,
 }
 
 impl RowBufs {
@@ -281,6 +323,7 @@ impl RowBufs {
             topi: vec![u32::MAX; STRONG * n],
             qbuf: vec![0.0; n],
             iacc_cls: Vec::new(),
+            cfac: Vec::new(),
         }
     }
 }
@@ -347,13 +390,14 @@ pub(crate) fn pass_aimed<D: Decay, G: TxGain, A: PairFactor, C: RxCoupling>(
     let (xs, ys, ux, uy, server, iacc) =
         (&b.xs[..len], &b.ys[..len], &b.ux[..len], &b.uy[..len], &b.server[..len], &mut b.iacc[..len]);
     let af = a.for_node(n.idx, len);
+    let cf = cp.for_node(n.idx, &b.cfac, len);
     for c in 0..len {
         let wx = xs[c] - n.x;
         let wy = ys[c] - n.y;
         let w2 = wx * wx + wy * wy;
         let p = af.apply(c, g.eval(n, wx, wy, w2) * d.inv(af.d2(c, w2, n.dz2)));
         // Receiver boresight u points at the server; the node lies along −w.
-        let p = cp.apply(n.idx, server[c], p);
+        let p = cf.apply(c, p);
         let t = -(ux[c] * wx + uy[c] * wy);
         let gr = if t * t.abs() >= rcc * w2 { rmain } else { rside };
         let own = server[c] == n.idx;
@@ -419,12 +463,13 @@ pub(crate) fn pass_cov_exact<D: Decay, G: TxGain, A: PairFactor, C: RxCoupling, 
         (&b.xs[..len], &b.ys[..len], &b.ux[..len], &b.uy[..len], &b.server[..len], &b.tinv[..len]);
     let (acc, iacc) = (&mut b.cacc[..len], &mut b.iacc[..len]);
     let af = a.for_node(n.idx, len);
+    let cf = cp.for_node(n.idx, &b.cfac, len);
     for c in 0..len {
         let wx = xs[c] - n.x;
         let wy = ys[c] - n.y;
         let w2 = wx * wx + wy * wy;
         let p = af.apply(c, g.eval(n, wx, wy, w2) * d.inv(af.d2(c, w2, n.dz2)));
-        let p = cp.apply(n.idx, server[c], p);
+        let p = cf.apply(c, p);
         let t = -(ux[c] * wx + uy[c] * wy);
         let gr = if t * t.abs() >= rcc * w2 { rmain } else { rside };
         let term = 1.0 - n.act + n.act * lt.l(tinv[c] * p * gr);
@@ -463,12 +508,13 @@ pub(crate) fn pass_cov_strong<D: Decay, G: TxGain, A: PairFactor, C: RxCoupling>
     let (xs, ys, ux, uy, server) = (&b.xs[..len], &b.ys[..len], &b.ux[..len], &b.uy[..len], &b.server[..len]);
     let (iacc, var, qbuf) = (&mut b.iacc[..len], &mut b.cvar[..len], &mut b.qbuf[..len]);
     let af = a.for_node(n.idx, len);
+    let cf = cp.for_node(n.idx, &b.cfac, len);
     for c in 0..len {
         let wx = xs[c] - n.x;
         let wy = ys[c] - n.y;
         let w2 = wx * wx + wy * wy;
         let p = af.apply(c, g.eval(n, wx, wy, w2) * d.inv(af.d2(c, w2, n.dz2)));
-        let p = cp.apply(n.idx, server[c], p);
+        let p = cf.apply(c, p);
         let t = -(ux[c] * wx + uy[c] * wy);
         let gr = if t * t.abs() >= rcc * w2 { rmain } else { rside };
         // The server is no interferer of its own cell: its power counts as 0 everywhere.

@@ -204,14 +204,11 @@ pub(crate) struct CouplingPrep {
     pub(crate) table: Vec<f32>,
     /// Number of classes.
     pub(crate) classes: usize,
-    /// `by_server[interferer_class * nodes + server]`: the table row read through each node's
-    /// class, for the per-pair kernels.
-    pub(crate) by_server: Vec<f32>,
 }
 
 impl CouplingPrep {
     fn kernel(&self) -> Coupled<'_> {
-        Coupled { class: &self.class, by_server: &self.by_server }
+        Coupled { class: &self.class, table: &self.table, classes: self.classes }
     }
 }
 

@@ -139,12 +139,5 @@ fn coupling_table(sc: &Scenario) -> Option<crate::engine::CouplingPrep> {
             table[i * m + s] = sc.spectrum.coupling(ci, pi, cs, ps) as f32;
         }
     }
-    let nodes = class.len();
-    let mut by_server = vec![0f32; m * nodes];
-    for i in 0..m {
-        for (s, &cs) in class.iter().enumerate() {
-            by_server[i * nodes + s] = table[i * m + cs as usize];
-        }
-    }
-    Some(crate::engine::CouplingPrep { class, table, classes: m, by_server })
+    Some(crate::engine::CouplingPrep { class, table, classes: m })
 }

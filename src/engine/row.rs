@@ -125,6 +125,11 @@ pub(crate) fn row_body<D: Decay, A: PairFactor, C: RxCoupling>(
             b.uy[c] = uy;
         }
     }
+    // The coupling of every interferer class into each cell's server class, for the per-pair
+    // kernels (nothing without channels).
+    if !C::IDENTITY && (aimed_needed || l.coverage) {
+        cp.fill_row(&b.server[..cols], &mut b.cfac);
+    }
     // With coverage requested, its pass also sums the aimed interference (see the kernels).
     if aimed_needed && !l.coverage {
         // An omni receiver is the aimed kernel with an always-true beam test.
