@@ -28,6 +28,8 @@ pub const NODE_KEYS: &[&str] = &[
     "polarisation",
     "channel",
     "locked",
+    "allowed_channels",
+    "allowed_polarisations",
     "peer",
     "name",
     "note",
@@ -380,6 +382,27 @@ fn parse_feature(
         && !v.is_boolean()
     {
         push("locked", format!("value {v} is not true or false"));
+    }
+    // What `assign` may give the node: lists of names, checked here for every command.
+    let list_of = |key: &str, known: &dyn Fn(&str) -> bool, allowed: &str| -> Option<String> {
+        let v = props.get(key)?;
+        let names: Option<Vec<&str>> = v.as_array().and_then(|a| a.iter().map(Value::as_str).collect());
+        match names {
+            Some(n) if !n.is_empty() && n.iter().all(|x| known(x)) => None,
+            Some(n) if !n.is_empty() => {
+                let bad: Vec<&str> = n.into_iter().filter(|x| !known(x)).collect();
+                Some(format!("value {v} names {}, which is not allowed; allowed: {allowed}", bad.join(", ")))
+            }
+            _ => Some(format!("value {v} is not a non-empty list of names; allowed names: {allowed}")),
+        }
+    };
+    let channel_names: Vec<String> = channels.iter().map(|n| format!("`{n}`")).collect();
+    let channel_names = format!("{} ([channels] names, `radio` for the [radio] carrier)", channel_names.join(", "));
+    if let Some(m) = list_of("allowed_channels", &|x| channels.iter().any(|c| c == x), &channel_names) {
+        push("allowed_channels", m);
+    }
+    if let Some(m) = list_of("allowed_polarisations", &|x| Polarisation::parse(x).is_some(), Polarisation::NAMES) {
+        push("allowed_polarisations", m);
     }
     let resolved = merged.resolve(&mut |field, msg| push(field, msg));
     let azimuth_deg = match (az, &resolved) {

@@ -77,14 +77,101 @@ pub struct Plan {
     pub classes: Vec<(usize, Polarisation)>,
 }
 
+/// What the search may change: per node (layout order), whether it keeps its channel and
+/// polarisation (`locked`), and which channels (indices into the scenario's channel list) and
+/// polarisations it may be given (`None`: any candidate).
+#[derive(Debug, Clone, Default)]
+pub struct Limits {
+    /// Nodes that keep their class, with every node linked to them.
+    pub locked: Vec<bool>,
+    /// Channels a node may take.
+    pub channels: Vec<Option<Vec<usize>>>,
+    /// Polarisations a node may take.
+    pub polarisations: Vec<Option<Vec<Polarisation>>>,
+}
+
+impl Limits {
+    /// Only `locked`: every other node may take any candidate class.
+    pub fn locked(locked: &[bool]) -> Limits {
+        Limits { locked: locked.to_vec(), channels: vec![None; locked.len()], polarisations: vec![None; locked.len()] }
+    }
+
+    fn allows(&self, i: usize, (c, p): (usize, Polarisation)) -> bool {
+        self.channels[i].as_ref().is_none_or(|v| v.contains(&c))
+            && self.polarisations[i].as_ref().is_none_or(|v| v.contains(&p))
+    }
+}
+
+/// The connected parts of the peer graph over `n` nodes: each group's nodes, and each node's
+/// group.
+fn groups_of(n: usize, links: &[(usize, usize)]) -> (Vec<Vec<usize>>, Vec<usize>) {
+    let mut parent: Vec<usize> = (0..n).collect();
+    fn root(p: &mut [usize], mut x: usize) -> usize {
+        while p[x] != x {
+            p[x] = p[p[x]];
+            x = p[x];
+        }
+        x
+    }
+    for &(a, b) in links {
+        let (ra, rb) = (root(&mut parent, a), root(&mut parent, b));
+        if ra != rb {
+            parent[ra.max(rb)] = ra.min(rb);
+        }
+    }
+    let mut groups: Vec<Vec<usize>> = Vec::new();
+    let mut index = vec![usize::MAX; n];
+    let group_of = (0..n)
+        .map(|i| {
+            let r = root(&mut parent, i);
+            if index[r] == usize::MAX {
+                index[r] = groups.len();
+                groups.push(Vec::new());
+            }
+            groups[index[r]].push(i);
+            index[r]
+        })
+        .collect();
+    (groups, group_of)
+}
+
+/// Per group, the indices of the `candidates` every node of the group allows.
+fn allowed_classes(candidates: &[(usize, Polarisation)], groups: &[Vec<usize>], limits: &Limits) -> Vec<Vec<usize>> {
+    groups
+        .iter()
+        .map(|g| (0..candidates.len()).filter(|&k| g.iter().all(|&i| limits.allows(i, candidates[k]))).collect())
+        .collect()
+}
+
+/// The candidate classes of a plan search on `sc`: every `[channels]` channel (the `[radio]`
+/// carrier when there is no table) on both polarisations.
+fn candidate_classes(sc: &Scenario) -> Vec<(usize, Polarisation)> {
+    let nch = sc.spectrum.channels.len();
+    let chans: Vec<usize> = if nch > 1 { (1..nch).collect() } else { vec![0] };
+    chans.iter().flat_map(|&c| [(c, Polarisation::V), (c, Polarisation::H)]).collect()
+}
+
+/// The groups (nodes joined by peers) that may change but for which no candidate class is
+/// allowed by every node: the ids of each such group's nodes.
+pub fn unplaceable(sc: &Scenario, limits: &Limits) -> Vec<Vec<String>> {
+    let (groups, _) = groups_of(sc.nodes.len(), &peer_pairs(&sc.nodes));
+    let cand = allowed_classes(&candidate_classes(sc), &groups, limits);
+    groups
+        .iter()
+        .zip(&cand)
+        .filter(|(g, c)| c.is_empty() && !g.iter().any(|&i| limits.locked[i]))
+        .map(|(g, _)| g.iter().map(|&i| sc.nodes[i].id.clone()).collect())
+        .collect()
+}
+
 /// The precomputed problem.
 struct Problem<'a> {
     sc: &'a Scenario,
     /// (from, to) node indices per link.
     links: Vec<(usize, usize)>,
-    /// The candidate classes (the first `candidates`), then the node file's others.
+    /// The candidate classes, then the node file's others (a group's candidates are in
+    /// `cand`).
     classes: Vec<(usize, Polarisation)>,
-    candidates: usize,
     /// Per link and channel: wanted power, mW (shadow mean included).
     s: Vec<Vec<f64>>,
     /// Per link: the interferers kept ([`PRUNE`]), node indices.
@@ -97,6 +184,8 @@ struct Problem<'a> {
     touches: Vec<Vec<(usize, usize)>>,
     /// Per group: the links it receives on.
     receives: Vec<Vec<usize>>,
+    /// Per group: the candidate classes every node of it allows.
+    cand: Vec<Vec<usize>>,
     /// Per channel: noise, mW.
     noise: Vec<f64>,
     /// Per group: its nodes; per node its group.
@@ -162,13 +251,10 @@ impl Score {
 }
 
 impl<'a> Problem<'a> {
-    fn new(sc: &'a Scenario, locked: &[bool]) -> Problem<'a> {
+    fn new(sc: &'a Scenario, limits: &Limits) -> Problem<'a> {
         let links = peer_pairs(&sc.nodes);
         let nch = sc.spectrum.channels.len();
-        // Candidate channels: the table's (the [radio] carrier only when there is no table).
-        let chans: Vec<usize> = if nch > 1 { (1..nch).collect() } else { vec![0] };
-        let mut classes: Vec<(usize, Polarisation)> =
-            chans.iter().flat_map(|&c| [(c, Polarisation::V), (c, Polarisation::H)]).collect();
+        let mut classes = candidate_classes(sc);
         let candidates = classes.len();
         // The node file's classes outside the candidates (the [radio] carrier when a table
         // exists) follow them, so the starting plan and locked groups keep theirs.
@@ -242,35 +328,7 @@ impl<'a> Problem<'a> {
             })
             .unzip();
         let (near, p): (Vec<Vec<usize>>, Vec<Vec<f64>>) = kept.into_iter().unzip();
-        // Groups: the connected parts of the peer graph.
-        let n = sc.nodes.len();
-        let mut parent: Vec<usize> = (0..n).collect();
-        fn root(p: &mut [usize], mut x: usize) -> usize {
-            while p[x] != x {
-                p[x] = p[p[x]];
-                x = p[x];
-            }
-            x
-        }
-        for &(a, b) in &links {
-            let (ra, rb) = (root(&mut parent, a), root(&mut parent, b));
-            if ra != rb {
-                parent[ra.max(rb)] = ra.min(rb);
-            }
-        }
-        let mut groups: Vec<Vec<usize>> = Vec::new();
-        let mut index = vec![usize::MAX; n];
-        let group_of: Vec<usize> = (0..n)
-            .map(|i| {
-                let r = root(&mut parent, i);
-                if index[r] == usize::MAX {
-                    index[r] = groups.len();
-                    groups.push(Vec::new());
-                }
-                groups[index[r]].push(i);
-                index[r]
-            })
-            .collect();
+        let (groups, group_of) = groups_of(sc.nodes.len(), &links);
         let mut touches = vec![Vec::new(); groups.len()];
         for (l, kept) in near.iter().enumerate() {
             for (j, &i) in kept.iter().enumerate() {
@@ -283,8 +341,9 @@ impl<'a> Problem<'a> {
         }
         // Groups that may change and change something: a group no link hears (after the
         // pruning) and that receives no link leaves every margin as it is on any class.
+        let cand = allowed_classes(&classes[..candidates], &groups, limits);
         let free = (0..groups.len())
-            .filter(|&g| !groups[g].iter().any(|&i| locked[i]))
+            .filter(|&g| !groups[g].iter().any(|&i| limits.locked[i]) && !cand[g].is_empty())
             .filter(|&g| !touches[g].is_empty() || !receives[g].is_empty())
             .collect();
         let coupling = classes
@@ -317,13 +376,13 @@ impl<'a> Problem<'a> {
             sc,
             links,
             classes,
-            candidates,
             s,
             near,
             p,
             nch,
             touches,
             receives,
+            cand,
             noise,
             groups,
             group_of,
@@ -466,13 +525,19 @@ impl<'a> Problem<'a> {
 /// class outside the candidates (the `[radio]` carrier when a table exists) starts on it and,
 /// when free, is moved to a candidate.
 pub fn search(sc: &Scenario, locked: &[bool], seed: u64) -> Plan {
-    search_with(sc, locked, seed, EXHAUSTIVE_MAX)
+    search_within(sc, &Limits::locked(locked), seed, EXHAUSTIVE_MAX)
 }
 
 /// [`search`] enumerating every plan only up to `exhaustive_max` plans (0: always the local
 /// search; for checking it against the enumeration).
 pub fn search_with(sc: &Scenario, locked: &[bool], seed: u64, exhaustive_max: f64) -> Plan {
-    let pr = Problem::new(sc, locked);
+    search_within(sc, &Limits::locked(locked), seed, exhaustive_max)
+}
+
+/// [`search_with`] under `limits`: each group takes only the classes all its nodes allow (a
+/// group with none, see [`unplaceable`], keeps its own).
+pub fn search_within(sc: &Scenario, limits: &Limits, seed: u64, exhaustive_max: f64) -> Plan {
+    let pr = Problem::new(sc, limits);
     // The node file's plan: each group's class.
     let start: Vec<usize> = (0..pr.groups.len())
         .map(|g| {
@@ -480,13 +545,20 @@ pub fn search_with(sc: &Scenario, locked: &[bool], seed: u64, exhaustive_max: f6
             pr.classes.iter().position(|c| *c == (n.channel, n.polarisation)).unwrap_or(0)
         })
         .collect();
-    let candidates: Vec<usize> = (0..pr.candidates).collect();
     let st0 = pr.state(start);
     let before = pr.figures(&st0.cls);
     let score0 = pr.score(&st0);
-    let mut best = (st0.cls.clone(), score0);
+    // The node file's plan with every free group on a class it allows (its first candidate
+    // where the file's class is not one): where every search starts, and the best so far.
+    let mut st0 = st0;
+    for &g in &pr.free {
+        if !pr.cand[g].contains(&st0.cls[g]) {
+            pr.apply(&mut st0, g, pr.cand[g][0]);
+        }
+    }
+    let mut best = (st0.cls.clone(), pr.score(&st0));
     let mut evaluated = 1u64;
-    let plans = (candidates.len() as f64).powi(pr.free.len() as i32);
+    let plans: f64 = pr.free.iter().map(|&g| pr.cand[g].len() as f64).product();
     let exhaustive = plans <= exhaustive_max;
     let bar = if exhaustive {
         crate::progress::bar("plan search", plans as u64, "plans")
@@ -497,7 +569,7 @@ pub fn search_with(sc: &Scenario, locked: &[bool], seed: u64, exhaustive_max: f6
         // Odometer over the free groups, one group's move at a time (incremental).
         let mut st = st0.clone();
         for &g in &pr.free {
-            pr.apply(&mut st, g, candidates[0]);
+            pr.apply(&mut st, g, pr.cand[g][0]);
         }
         let mut digit = vec![0usize; pr.free.len()];
         loop {
@@ -514,13 +586,14 @@ pub fn search_with(sc: &Scenario, locked: &[bool], seed: u64, exhaustive_max: f6
                 if k == digit.len() {
                     break;
                 }
+                let cand = &pr.cand[pr.free[k]];
                 digit[k] += 1;
-                if digit[k] < candidates.len() {
-                    pr.apply(&mut st, pr.free[k], candidates[digit[k]]);
+                if digit[k] < cand.len() {
+                    pr.apply(&mut st, pr.free[k], cand[digit[k]]);
                     break;
                 }
                 digit[k] = 0;
-                pr.apply(&mut st, pr.free[k], candidates[0]);
+                pr.apply(&mut st, pr.free[k], cand[0]);
                 k += 1;
             }
             if k == digit.len() {
@@ -533,8 +606,8 @@ pub fn search_with(sc: &Scenario, locked: &[bool], seed: u64, exhaustive_max: f6
             let mut st = st0.clone();
             if restart > 0 {
                 for &g in &pr.free {
-                    let k = candidates[rng.random_range(0..candidates.len())];
-                    pr.apply(&mut st, g, k);
+                    let cand = &pr.cand[g];
+                    pr.apply(&mut st, g, cand[rng.random_range(0..cand.len())]);
                 }
             }
             let mut cur = pr.score(&st);
@@ -550,7 +623,7 @@ pub fn search_with(sc: &Scenario, locked: &[bool], seed: u64, exhaustive_max: f6
                     }
                     let keep = st.cls[g];
                     let mut pick = (keep, cur);
-                    for &k in &candidates {
+                    for &k in &pr.cand[g] {
                         if k == keep {
                             continue;
                         }

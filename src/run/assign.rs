@@ -2,7 +2,8 @@
 
 use crate::error::{Error, Problem};
 use crate::io::staging::Staging;
-use crate::jobs::assign::{Plan, search};
+use crate::jobs::assign::{EXHAUSTIVE_MAX, Limits, Plan, search_within, unplaceable};
+use crate::model::node::Polarisation;
 use crate::model::scenario::Scenario;
 use std::path::{Path, PathBuf};
 
@@ -36,7 +37,62 @@ pub fn run_assign(sc: &Scenario, out: &Path, seed: u64) -> Result<AssignResult, 
         .filter_map(id_of)
         .collect();
     let locked: Vec<bool> = sc.nodes.iter().map(|n| locked_ids.contains(&n.id)).collect();
-    let plan = search(sc, &locked, seed);
+    // The allowed lists, by id (their names were checked when the node file was read).
+    let props: std::collections::HashMap<String, serde_json::Value> =
+        features.iter().filter_map(|f| Some((id_of(f)?, f["properties"].clone()))).collect();
+    let names = |n: &crate::model::node::Node, key: &str| -> Option<Vec<String>> {
+        let v = props.get(&n.id)?.get(key)?.as_array()?;
+        Some(v.iter().filter_map(|x| x.as_str().map(String::from)).collect())
+    };
+    let chan_index = |name: &String| sc.spectrum.channels.iter().position(|c| c.name == *name);
+    let limits = Limits {
+        channels: sc
+            .nodes
+            .iter()
+            .map(|n| names(n, "allowed_channels").map(|v| v.iter().filter_map(chan_index).collect()))
+            .collect(),
+        polarisations: sc
+            .nodes
+            .iter()
+            .map(|n| {
+                names(n, "allowed_polarisations").map(|v| v.iter().filter_map(|p| Polarisation::parse(p)).collect())
+            })
+            .collect(),
+        locked,
+    };
+    let stuck = unplaceable(sc, &limits);
+    if !stuck.is_empty() {
+        let candidates: Vec<String> = sc.spectrum.channels.iter().skip(1).map(|c| format!("`{}`", c.name)).collect();
+        return Err(Error::Input(
+            stuck
+                .iter()
+                .map(|ids| {
+                    // What each node of the group allows, as written.
+                    let said: Vec<String> = ids
+                        .iter()
+                        .filter_map(|id| {
+                            let p = props.get(id)?;
+                            let part = |k: &str| p.get(k).map(|v| format!("{k} {v}"));
+                            let both: Vec<String> =
+                                [part("allowed_channels"), part("allowed_polarisations")].into_iter().flatten().collect();
+                            (!both.is_empty()).then(|| format!("{id}: {}", both.join(", ")))
+                        })
+                        .collect();
+                    Problem::new(
+                        &file,
+                        Some(format!("nodes {}", ids.join(", "))),
+                        "allowed_channels",
+                        format!(
+                            "values {} leave no channel and polarisation that every node of this group allows (nodes joined by peers share one); candidates: {} on V or H; widen `allowed_channels` or `allowed_polarisations`, or lock the group",
+                            said.join("; "),
+                            if candidates.is_empty() { "`radio`".to_string() } else { candidates.join(", ") }
+                        ),
+                    )
+                })
+                .collect(),
+        ));
+    }
+    let plan = search_within(sc, &limits, seed, EXHAUSTIVE_MAX);
     let by_id: std::collections::HashMap<&str, usize> =
         sc.nodes.iter().enumerate().map(|(i, n)| (n.id.as_str(), i)).collect();
     if let Some(fs) = fc["features"].as_array_mut() {
