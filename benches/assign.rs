@@ -70,7 +70,7 @@ fn bench(planned: bool, rain: bool) {
     let t0 = Instant::now();
     let plan = lobemap::jobs::assign::search(&sc, &vec![false; sc.nodes().len()], 1);
     println!(
-        "assign, {}: 1000 links among 5000 nodes, 4 channels x 2 polarisations: {:.2} s, {} plans evaluated; worst margin {:.2} -> {:.2} dB, failing {} -> {}",
+        "assign, {}: 1000 links among 5000 nodes, 4 channels x 2 polarisations: {:.2} s, {} plans evaluated; worst margin {:.2} -> {:.2} dB, failing {} -> {}, summed outage {} -> {} {}",
         match (planned, rain) {
             (false, _) => "links between random nodes",
             (true, false) => "planned mutual links",
@@ -81,6 +81,9 @@ fn bench(planned: bool, rain: bool) {
         plan.worst_margin_db_before,
         plan.worst_margin_db_after,
         plan.failing_before,
-        plan.failing_after
+        plan.failing_after,
+        plan.outage_before,
+        plan.outage_after,
+        plan.outage_unit
     );
 }

@@ -454,12 +454,12 @@ impl<'a> Problem<'a> {
         }
     }
 
-    /// Whether moving group `g` can improve the score at all. Without rain the outage term
-    /// sums the failing links' shortfalls only, so a move that reaches neither the worst link
-    /// nor a failing one leaves the worst margin, the failing count and the outage at best
-    /// as they are: such a group is skipped. With rain every link's outage counts.
-    fn may_improve(&self, st: &State, g: usize) -> bool {
-        if self.rain.is_some() {
+    /// Whether moving group `g` can raise the worst margin or lower the failing count: only a
+    /// move that reaches the worst link or a failing one can. Without rain the outage term
+    /// sums the failing links' shortfalls only, so no other move can improve the score at
+    /// all; with rain (`outage_too`) every link's outage counts, and every group may.
+    fn may_improve(&self, st: &State, g: usize, outage_too: bool) -> bool {
+        if outage_too && self.rain.is_some() {
             return true;
         }
         // The worst link: down the tree along the minimum.
@@ -611,6 +611,10 @@ pub fn search_within(sc: &Scenario, limits: &Limits, seed: u64, exhaustive_max: 
                 }
             }
             let mut cur = pr.score(&st);
+            // Passes over the groups that can raise the worst margin or lower the failing
+            // count until one changes nothing, then one over every group (with rain, any move
+            // may lower the summed outage); done when that one changes nothing either.
+            let mut outage_pass = false;
             for _ in 0..50 {
                 let mut order = pr.free.clone();
                 for i in (1..order.len()).rev() {
@@ -618,7 +622,7 @@ pub fn search_within(sc: &Scenario, limits: &Limits, seed: u64, exhaustive_max: 
                 }
                 let mut changed = false;
                 for &g in &order {
-                    if !pr.may_improve(&st, g) {
+                    if !pr.may_improve(&st, g, outage_pass) {
                         continue;
                     }
                     let keep = st.cls[g];
@@ -643,9 +647,10 @@ pub fn search_within(sc: &Scenario, limits: &Limits, seed: u64, exhaustive_max: 
                 // Drift of the incremental sums: start each pass from exact sums.
                 st = pr.state(st.cls);
                 cur = pr.score(&st);
-                if !changed {
+                if !changed && (outage_pass || pr.rain.is_none()) {
                     break;
                 }
+                outage_pass = !changed;
             }
             if cur.better(&best.1) {
                 best = (st.cls, cur);
