@@ -46,7 +46,9 @@ pub struct Staging {
     created: Vec<PathBuf>,
     /// File names of the command's own kinds: those this run does not write are retired.
     owned: Vec<String>,
-    pending: Vec<(PathBuf, PathBuf)>,
+    /// Files written so far: (where it is, where it goes). Behind a lock so that several
+    /// writers may write different files at once (`write` takes `&self`).
+    pending: std::sync::Mutex<Vec<(PathBuf, PathBuf)>>,
     protected: Vec<PathBuf>,
     committed: bool,
     /// An exclusive lock on the existing folder for the run's lifetime (released when dropped).
@@ -247,7 +249,7 @@ impl Staging {
             created_dir: false,
             created,
             owned,
-            pending: Vec::new(),
+            pending: std::sync::Mutex::new(Vec::new()),
             protected: inputs.iter().filter_map(|p| std::fs::canonicalize(p).ok()).collect(),
             committed: false,
             _lock: None,
@@ -329,13 +331,13 @@ impl Staging {
     }
 
     /// Writes a whole file from bytes.
-    pub fn write(&mut self, name: &str, bytes: &[u8]) -> Result<(), Error> {
+    pub fn write(&self, name: &str, bytes: &[u8]) -> Result<(), Error> {
         self.write_with(name, |w| w.write_all(bytes))
     }
 
     /// Writes a file through a buffered writer given to `f`.
     pub fn write_with(
-        &mut self,
+        &self,
         name: &str,
         f: impl FnOnce(&mut BufWriter<File>) -> std::io::Result<()>,
     ) -> Result<(), Error> {
@@ -383,7 +385,7 @@ impl Staging {
         });
         match res {
             Ok(tmp) => {
-                self.pending.push((tmp, fin));
+                self.pending.lock().unwrap_or_else(std::sync::PoisonError::into_inner).push((tmp, fin));
                 Ok(())
             }
             Err(e) => Err(Error::Output { path: fin, source: e }),
@@ -392,7 +394,7 @@ impl Staging {
 
     /// Puts every staged file in place: the whole folder swapped, or file by file.
     pub fn commit(mut self) -> Result<Vec<PathBuf>, Error> {
-        let pending = std::mem::take(&mut self.pending);
+        let pending = std::mem::take(self.pending.get_mut().unwrap_or_else(std::sync::PoisonError::into_inner));
         let done: Vec<PathBuf> = pending.iter().map(|(_, f)| f.clone()).collect();
         if self.stage.is_some() {
             match self.swap(&pending) {
@@ -401,7 +403,7 @@ impl Staging {
                     return Ok(done);
                 }
                 Err(SwapError::Fatal(path, e)) => {
-                    self.pending = pending;
+                    *self.pending.get_mut().unwrap_or_else(std::sync::PoisonError::into_inner) = pending;
                     return Err(Error::Output { path, source: e });
                 }
                 Err(SwapError::Fallback) => {
@@ -593,7 +595,7 @@ impl Staging {
 impl Drop for Staging {
     fn drop(&mut self) {
         if !self.committed {
-            for (tmp, _) in &self.pending {
+            for (tmp, _) in self.pending.get_mut().unwrap_or_else(std::sync::PoisonError::into_inner).iter() {
                 let _ = std::fs::remove_file(tmp);
                 unregister(tmp);
             }

@@ -42,7 +42,7 @@ pub(crate) struct Context<'a> {
 
 /// Writes one layer in one format; returns the file names written.
 pub(crate) trait LayerWriter: Sync {
-    fn write(&self, st: &mut Staging, cx: &Context, layer: &LayerOut) -> Result<Vec<String>, Error>;
+    fn write(&self, st: &Staging, cx: &Context, layer: &LayerOut) -> Result<Vec<String>, Error>;
     /// Endings of every file name this writer can write for a layer (`tif` for `total.tif`;
     /// one starting with `-` follows the stem directly: `-sheet.png` for `total-sheet.png`).
     fn extensions(&self) -> &'static [&'static str];
@@ -52,7 +52,7 @@ pub(crate) trait LayerWriter: Sync {
 /// GDAL PAM sidecar (description, unit, category names).
 pub(crate) struct GeoTiff;
 impl LayerWriter for GeoTiff {
-    fn write(&self, st: &mut Staging, cx: &Context, layer: &LayerOut) -> Result<Vec<String>, Error> {
+    fn write(&self, st: &Staging, cx: &Context, layer: &LayerOut) -> Result<Vec<String>, Error> {
         use crate::io::geotiff::{pam_sidecar, write_geotiff, write_index_geotiff};
         let name = format!("{}.tif", layer.name);
         st.write_with(&name, |w| {
@@ -77,7 +77,7 @@ impl LayerWriter for GeoTiff {
 /// exactly the grid (the GeoTIFF's extent).
 pub(crate) struct MapPicture;
 impl LayerWriter for MapPicture {
-    fn write(&self, st: &mut Staging, cx: &Context, layer: &LayerOut) -> Result<Vec<String>, Error> {
+    fn write(&self, st: &Staging, cx: &Context, layer: &LayerOut) -> Result<Vec<String>, Error> {
         if !layer.picture {
             return Ok(Vec::new());
         }
@@ -100,7 +100,7 @@ impl LayerWriter for MapPicture {
 /// georeferenced), as a PNG and as a one-page A3 landscape PDF for printing.
 pub(crate) struct Sheet;
 impl LayerWriter for Sheet {
-    fn write(&self, st: &mut Staging, cx: &Context, layer: &LayerOut) -> Result<Vec<String>, Error> {
+    fn write(&self, st: &Staging, cx: &Context, layer: &LayerOut) -> Result<Vec<String>, Error> {
         if !layer.picture {
             return Ok(Vec::new());
         }
@@ -140,7 +140,7 @@ impl LayerWriter for Sheet {
 pub(crate) const WRITERS: &[&dyn LayerWriter] = &[&GeoTiff, &MapPicture, &Sheet];
 
 /// Writes `layer` through every writer; returns the file names written.
-pub(crate) fn write_layer(st: &mut Staging, cx: &Context, layer: &LayerOut) -> Result<Vec<String>, Error> {
+pub(crate) fn write_layer(st: &Staging, cx: &Context, layer: &LayerOut) -> Result<Vec<String>, Error> {
     let mut files = Vec::new();
     for w in WRITERS {
         files.extend(w.write(st, cx, layer)?);

@@ -143,7 +143,7 @@ pub fn aggregate_json(reports: &[(String, Report)], plans: &[PlanAnswer]) -> ser
 /// Writes `cdf.csv`, `cdf.png`, `cdf.svg` and `aggregate.json` of an `aggregate` run through
 /// `st` (opened before the computation, so an unwritable folder fails early) and commits.
 pub fn write_aggregate(
-    mut st: Staging,
+    st: Staging,
     spec: &FieldSpec,
     reports: &[(String, Report)],
     plans: &[PlanAnswer],

@@ -110,7 +110,7 @@ pub fn run_assign(sc: &Scenario, out: &Path, seed: u64) -> Result<AssignResult, 
         .and_then(|n| n.to_str())
         .ok_or_else(|| Error::input(Problem::flag("--out", "needs a file name")))?;
     let dir = out.parent().filter(|p| !p.as_os_str().is_empty()).unwrap_or(Path::new("."));
-    let mut st = Staging::shared(dir, &sc.input_files())?;
+    let st = Staging::shared(dir, &sc.input_files())?;
     st.write(name, serde_json::to_string_pretty(&fc).unwrap_or_default().as_bytes())?;
     let files = st.commit()?;
     Ok(AssignResult { plan, files })

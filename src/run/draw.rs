@@ -35,7 +35,7 @@ pub fn run_draw(sc: &Scenario, out: &Path, seed: Option<u64>) -> Result<DrawResu
     let dir = out.parent().filter(|p| !p.as_os_str().is_empty()).unwrap_or(Path::new("."));
     let nodes = crate::random::layout::layout(sc, spec, seed.unwrap_or(spec.seed));
     let drawn = nodes.iter().filter(|n| n.id.starts_with("draw-")).count();
-    let mut st = Staging::shared(dir, &sc.input_files())?;
+    let st = Staging::shared(dir, &sc.input_files())?;
     st.write(name, layout_geojson(&nodes).to_string().as_bytes())?;
     let files = st.commit()?;
     Ok(DrawResult { nodes, drawn, files })

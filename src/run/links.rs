@@ -41,7 +41,7 @@ pub fn run_links(sc: &Scenario, opts: &LinksOptions) -> Result<LinksResult, Erro
     owned.extend(
         crate::model::node::peer_links(&sc.nodes).iter().map(|&(a, b)| profile_file(&sc.nodes[a].id, &sc.nodes[b].id)),
     );
-    let mut st = Staging::folder(&opts.out, &sc.input_files(), owned)?;
+    let st = Staging::folder(&opts.out, &sc.input_files(), owned)?;
     let rows = crate::jobs::links::links(sc, opts.monte_carlo);
     let sheet = crate::jobs::install::sheet(sc).map_err(|m| {
         Error::input(Problem::new(sc.path.display().to_string(), Some("[install]".into()), "declination_date", m))

@@ -14,6 +14,7 @@ use crate::jobs::zones::{hotspots, outage_zones};
 use crate::math::stats::Histogram;
 use crate::model::scenario::Scenario;
 use crate::model::units::{dbm_to_mw, mw_to_dbm, round_dp};
+use rayon::prelude::*;
 use std::path::PathBuf;
 use std::time::Instant;
 
@@ -185,7 +186,7 @@ pub fn run_map(sc: &Scenario, opts: &MapOptions) -> Result<MapResult, Error> {
         return crate::run::tiles::run_tile(sc, opts, tile);
     }
     check_memory(sc, opts.layers.count(), opts.max_memory_mib)?;
-    let mut st = Staging::folder(&opts.out, &sc.input_files(), map_file_names())?;
+    let st = Staging::folder(&opts.out, &sc.input_files(), map_file_names())?;
     let t0 = Instant::now();
     let (layers, used) = compute(sc, opts, 0..sc.grid.rows());
     let elapsed_s = t0.elapsed().as_secs_f64();
@@ -196,7 +197,7 @@ pub fn run_map(sc: &Scenario, opts: &MapOptions) -> Result<MapResult, Error> {
         cutoff_m: opts.cutoff_m,
         elapsed_s,
     };
-    let summary = write_map(&mut st, &used, &layers, &stats, &run)?;
+    let summary = write_map(&st, &used, &layers, &stats, &run)?;
     let written = st.commit()?;
     Ok(MapResult { summary, layers, files: written, write_s: t0.elapsed().as_secs_f64() - elapsed_s })
 }
@@ -305,7 +306,7 @@ impl LayerStats {
 /// Writes every output of a map computed on the whole grid (`layers`, with the statistics
 /// `stats`) into `st` and returns the summary; `map` and `merge` both end here.
 pub(crate) fn write_map(
-    st: &mut Staging,
+    st: &Staging,
     sc: &Scenario,
     layers: &Layers,
     stats: &LayerStats,
@@ -317,7 +318,6 @@ pub(crate) fn write_map(
     let footprints = sc.surface().map_or(&[][..], |s| s.outlines());
     let facts = crate::io::heatmap::sheet_facts(sc);
     let cx = Context { grid, markers: &markers, links: &links, footprints, facts: &facts, context: &sc.context.lines };
-    let mut files: Vec<String> = Vec::new();
     let present = [&layers.total, &layers.interference, &layers.coverage, &layers.sinr, &layers.server]
         .into_iter()
         .chain([&layers.visible, &layers.channel, &layers.availability])
@@ -344,21 +344,22 @@ pub(crate) fn write_map(
         range: crate::io::heatmap::layer_range(&sc.colour_scale, name, unit, data),
     };
     if let Some(t) = &layers.total {
-        put(st, &cx, &bar, &mut files, &mut outs, layer("total", "Total received", "dBm", t, Vec::new()))?;
+        outs.push(layer("total", "Total received", "dBm", t, Vec::new()));
     }
     if let (Some(i), Some(h)) = (&layers.interference, &hot) {
         let outlines = h.iter().flat_map(|h| h.region.rings_lon_lat()).collect();
-        put(st, &cx, &bar, &mut files, &mut outs, layer("interference", "Interference", "dBm", i, outlines))?;
+        outs.push(layer("interference", "Interference", "dBm", i, outlines));
     }
     if let (Some(cv), Some(z)) = (&layers.coverage, &low) {
         let title = format!("Coverage T={} dB", sc.thresholds.sinr_db);
-        put(st, &cx, &bar, &mut files, &mut outs, layer("coverage", &title, PROBABILITY, cv, outlines(z)))?;
+        outs.push(layer("coverage", &title, PROBABILITY, cv, outlines(z)));
     }
+    // The zones file stands after these layers' files in the summary's list.
+    let zones_at = outs.len();
     if hot.is_some() || low.is_some() {
         let (h, z) = (hot.as_deref().unwrap_or_default(), low.as_deref().unwrap_or_default());
         let fc = zones_geojson(grid, noise_dbm, sc.thresholds.coverage_target, h, z);
         st.write("hotspots.geojson", fc.to_string().as_bytes())?;
-        files.push("hotspots.geojson".into());
     }
     // Zones smaller than one cell are below the grid's resolution: written (flagged
     // `sub_cell`) but not counted.
@@ -367,23 +368,44 @@ pub(crate) fn write_map(
     let sub_cell_zones = hot.as_ref().map_or(0, |h| h.iter().filter(|h| h.region.is_sub_cell(grid)).count())
         + low.as_ref().map_or(0, |z| z.iter().filter(|r| r.is_sub_cell(grid)).count());
     if let Some(s) = &layers.sinr {
-        put(st, &cx, &bar, &mut files, &mut outs, layer("sinr", "Mean SINR", "dB", s, Vec::new()))?;
+        outs.push(layer("sinr", "Mean SINR", "dB", s, Vec::new()));
     }
     if let Some(v) = layers.server.as_ref().filter(|_| run.realizations <= 1) {
-        put(st, &cx, &bar, &mut files, &mut outs, layer("server", "Best server", "", v, Vec::new()))?;
+        outs.push(layer("server", "Best server", "", v, Vec::new()));
     }
     if let Some(v) = &layers.visible {
         let title = "Nodes in line of sight";
-        put(st, &cx, &bar, &mut files, &mut outs, layer("visible", title, "nodes", v, Vec::new()))?;
+        outs.push(layer("visible", title, "nodes", v, Vec::new()));
     }
     if let Some(v) = layers.channel.as_ref().filter(|_| run.realizations <= 1) {
-        put(st, &cx, &bar, &mut files, &mut outs, layer("channel", "Server's channel", "", v, Vec::new()))?;
+        outs.push(layer("channel", "Server's channel", "", v, Vec::new()));
     }
     let target_pct = sc.weather().target_pct;
     if let Some(a) = &layers.availability {
         let below = outlines(&short_of_target(grid, a, target_pct));
-        put(st, &cx, &bar, &mut files, &mut outs, layer("availability", "Availability", AVAILABILITY, a, below))?;
+        outs.push(layer("availability", "Availability", AVAILABILITY, a, below));
     }
+    // Every layer through every writer, two layers at a time (each writes its own files; at
+    // most two layers' pictures and encodings are held at once), listed in layer order.
+    let mut per_layer: Vec<Vec<String>> = Vec::with_capacity(outs.len());
+    for pair in outs.chunks(2) {
+        let done: Vec<Result<Vec<String>, Error>> = pair
+            .par_iter()
+            .map(|l| {
+                let f = write_layer(st, &cx, l);
+                bar.inc(1);
+                f
+            })
+            .collect();
+        for d in done {
+            per_layer.push(d?);
+        }
+    }
+    let mut files: Vec<String> = per_layer[..zones_at].concat();
+    if hot.is_some() || low.is_some() {
+        files.push("hotspots.geojson".into());
+    }
+    files.extend(per_layer[zones_at..].concat());
     st.write("layout.geojson", layout_geojson(&sc.nodes).to_string().as_bytes())?;
     files.push("layout.geojson".into());
     let field = site_kmz(sc, &outs, hot.as_deref().unwrap_or_default())
@@ -398,21 +420,6 @@ pub(crate) fn write_map(
     st.write("summary.json", json.as_bytes())?;
     bar.finish_and_clear();
     Ok(summary)
-}
-
-/// Writes `l` through every writer, notes its files and keeps it for the field file.
-fn put<'a>(
-    st: &mut Staging,
-    cx: &Context,
-    bar: &indicatif::ProgressBar,
-    files: &mut Vec<String>,
-    outs: &mut Vec<LayerOut<'a>>,
-    l: LayerOut<'a>,
-) -> Result<(), Error> {
-    files.extend(write_layer(st, cx, &l)?);
-    outs.push(l);
-    bar.inc(1);
-    Ok(())
 }
 
 /// The field file of a map run: the picture layers `map` wrote, nodes with what the

@@ -232,7 +232,7 @@ pub fn run_merge(opts: &MergeOptions) -> Result<MergeResult, Error> {
     };
     let mut owned = map_file_names();
     owned.extend(crate::run::map::MAP_STEMS.iter().map(|s| format!("{s}.vrt")));
-    let mut st = Staging::folder(&opts.out, &sc.input_files(), owned)?;
+    let st = Staging::folder(&opts.out, &sc.input_files(), owned)?;
     for (name, xml) in &vrts {
         st.write(name, xml.as_bytes())?;
     }
@@ -242,7 +242,7 @@ pub fn run_merge(opts: &MergeOptions) -> Result<MergeResult, Error> {
         cutoff_m: first.cutoff_m,
         elapsed_s,
     };
-    let summary = write_map(&mut st, &used, &layers, &stats, &run)?;
+    let summary = write_map(&st, &used, &layers, &stats, &run)?;
     let files = st.commit()?;
     Ok(MergeResult { summary, tiles: tiles.len(), files })
 }

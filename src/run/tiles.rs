@@ -170,7 +170,7 @@ pub(crate) fn run_tile(sc: &Scenario, opts: &MapOptions, tile: Tile) -> Result<M
     std::fs::create_dir_all(&opts.out).map_err(|e| Error::Output { path: opts.out.clone(), source: e })?;
     let dir = opts.out.join(tile.folder());
     let owned = crate::run::map::MAP_STEMS.iter().map(|s| format!("{s}.tif")).chain([MANIFEST.to_string()]).collect();
-    let mut st = Staging::folder(&dir, &sc.input_files(), owned)?;
+    let st = Staging::folder(&dir, &sc.input_files(), owned)?;
     let t0 = Instant::now();
     // An ensemble leaves the server index out, as in `map`.
     let (layers, used) = compute(sc, opts, span.clone());
