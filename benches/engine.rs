@@ -2,7 +2,9 @@
 //!
 //! `cargo bench --bench engine` (add `-- --quick` for a short run). Seeded synthetic layout:
 //! sector antennas (30°, 20/−5 dBi) with random boresights, uniform over a 4 km square,
-//! close-in model with exponent 2 (free-space law), no cutoff: every node at every cell.
+//! close-in model with exponent 2 (free-space law), no cutoff: every node at every cell; one
+//! case with parabolic dishes (3°, 34/−5 dBi), which the engine evaluates through its gain
+//! table.
 
 use lobemap::engine::{Engine, LayerSet, Options};
 use lobemap::geometry::frame::LocalFrame;
@@ -16,9 +18,12 @@ use std::time::Instant;
 mod fixtures;
 
 fn layout(nodes: usize, cells_side: usize, exponent: f64, aimed: bool) -> Scenario {
+    layout_with(Pattern::sector(30.0, 20.0, -5.0).unwrap(), nodes, cells_side, exponent, aimed)
+}
+
+fn layout_with(pattern: Pattern, nodes: usize, cells_side: usize, exponent: f64, aimed: bool) -> Scenario {
     let frame = LocalFrame::new(45.0, 7.0);
     let half = 2000.0;
-    let pattern = Pattern::sector(30.0, 20.0, -5.0).unwrap();
     let nodes = fixtures::random_nodes(&frame, nodes, half, 1, "", pattern, 20.0, 6.0, 1.0);
     let grid = Grid::new(fixtures::square(&frame, half), 2.0 * half / cells_side as f64).unwrap();
     let rx = if aimed {
@@ -101,6 +106,8 @@ fn main() {
     measure("total, sector, exponent 3", &sc3, total, reps);
     let sc35 = layout(1000, 500, 3.5, false);
     measure("total, sector, exponent 3.5 (log2/exp2 path)", &sc35, total, reps);
+    let dish = layout_with(Pattern::parabolic(3.0, 34.0, -5.0).unwrap(), 1000, 500, 2.0, false);
+    measure("total, parabolic 3°, exponent 2 (gain table)", &dish, total, reps);
     let cells = sc.grid().cells() as f64;
     println!(
         "memory estimate for 4 layers: {:.1} bytes per cell (layers at 4 bytes each plus row buffers)",
