@@ -1,7 +1,8 @@
 //! The print sheet: the annotated map of a layer on one landscape page (A3, 420 × 297 mm),
 //! centred inside 10 mm margins at the largest scale that fits, as a lossless DEFLATE image
 //! (PDF 1.7, ISO 32000-1: image XObject, section 8.9; FlateDecode, 7.4.4) drawn at
-//! [`PRINT_PPI`] or more. Written with the `pdf-writer` crate; compressed with `flate2` on its zlib-rs backend.
+//! [`PRINT_PPI`] or more. Written with the `pdf-writer` crate; compressed with `flate2` on
+//! its zlib-rs backend.
 
 use pdf_writer::{Content, Filter, Finish, Name, Pdf, Rect, Ref, TextStr};
 
