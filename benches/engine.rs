@@ -107,7 +107,7 @@ fn main() {
     let sc35 = layout(1000, 500, 3.5, false);
     measure("total, sector, exponent 3.5 (log2/exp2 path)", &sc35, total, reps);
     let dish = layout_with(Pattern::parabolic(3.0, 34.0, -5.0).unwrap(), 1000, 500, 2.0, false);
-    measure("total, parabolic 3°, exponent 2 (gain table)", &dish, total, reps);
+    measure("total, parabolic 3°, exponent 2 (closed form)", &dish, total, reps);
     let cells = sc.grid().cells() as f64;
     println!(
         "memory estimate for 4 layers: {:.1} bytes per cell (layers at 4 bytes each plus row buffers)",

@@ -532,6 +532,7 @@ impl Engine<'_> {
                 p_side: weight as f32,
                 act: 1.0,
                 lut: None,
+                dish: None,
                 idx: u32::MAX,
                 beta_log2e,
                 p_max: 0.0,
@@ -595,7 +596,10 @@ impl Engine<'_> {
                         n.p_main -= n.p_side;
                         n.p_side = 0.0;
                     }
-                    SegKind::Table { lut, .. } => n.lut = Some(self.luts.len() + lut),
+                    SegKind::Table { lut, .. } => {
+                        n.lut = Some(self.luts.len() + lut);
+                        n.dish = None;
+                    }
                 }
                 inc.push(n);
             }

@@ -28,14 +28,24 @@ impl<'s> Engine<'s> {
                 let pl = sc.pathloss_of(n);
                 let k_inv = db_to_lin(-pl.loss_at_1m_db());
                 let p = dbm_to_mw(n.power_dbm) * k_inv;
-                let (p_main, p_side, lut) = match n.pattern.kernel() {
-                    GainForm::Flat { main_dbi, side_dbi } => (p * db_to_lin(main_dbi), p * db_to_lin(side_dbi), None),
-                    GainForm::Table => {
-                        let pos = luts.iter().position(|(q, _)| *q == n.pattern).unwrap_or_else(|| {
-                            luts.push((n.pattern, n.pattern.gain_table_over_half_angle_sine(LUT_LEN)));
-                            luts.len() - 1
-                        });
-                        (p * db_to_lin(n.pattern.max_gain_dbi()), p, Some(pos))
+                let mut table = || {
+                    luts.iter().position(|(q, _)| *q == n.pattern).unwrap_or_else(|| {
+                        luts.push((n.pattern, n.pattern.gain_table_over_half_angle_sine(LUT_LEN)));
+                        luts.len() - 1
+                    })
+                };
+                let (p_main, p_side, lut, dish) = match n.pattern.kernel() {
+                    GainForm::Flat { main_dbi, side_dbi } => {
+                        (p * db_to_lin(main_dbi), p * db_to_lin(side_dbi), None, None)
+                    }
+                    GainForm::Table => (p * db_to_lin(n.pattern.max_gain_dbi()), p, Some(table()), None),
+                    // 10^(−1.2 (φ/θ)²) = 2^(−k φ²), φ in radians, down to the floor's share of the
+                    // boresight gain; `p_side` stays the bare power, as for a table (the far
+                    // field evaluates the node through its table).
+                    GainForm::Parabolic { beamwidth_deg, gain_dbi, floor_dbi } => {
+                        let k = 1.2 * std::f64::consts::LOG2_10 / beamwidth_deg.to_radians().powi(2);
+                        let floor = db_to_lin(floor_dbi - gain_dbi);
+                        (p * db_to_lin(gain_dbi), p, Some(table()), Some((k as f32, floor as f32)))
                     }
                 };
                 NodeK {
@@ -51,6 +61,7 @@ impl<'s> Engine<'s> {
                     p_side: p_side as f32,
                     act: n.activity as f32,
                     lut,
+                    dish,
                     idx: i as u32,
                     beta_log2e: pl.beta_per_m() as f32 * std::f32::consts::LOG2_E,
                     p_max: p * db_to_lin(n.pattern.max_gain_dbi()),

@@ -9,6 +9,27 @@ use crate::model::fading::KernelForm;
 use crate::model::units::db_to_lin;
 use rstar::AABB;
 
+/// Runs `$call` with node `$n`'s transmit gain bound to `$g`: the closed-form dish, the gain
+/// table, or the two flat levels (each a type, so every pass is monomorphised for each).
+macro_rules! by_gain {
+    ($e:expr, $n:expr, |$g:ident| $call:expr) => {
+        match ($n.dish, $n.lut) {
+            (Some(k), _) => {
+                let $g = Dish(k);
+                $call
+            }
+            (None, Some(t)) => {
+                let $g = Table(&$e.luts[t]);
+                $call
+            }
+            (None, None) => {
+                let $g = Flat;
+                $call
+            }
+        }
+    };
+}
+
 /// One row: the grid row, the layers wanted, the cutoff and the row's output slices.
 pub(crate) struct RowJob<'a> {
     pub(crate) r: usize,
@@ -91,11 +112,10 @@ pub(crate) fn row_body<D: Decay, A: PairFactor, C: RxCoupling>(
         }
         for &k in &cand {
             let n = &e.nodes[k];
-            match (n.lut, full) {
-                (None, true) => pass_full(d.for_node(n), Flat, a, n, b),
-                (Some(t), true) => pass_full(d.for_node(n), Table(&e.luts[t]), a, n, b),
-                (None, false) => pass_sum(d.for_node(n), Flat, a, n, &b.xs, &b.ys, &mut b.other),
-                (Some(t), false) => pass_sum(d.for_node(n), Table(&e.luts[t]), a, n, &b.xs, &b.ys, &mut b.other),
+            if full {
+                by_gain!(e, n, |g| pass_full(d.for_node(n), g, a, n, b));
+            } else {
+                by_gain!(e, n, |g| pass_sum(d.for_node(n), g, a, n, &b.xs, &b.ys, &mut b.other));
             }
             pairs += cols as u64;
         }
@@ -139,10 +159,7 @@ pub(crate) fn row_body<D: Decay, A: PairFactor, C: RxCoupling>(
             None => {
                 for &k in &cand {
                     let n = &e.nodes[k];
-                    match n.lut {
-                        None => pass_aimed(d.for_node(n), Flat, a, cp, n, rx, b),
-                        Some(t) => pass_aimed(d.for_node(n), Table(&e.luts[t]), a, cp, n, rx, b),
-                    }
+                    by_gain!(e, n, |g| pass_aimed(d.for_node(n), g, a, cp, n, rx, b));
                     pairs += cols as u64;
                 }
             }
@@ -161,10 +178,7 @@ pub(crate) fn row_body<D: Decay, A: PairFactor, C: RxCoupling>(
                     let n = &e.nodes[k];
                     let ci = class[k] as usize;
                     std::mem::swap(&mut b.iacc, &mut b.iacc_cls[ci]);
-                    match n.lut {
-                        None => pass_aimed(d.for_node(n), Flat, a, CoChannel, n, rx, b),
-                        Some(t) => pass_aimed(d.for_node(n), Table(&e.luts[t]), a, CoChannel, n, rx, b),
-                    }
+                    by_gain!(e, n, |g| pass_aimed(d.for_node(n), g, a, CoChannel, n, rx, b));
                     std::mem::swap(&mut b.iacc, &mut b.iacc_cls[ci]);
                     pairs += cols as u64;
                 }
@@ -203,10 +217,7 @@ pub(crate) fn row_body<D: Decay, A: PairFactor, C: RxCoupling>(
             let n = &e.nodes[k];
             macro_rules! lt_pass {
                 ($lt:expr) => {
-                    match n.lut {
-                        None => pass_cov_exact(d.for_node(n), Flat, a, cp, $lt, n, rx, b),
-                        Some(t) => pass_cov_exact(d.for_node(n), Table(&e.luts[t]), a, cp, $lt, n, rx, b),
-                    }
+                    by_gain!(e, n, |g| pass_cov_exact(d.for_node(n), g, a, cp, $lt, n, rx, b))
                 };
             }
             if exact {
@@ -218,10 +229,7 @@ pub(crate) fn row_body<D: Decay, A: PairFactor, C: RxCoupling>(
                 }
             } else {
                 let coef = n.act * e2 - n.act * n.act * e1 * e1;
-                match n.lut {
-                    None => pass_cov_strong(d.for_node(n), Flat, a, cp, n, rx, coef, b),
-                    Some(t) => pass_cov_strong(d.for_node(n), Table(&e.luts[t]), a, cp, n, rx, coef, b),
-                }
+                by_gain!(e, n, |g| pass_cov_strong(d.for_node(n), g, a, cp, n, rx, coef, b));
             }
             pairs += cols as u64;
         }

@@ -94,6 +94,16 @@ pub enum GainForm {
     },
     /// A table over s = sin(φ/2) ([`Pattern::gain_table_over_half_angle_sine`]).
     Table,
+    /// A parabolic main lobe G = gain − 12 (φ/HPBW)² down to a floor, evaluated in closed form
+    /// from sin²(φ/2) (the engine's `Dish`; the table is still built for the far field).
+    Parabolic {
+        /// Half-power beamwidth, degrees.
+        beamwidth_deg: f64,
+        /// Boresight gain, dBi.
+        gain_dbi: f64,
+        /// Floor, dBi.
+        floor_dbi: f64,
+    },
 }
 
 /// A discrete gain law: (probability, linear gain) levels, probabilities summing to 1.

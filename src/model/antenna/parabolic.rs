@@ -42,8 +42,18 @@ impl AntennaPattern for Parabolic {
     fn floor_dbi(&self) -> f64 {
         self.floor_dbi
     }
+    /// The closed form where the lobe meets its floor within 60° of boresight (where the
+    /// engine's series for φ² holds to 0.01 dB); the table beyond.
     fn kernel(&self) -> GainForm {
-        GainForm::Table
+        if self.floor_angle_deg() <= 60.0 {
+            GainForm::Parabolic {
+                beamwidth_deg: self.beamwidth_deg,
+                gain_dbi: self.gain_dbi,
+                floor_dbi: self.floor_dbi,
+            }
+        } else {
+            GainForm::Table
+        }
     }
     /// The main lobe [0, φ_floor] by 32-point Gauss–Legendre in φ (each node a level of
     /// probability w/180°), the floor beyond as one level.
