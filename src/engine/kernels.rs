@@ -296,8 +296,8 @@ impl TxGain for Dish {
         // In front, |w| − b·w = (b × w)² / (|w| + b·w): no cancellation near boresight,
         // where the narrowest lobes need u to a few ulps.
         let c = n.bx * wy - n.by * wx;
-        let u = if t > 0.0 { c * c / (2.0 * w * (w + t)) } else { (w - t) / (2.0 * w) };
-        let u = if w > 0.0 { u.clamp(0.0, 1.0) } else { 0.0 };
+        let (num, den) = if t > 0.0 { (c * c, 2.0 * w * (w + t)) } else { (w - t, 2.0 * w) };
+        let u = if w > 0.0 { (num / den).clamp(0.0, 1.0) } else { 0.0 };
         let series =
             1.0 + u * (1.0 / 3.0 + u * (8.0 / 45.0 + u * (4.0 / 35.0 + u * (128.0 / 1575.0 + u * (512.0 / 8316.0)))));
         let phi2 = 4.0 * u * series;
