@@ -157,18 +157,21 @@ impl Grid {
     /// Estimated peak memory in bytes for computing and writing `layers` float32 layers: 4
     /// bytes a cell a layer, 4 more a cell for the zone contours (a below-level copy of the
     /// coverage layer), per-thread row buffers, 32 MiB for the heatmap image (at most
-    /// about 2600 × 2400 RGB), the PNG encoder and the program itself, and 21 MiB for the print
-    /// sheet's picture (drawn after the screen one is dropped). Measured peaks on the
-    /// demo at 2, 1 and 0.5 m cells (0.56, 2.3 and 9.0 million cells, five layers) were 23,
-    /// 65 and 220 MB against estimates of 47, 88 and 250 MB (BENCHMARKS.md).
+    /// about 2600 × 2400 RGB), the PNG encoder and the program itself, and 61 MiB for the
+    /// pictures of the two layers written at once (each a print sheet's picture of 21 MiB,
+    /// drawn after its screen picture is dropped; the second layer's screen picture). Measured
+    /// peaks of the demo's map (surface, channels, rain, every default layer) at 4, 2 and 1 m
+    /// cells were 65–76, 141 and 378 MiB against estimates of 127, 230 and 483 MiB
+    /// (BENCHMARKS.md).
     pub fn estimate_bytes(&self, layers: usize, threads: usize) -> u64 {
         let cells = self.cells() as u64;
         // `engine::kernels::RowBufs`: 13 four-byte arrays a column, plus the strong set's 8
         // powers and 8 node indices.
         let row_scratch = (self.cols as u64).saturating_mul(4 * 29).saturating_mul(threads as u64);
         // The print sheet's picture: at most the A3 page's printable 15.7 × 10.9 in at 200 ppi
-        // (`io::pdf`), 3150 × 2185 RGB pixels, 21 MiB.
-        let print_sheet = 21 << 20;
+        // (`io::pdf`), 3150 × 2185 RGB pixels, 21 MiB; two layers are written at once
+        // (`run::map::write_map`), so twice that and a second screen picture (19 MiB).
+        let print_sheet = (2 * 21 + 19) << 20;
         cells
             .saturating_mul(4 * layers as u64 + 4)
             .saturating_add(row_scratch)
