@@ -346,17 +346,13 @@ fn parse_feature(
     let peer = text("peer");
     let name = text("name");
     let pol_name = text("polarisation");
+    // The channel names a node may give, for the messages of `channel` and `allowed_channels`.
+    let channel_names: Vec<String> = channels.iter().map(|n| format!("`{n}`")).collect();
+    let channel_names = format!("{} ([channels] names, `radio` for the [radio] carrier)", channel_names.join(", "));
     let channel = match text("channel") {
         None => 0,
         Some(c) => channels.iter().position(|n| *n == c).unwrap_or_else(|| {
-            let names: Vec<String> = channels.iter().map(|n| format!("`{n}`")).collect();
-            push(
-                "channel",
-                format!(
-                    "value `{c}` names no channel; allowed: {} ([channels] names, `radio` for the [radio] carrier)",
-                    names.join(", ")
-                ),
-            );
+            push("channel", format!("value `{c}` names no channel; allowed: {channel_names}"));
             0
         }),
     };
@@ -396,8 +392,6 @@ fn parse_feature(
             _ => Some(format!("value {v} is not a non-empty list of names; allowed names: {allowed}")),
         }
     };
-    let channel_names: Vec<String> = channels.iter().map(|n| format!("`{n}`")).collect();
-    let channel_names = format!("{} ([channels] names, `radio` for the [radio] carrier)", channel_names.join(", "));
     if let Some(m) = list_of("allowed_channels", &|x| channels.iter().any(|c| c == x), &channel_names) {
         push("allowed_channels", m);
     }
