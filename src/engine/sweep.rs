@@ -21,6 +21,7 @@
 //! out of it, so one buffer serves the power and the `visible` count.
 
 use crate::math::fastmath::{fast_exp2, fast_log2};
+use crate::math::simd::multiversion;
 use crate::model::obstruction::EARTH_RADIUS_M;
 use crate::model::surface::Surface;
 
@@ -34,19 +35,6 @@ pub(crate) struct SweepNode {
 
 /// Lower than any slope: no obstacle yet.
 const NONE: f32 = -1e30;
-
-/// Knife-edge loss J(ν) in float32 (ITU-R P.526-16 eq. 31), 0 for ν ≤ −0.78, with the
-/// crate's arithmetic log2 (no libm call, whose result could depend on the instruction set).
-#[inline]
-fn knife_edge_f32(nu: f32) -> f32 {
-    if nu <= -0.78 {
-        0.0
-    } else {
-        let v = nu - 0.1;
-        // 20 log10(x) = 20 log10(2) · log2(x).
-        6.9 + 6.020_6 * fast_log2((v * v + 1.0).sqrt() + v)
-    }
-}
 
 /// The sweep's constants.
 pub(crate) struct SweepSpec<'a> {
@@ -142,28 +130,55 @@ pub(crate) fn sweep(sp: &SweepSpec<'_>, nd: &SweepNode, out: &mut [f32], scratch
         (clo..=chi).rev().for_each(|c| cast(rhi, c));
     }
     ((rlo + 1).max(br0)..rhi.min(br1)).rev().for_each(|r| cast(r, clo));
-    // The verdict of each band cell from its ray's horizon, at the cell's centre.
-    let (cap, lambda) = (s.cap_db as f32, sp.wavelength_m);
-    for (o, f) in out.iter_mut().enumerate() {
-        let (r, c) = (o / map_cols + br0, o % map_cols + mc0);
-        let (dx, dy) = (c as f32 + 0.5 - u, r as f32 + 0.5 - v);
-        let d = (dx * dx + dy * dy).sqrt() * cell;
-        let [h, hd] = st[o];
-        *f = if h <= NONE || d <= 0.0 {
-            1.0
-        } else {
-            let srx = (sp.zr[o] - d * d * inv_2ka - z) / d;
-            let los = srx > h;
-            let j = if hd > 0.0 && hd < d {
-                let nu = hd * (h - srx) * (2.0 * d / (lambda * hd * (d - hd))).sqrt();
-                knife_edge_f32(nu).min(cap)
-            } else {
-                0.0
-            };
-            // 10^(−J/10) = 2^(−J · log2(10)/10).
-            let f = if j > 0.0 { fast_exp2(-j * 0.332_192_8) } else { 1.0 };
-            if los { f } else { -f }
-        };
+    // The verdict of each band cell from its ray's horizon, at the cell's centre, a row at a
+    // time in a vectorised loop.
+    let vc =
+        VerdictConsts { cap: s.cap_db as f32, lambda: sp.wavelength_m, cell, inv_2ka, z, x0: mc0 as f32 + 0.5 - u };
+    for (k, ((orow, srow), zrow)) in
+        out.chunks_mut(map_cols).zip(st.chunks(map_cols)).zip(sp.zr.chunks(map_cols)).enumerate()
+    {
+        let dy = (k + br0) as f32 + 0.5 - v;
+        verdict_row(&vc, dy, srow, zrow, orow);
+    }
+}
+
+/// The constants of [`verdict_row`].
+struct VerdictConsts {
+    cap: f32,
+    lambda: f32,
+    cell: f32,
+    inv_2ka: f32,
+    z: f32,
+    /// The first map column's centre east of the node, cells.
+    x0: f32,
+}
+
+multiversion!(fn verdict_row(vc: &VerdictConsts, dy: f32, st: &[[f32; 2]], zr: &[f32], out: &mut [f32]) -> () => verdict_row_body);
+
+/// One band row's signed factors from each cell's horizon (slope, distance) `st`: every lane
+/// computes every step and selects at the end (no branch, so the loop vectorises; the selected
+/// values are the same IEEE operations as a branchy form).
+#[inline(always)]
+fn verdict_row_body(vc: &VerdictConsts, dy: f32, st: &[[f32; 2]], zr: &[f32], out: &mut [f32]) {
+    let n = out.len().min(st.len()).min(zr.len());
+    let (out, st, zr) = (&mut out[..n], &st[..n], &zr[..n]);
+    for j in 0..n {
+        let dx = vc.x0 + j as f32;
+        let d = (dx * dx + dy * dy).sqrt() * vc.cell;
+        let [h, hd] = st[j];
+        let srx = (zr[j] - d * d * vc.inv_2ka - vc.z) / d;
+        let los = srx > h;
+        let nu = hd * (h - srx) * (2.0 * d / (vc.lambda * hd * (d - hd))).sqrt();
+        let w = nu - 0.1;
+        // 20 log10(x) = 20 log10(2) · log2(x); ITU-R P.526-16 eq. 31, 0 for ν ≤ −0.78.
+        let knife = 6.9 + 6.020_6 * fast_log2((w * w + 1.0).sqrt() + w);
+        let edge = hd > 0.0 && hd < d && nu > -0.78;
+        let jl = if edge { knife.min(vc.cap) } else { 0.0 };
+        // 10^(−J/10) = 2^(−J · log2(10)/10).
+        let e = fast_exp2(-jl * 0.332_192_8);
+        let f = if jl > 0.0 { e } else { 1.0 };
+        let f = if los { f } else { -f };
+        out[j] = if h <= NONE || d <= 0.0 { 1.0 } else { f };
     }
 }
 
