@@ -326,3 +326,60 @@ fn site_line_of_sight_follows_the_boolean_model_of_its_footprints() {
         assert!((l.measured - l.model).abs() < 0.05, "{l:?}");
     }
 }
+
+/// A node drawn inside a footprint stands on the roof, `[antenna] height_m` above it; one
+/// drawn outside stands that high above the ground. The footprints are read here from the
+/// GeoJSON with `geo`'s point-in-polygon test (not lobemap's raster); nodes within 6 m of a
+/// footprint's outline are left out, as the raster decides by the cell (4 m) centre there.
+#[test]
+fn drawn_nodes_inside_footprints_stand_on_the_roof() {
+    use geo::{Contains, Distance, Euclidean};
+    let d = tempfile::tempdir().unwrap();
+    for f in ["buildings.geojson", "context.geojson", "ground.tif", "nodes.geojson"] {
+        std::fs::copy(Path::new("sites/harbourlight").join(f), d.path().join(f)).unwrap();
+    }
+    let toml = std::fs::read_to_string("sites/harbourlight/scenario.toml").unwrap()
+        + "\n[draw]\ndensity_per_km2 = 4000\nmode = \"replace\"\nseed = 7\n";
+    std::fs::write(d.path().join("s.toml"), toml).unwrap();
+    let out = d.path().join("drawn.geojson");
+    let o = run(&["draw", d.path().join("s.toml").to_str().unwrap(), "--out", out.to_str().unwrap(), "--quiet"]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    let fc: serde_json::Value =
+        serde_json::from_str(&std::fs::read_to_string("sites/harbourlight/buildings.geojson").unwrap()).unwrap();
+    let footprints: Vec<(geo::Polygon<f64>, f64)> = fc["features"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|f| {
+            assert_eq!(f["geometry"]["type"], "Polygon");
+            let ring: Vec<(f64, f64)> = f["geometry"]["coordinates"][0]
+                .as_array()
+                .unwrap()
+                .iter()
+                .map(|p| (p[0].as_f64().unwrap(), p[1].as_f64().unwrap()))
+                .collect();
+            (geo::Polygon::new(ring.into(), vec![]), f["properties"]["height_m"].as_f64().unwrap())
+        })
+        .collect();
+    let layout: serde_json::Value = serde_json::from_str(&std::fs::read_to_string(&out).unwrap()).unwrap();
+    let (mut on_roofs, mut on_ground) = (0, 0);
+    for n in layout["features"].as_array().unwrap() {
+        let c = &n["geometry"]["coordinates"];
+        let (lon, lat) = (c[0].as_f64().unwrap(), c[1].as_f64().unwrap());
+        let p = geo::Point::new(lon, lat);
+        // Degrees to metres near 45.5° N (common practice: 111.32 km a degree of latitude).
+        let near_edge = footprints.iter().any(|(fp, _)| {
+            let deg = Euclidean.distance(&p, fp.exterior());
+            deg * 111_320.0 * (45.5f64.to_radians().cos()) < 6.0
+        });
+        if near_edge {
+            continue;
+        }
+        let roof = footprints.iter().filter(|(fp, _)| fp.contains(&p)).map(|(_, h)| *h).fold(0.0, f64::max);
+        let h = n["properties"]["height_m"].as_f64().unwrap();
+        // The lattice keeps altitudes in float32 (a step of 4e-6 m near 40 m): 1e-4 m.
+        assert!((h - (5.0 + roof)).abs() < 1e-4, "node at {lon}, {lat}: height_m {h}, roof {roof} m");
+        if roof > 0.0 { on_roofs += 1 } else { on_ground += 1 }
+    }
+    assert!(on_roofs >= 5 && on_ground >= 20, "{on_roofs} on roofs, {on_ground} on the ground");
+}

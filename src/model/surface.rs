@@ -122,6 +122,13 @@ impl Surface {
         let r = (v.max(0.0) as usize).min(self.rows - 1);
         r * self.cols + c
     }
+    /// Height of the roof above the ground at a point inside a footprint (the highest where
+    /// footprints overlap), m; `None` outside every footprint.
+    pub fn roof_height_m(&self, lon: f64, lat: f64) -> Option<f64> {
+        let k = self.at(lon, lat);
+        (self.building[k] != NO_BUILDING).then(|| (self.top[k] - self.ground[k]) as f64)
+    }
+
     /// Ground elevation at a point, m.
     pub fn ground_m(&self, lon: f64, lat: f64) -> f64 {
         self.ground[self.at(lon, lat)] as f64

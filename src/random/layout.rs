@@ -80,7 +80,8 @@ pub fn layout(sc: &Scenario, spec: &DrawSpec, seed: u64) -> Vec<Node> {
             azimuth_deg: az,
             pattern,
             power_dbm,
-            height_m,
+            // A node drawn inside a footprint is mounted on the roof, `height_m` above it.
+            height_m: height_m + sc.surface().and_then(|s| s.roof_height_m(lon, lat)).unwrap_or(0.0),
             activity,
             peer: None,
             name: None,
