@@ -489,3 +489,41 @@ fn context_layers_are_drawn_and_checked() {
         assert!(e.contains("streets.geojson") && e.contains("feature 0") && e.contains(field), "{e}");
     }
 }
+
+/// Every planned link over the demo's surface gets its profile as SVG and as PNG. GDAL's PNG
+/// driver (gdalinfo) reads each PNG as 900 × 360 RGB, and the pixels (decoded by the `image`
+/// crate) hold the drawing: the ray's blue and the ground's brown (`io/profile.rs` colours).
+#[test]
+fn link_profiles_come_as_svg_and_png() {
+    let d = tempfile::tempdir().unwrap();
+    let out = d.path().join("l");
+    let o = run(&["links", "sites/harbourlight/scenario.toml", "--out", out.to_str().unwrap(), "--no-maps", "--quiet"]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    let mut stems: Vec<String> = std::fs::read_dir(&out)
+        .unwrap()
+        .filter_map(|e| e.unwrap().file_name().into_string().ok())
+        .filter_map(|n| n.strip_suffix(".svg").filter(|s| s.starts_with("profile-")).map(String::from))
+        .collect();
+    stems.sort();
+    // The demo plans 14 links.
+    assert_eq!(stems.len(), 14, "{stems:?}");
+    for stem in &stems {
+        let png = out.join(format!("{stem}.png"));
+        let img = image::open(&png).unwrap_or_else(|e| panic!("{stem}.png: {e}")).to_rgb8();
+        assert_eq!(img.dimensions(), (900, 360));
+        let has = |rgb: [u8; 3]| img.pixels().filter(|p| p.0 == rgb).count();
+        assert!(has([24, 86, 140]) > 200, "{stem}: no ray drawn");
+        // The ground is drawn at 90 % over white: red well above blue.
+        assert!(img.pixels().filter(|p| p.0[0] as i32 > p.0[2] as i32 + 40).count() > 1000, "{stem}: no ground drawn");
+    }
+    if have("gdalinfo") {
+        for stem in &stems {
+            let g = gdalinfo(&out.join(format!("{stem}.png")));
+            assert_eq!(g["driverShortName"], "PNG");
+            assert_eq!((g["size"][0].as_u64(), g["size"][1].as_u64()), (Some(900), Some(360)));
+            assert_eq!(g["bands"].as_array().unwrap().len(), 3);
+        }
+    } else {
+        skip("gdalinfo");
+    }
+}

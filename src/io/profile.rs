@@ -1,4 +1,4 @@
-//! The path profile of one link as an SVG: ground and buildings raised by the Earth bulge,
+//! The path profile of one link as an SVG and a PNG (the same drawing): ground and buildings raised by the Earth bulge,
 //! the bulge itself, the straight ray between the antennas and the first Fresnel ellipse
 //! around it, with the link's verdict in the title.
 
@@ -108,6 +108,18 @@ fn draw<DB: DrawingBackend>(root: DrawingArea<DB, Shift>, sp: &ProfileSpec) -> R
 pub fn svg(sp: &ProfileSpec) -> Result<String, String> {
     register_font();
     let mut s = String::new();
-    draw(SVGBackend::with_string(&mut s, (900, 360)).into_drawing_area(), sp)?;
+    draw(SVGBackend::with_string(&mut s, SIZE).into_drawing_area(), sp)?;
     Ok(s)
+}
+
+/// Profile pictures' size, pixels (the SVG's user units and the PNG's pixels).
+const SIZE: (u32, u32) = (900, 360);
+
+/// Renders the profile as a PNG of the same drawing as [`svg`], for viewers, documents and
+/// printers that take no SVG.
+pub fn png(sp: &ProfileSpec) -> Result<Vec<u8>, String> {
+    register_font();
+    let mut rgb = vec![0u8; (SIZE.0 * SIZE.1 * 3) as usize];
+    draw(BitMapBackend::with_buffer(&mut rgb, SIZE).into_drawing_area(), sp)?;
+    crate::io::heatmap::rgb_png(SIZE.0, SIZE.1, &rgb)
 }

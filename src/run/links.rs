@@ -38,9 +38,10 @@ pub struct LinksResult {
 pub fn run_links(sc: &Scenario, opts: &LinksOptions) -> Result<LinksResult, Error> {
     let mut owned =
         ["links.csv", "links.geojson", "install.csv", "install.json", "report.html"].map(String::from).to_vec();
-    owned.extend(
-        crate::model::node::peer_links(&sc.nodes).iter().map(|&(a, b)| profile_file(&sc.nodes[a].id, &sc.nodes[b].id)),
-    );
+    owned.extend(crate::model::node::peer_links(&sc.nodes).iter().flat_map(|&(a, b)| {
+        let stem = profile_file(&sc.nodes[a].id, &sc.nodes[b].id);
+        [format!("{stem}.svg"), format!("{stem}.png")]
+    }));
     let st = Staging::folder(&opts.out, &sc.input_files(), owned)?;
     let rows = crate::jobs::links::links(sc, opts.monte_carlo);
     let sheet = crate::jobs::install::sheet(sc).map_err(|m| {
@@ -138,10 +139,11 @@ pub fn run_links(sc: &Scenario, opts: &LinksOptions) -> Result<LinksResult, Erro
     }
     let profiles = link_profiles(sc, &rows)
         .map_err(|e| Error::Output { path: opts.out.join("report.html"), source: std::io::Error::other(e) })?;
-    for (name, p) in &profiles {
-        st.write(name, p.svg.as_bytes())?;
+    for (name, p, png) in &profiles {
+        st.write(&format!("{name}.svg"), p.svg.as_bytes())?;
+        st.write(&format!("{name}.png"), png)?;
     }
-    let profiles: Vec<_> = profiles.into_iter().map(|(_, p)| p).collect();
+    let profiles: Vec<_> = profiles.into_iter().map(|(_, p, _)| p).collect();
     st.write("links.csv", crate::jobs::links::csv(&rows).as_bytes())?;
     st.write("links.geojson", crate::jobs::links::geojson(sc, &rows).to_string().as_bytes())?;
     st.write("install.csv", crate::jobs::install::csv(&sheet).as_bytes())?;
@@ -154,20 +156,21 @@ pub fn run_links(sc: &Scenario, opts: &LinksOptions) -> Result<LinksResult, Erro
     Ok(LinksResult { rows, sheet, files })
 }
 
-/// The file name of a link's profile: `profile-<from>-<to>.svg`, with any character of the ids
+/// The file stem of a link's profile: `profile-<from>-<to>` (`.svg` and `.png`), with any character of the ids
 /// other than letters, digits, `-`, `_` and `.` written as `_`.
 pub fn profile_file(a: &str, b: &str) -> String {
     let clean = |s: &str| {
         s.chars().map(|c| if c.is_ascii_alphanumeric() || "-_.".contains(c) { c } else { '_' }).collect::<String>()
     };
-    format!("profile-{}-{}.svg", clean(a), clean(b))
+    format!("profile-{}-{}", clean(a), clean(b))
 }
 
-/// One profile per planned link (both directions share it) when the scenario has a surface.
+/// One profile per planned link (both directions share it) when the scenario has a surface:
+/// the file stem, the SVG for the report and the PNG.
 fn link_profiles(
     sc: &Scenario,
     rows: &[crate::jobs::links::LinkRow],
-) -> Result<Vec<(String, crate::io::report::ProfileImage)>, String> {
+) -> Result<Vec<(String, crate::io::report::ProfileImage, Vec<u8>)>, String> {
     let Some(surface) = sc.surface() else { return Ok(Vec::new()) };
     let lambda = crate::model::obstruction::wavelength_m(sc.pathloss.frequency_ghz());
     let mut out = Vec::new();
@@ -181,16 +184,18 @@ fn link_profiles(
             .map(|r| r.path_verdict())
             .unwrap_or_default();
         let title = format!("{} – {}", na.id, nb.id);
-        let svg = crate::io::profile::svg(&crate::io::profile::ProfileSpec {
+        let spec = crate::io::profile::ProfileSpec {
             title: &title,
             verdict: &verdict,
             profile: &profile,
             wavelength_m: lambda,
             earth_k: surface.earth_k(),
-        })?;
+        };
+        let (svg, png) = (crate::io::profile::svg(&spec)?, crate::io::profile::png(&spec)?);
         out.push((
             profile_file(&na.id, &nb.id),
             crate::io::report::ProfileImage { title: format!("{title}: {verdict}"), svg },
+            png,
         ));
     }
     Ok(out)
