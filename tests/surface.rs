@@ -306,6 +306,9 @@ fn bad_surface_inputs_are_refused_by_name() {
     );
     let e = refused("buildings = \"b.geojson\"", &[("b.geojson", fc.as_bytes())]);
     assert!(e.contains("node BB01") && e.contains("Tall store") && e.contains("height_m"), "{e}");
+    // The message names the node file, where height_m is set.
+    let line = e.lines().find(|l| l.contains("node BB01")).unwrap();
+    assert!(line.contains("nodes.geojson"), "{line}");
     // Out-of-range numbers in the table itself.
     let e = refused("earth_k = 0.1\nobstruction_cap_db = -5", &[]);
     assert!(e.contains("earth_k") && e.contains("obstruction_cap_db"), "{e}");

@@ -605,6 +605,7 @@ impl Scenario {
                     rx.rooftop.unwrap_or(true),
                     dir,
                     &file,
+                    &nodes_path.display().to_string(),
                     &grid,
                     &frame,
                     &nodes,

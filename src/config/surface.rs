@@ -365,6 +365,7 @@ pub(crate) fn build(
     rooftop: bool,
     dir: &Path,
     file: &str,
+    node_file: &str,
     grid: &Grid,
     frame: &LocalFrame,
     nodes: &[Node],
@@ -558,7 +559,7 @@ pub(crate) fn build(
             if b != NO_BUILDING && n.height_m < buildings[b as usize].height_m {
                 let bl = &buildings[b as usize];
                 probs.push(Problem::new(
-                    file,
+                    node_file,
                     Some(format!("node {}", n.id)),
                     "height_m",
                     format!("value {} m puts node {} inside {} (roof at {} m above the ground): a node's height_m is above the ground, so a rooftop node needs at least {} m", n.height_m, n.id, bl.label, bl.height_m, bl.height_m),
