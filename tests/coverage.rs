@@ -123,3 +123,53 @@ fn exact_coverage_layer_matches_monte_carlo_on_demo() {
     }
     assert!(checked >= 3, "too few intermediate cells: {checked}");
 }
+
+/// Without fading or shadowing and with every node always on, the coverage layer is the SINR
+/// indicator, taken from the SINR sums with no pass of its own (`Method::Indicator`). Checked
+/// on the demo layout with activities set to 1 and an aimed receiver: every cell equals
+/// 1{SINR layer ≥ T} (cells within 0.01 dB of T left out, where float32 rounding may decide),
+/// and at 40 cells the probe's seeded Monte Carlo (the fading and activity simulation, 2 000
+/// trials: with one outcome it must give exactly 0 or 1) agrees with the layer.
+#[test]
+fn unfaded_always_on_coverage_is_the_sinr_indicator() {
+    let sc = Scenario::load(std::path::Path::new("sites/harbourlight/scenario.toml")).unwrap();
+    let nodes: Vec<_> = sc
+        .nodes()
+        .iter()
+        .cloned()
+        .map(|mut n| {
+            n.activity = 1.0;
+            n
+        })
+        .collect();
+    let sc = sc.with_nodes(nodes).with_fading(FadingSpec {
+        signal: Fading::NONE,
+        interferer: Fading::NONE,
+        shadowing_db: 0.0,
+    });
+    let eng = Engine::new(&sc);
+    assert_eq!(eng.coverage_method(), lobemap::model::coverage::Method::Indicator);
+    let layers = LayerSet { coverage: true, sinr: true, total: false, ..LayerSet::TOTAL };
+    let l = eng.run(&Options { layers, cutoff_m: None, progress: false });
+    let (cov, sinr) = (l.coverage.unwrap(), l.sinr.unwrap());
+    let t = sc.thresholds().sinr_db as f32;
+    let (mut ones, mut zeros) = (0, 0);
+    for (c, s) in cov.iter().zip(&sinr) {
+        if *s == lobemap::NODATA || (*s - t).abs() < 0.01 {
+            continue;
+        }
+        let want = if *s >= t { 1.0 } else { 0.0 };
+        assert_eq!(*c, want, "SINR {s} dB, coverage {c}");
+        if want == 1.0 { ones += 1 } else { zeros += 1 }
+    }
+    assert!(ones > 1000 && zeros > 1000, "{ones} covered, {zeros} not");
+    let g = sc.grid();
+    for k in (0..cov.len()).step_by(cov.len() / 40) {
+        if sinr[k] == lobemap::NODATA || (sinr[k] - t).abs() < 0.01 {
+            continue;
+        }
+        let (r, c) = (k / g.cols(), k % g.cols());
+        let p = lobemap::jobs::probe::probe_with(&sc, g.lat_of_row(r), g.lon_of_col(c), Some((2_000, k as u64)));
+        assert_eq!(p.monte_carlo.unwrap().estimate, cov[k] as f64, "cell {r},{c}");
+    }
+}

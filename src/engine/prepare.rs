@@ -107,7 +107,7 @@ impl<'s> Engine<'s> {
             rx_aim,
             g_signal: db_to_lin(sc.receiver.max_gain_dbi()) as f32,
             shadow_mean: sc.fading.shadow_mean() as f32,
-            cov: crate::model::coverage::CoverageModel::new(sc.fading, sc.thresholds.sinr_db, sc.noise_dbm()),
+            cov: sc.coverage_model(sc.noise_dbm()),
             obs,
             rain: crate::engine::availability::RainK::new(sc),
             noise_of: sc.nodes.iter().map(|n| dbm_to_mw(sc.noise_dbm_of(n)) as f32).collect(),
@@ -116,7 +116,7 @@ impl<'s> Engine<'s> {
                 .map(|k| {
                     let bw = sc.spectrum.channels[k].bandwidth_mhz;
                     let noise = crate::model::noise::noise_dbm(bw, sc.radio.noise_figure_db);
-                    crate::model::coverage::CoverageModel::new(sc.fading, sc.thresholds.sinr_db, noise)
+                    sc.coverage_model(noise)
                 })
                 .collect(),
             coupling: coupling_table(sc),

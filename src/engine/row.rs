@@ -129,7 +129,12 @@ pub(crate) fn row_body<D: Decay, A: PairFactor, C: RxCoupling>(
     };
     // The interference needs a pass that knows each cell's server when the receiver is aimed
     // at it or when coupling depends on it; otherwise the server pass's sum stands.
-    let aimed_needed = (e.rx_aim.is_some() || !C::IDENTITY) && (l.interference || l.sinr || l.availability);
+    // Without fading and with every node always on, coverage is the SINR indicator: it needs
+    // the interference sums the SINR needs, not a pass of its own.
+    let indicator = e.cov.method == crate::model::coverage::Method::Indicator;
+    let aimed_needed = (e.rx_aim.is_some() || !C::IDENTITY)
+        && (l.interference || l.sinr || l.availability || (l.coverage && indicator));
+    let cov_pass = l.coverage && !indicator;
     if e.rx_aim.is_some() && (aimed_needed || l.coverage) {
         for c in 0..cols {
             let s = b.server[c];
@@ -151,7 +156,7 @@ pub(crate) fn row_body<D: Decay, A: PairFactor, C: RxCoupling>(
         cp.fill_row(&b.server[..cols], &mut b.cfac);
     }
     // With coverage requested, its pass also sums the aimed interference (see the kernels).
-    if aimed_needed && !l.coverage {
+    if aimed_needed && !cov_pass {
         // An omni receiver is the aimed kernel with an always-true beam test.
         let rx = e.rx_aim.unwrap_or((-1.0, e.g_omni, e.g_omni));
         b.iacc.fill(0.0);
@@ -194,7 +199,7 @@ pub(crate) fn row_body<D: Decay, A: PairFactor, C: RxCoupling>(
             }
         }
     }
-    if l.coverage {
+    if cov_pass {
         // An omni receiver is the aimed kernel with an always-true beam test.
         let rx = e.rx_aim.unwrap_or((-1.0, e.g_omni, e.g_omni));
         let t_lin = e.cov.t_lin as f32;
@@ -246,6 +251,11 @@ pub(crate) fn row_body<D: Decay, A: PairFactor, C: RxCoupling>(
             let cov = &e.cov_of[e.chan[(b.server[c] as usize).min(e.chan.len() - 1)] as usize];
             *out = if b.server[c] == u32::MAX || sig <= 0.0 {
                 NODATA
+            } else if indicator {
+                // The SINR layer's sums (no shadowing here, so no shadow mean).
+                let interf = if aimed_needed { b.iacc[c] } else { e.g_omni * b.other[c] };
+                let noise = e.noise_of[b.server[c] as usize];
+                if e.g_signal * b.best[c] >= e.cov.t_lin as f32 * (interf + noise) { 1.0 } else { 0.0 }
             } else if exact {
                 cov.from_log2_product(sig, (b.cacc[c] as f64).log2()) as f32
             } else {

@@ -134,7 +134,7 @@ pub fn links(sc: &Scenario, mc: Option<(usize, u64)>) -> Vec<LinkRow> {
             let link_mc = mc.map(|(n, seed)| (n, seed.wrapping_add(k as u64)));
             // The receiving end's noise on its channel.
             let noise_dbm = sc.noise_dbm_of(b);
-            let cov = CoverageModel::new(sc.fading, sc.thresholds.sinr_db, noise_dbm);
+            let cov = sc.coverage_model(noise_dbm);
             let row = one(sc, &pos, f, t, a, b, &cov, noise_dbm, link_mc);
             bar.inc(1);
             row

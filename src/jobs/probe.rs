@@ -171,7 +171,7 @@ pub fn probe_with(sc: &Scenario, lat: f64, lon: f64, mc: Option<(usize, u64)>) -
     // coverage model takes the unshadowed ones and draws the shadowing itself).
     let shadow = sc.fading.shadow_mean();
     let sinr_db = mw_to_dbm(signal_mw * shadow / (interference_mw * shadow + dbm_to_mw(noise_dbm)));
-    let cov = crate::model::coverage::CoverageModel::new(sc.fading, sc.thresholds.sinr_db, noise_dbm);
+    let cov = sc.coverage_model(noise_dbm);
     let interferers: Vec<(f64, f64)> =
         contributions.iter().filter(|c| c.index != server).map(|c| (c.activity, coupled(c))).collect();
     let coverage = cov.probability(signal_mw, &interferers);

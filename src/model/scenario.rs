@@ -329,6 +329,13 @@ impl Scenario {
     pub fn pathloss_of(&self, n: &Node) -> &PathLoss {
         &self.channel_pathloss[n.channel]
     }
+    /// The coverage model at receiver noise `noise_dbm`: the scenario's fading and SINR
+    /// threshold, and the indicator method when every node is always on
+    /// ([`crate::model::coverage::CoverageModel::for_layout`]).
+    pub fn coverage_model(&self, noise_dbm: f64) -> crate::model::coverage::CoverageModel {
+        crate::model::coverage::CoverageModel::new(self.fading, self.thresholds.sinr_db, noise_dbm)
+            .for_layout(self.nodes.iter().all(|n| n.activity >= 1.0))
+    }
     /// Receiver noise on a node's channel, dBm.
     pub fn noise_dbm_of(&self, n: &Node) -> f64 {
         crate::model::noise::noise_dbm(self.spectrum.channels[n.channel].bandwidth_mhz, self.radio.noise_figure_db)

@@ -523,12 +523,7 @@ pub(crate) fn summarize(
             .as_ref()
             .and_then(|h| h.fraction_at_least(sc.thresholds.coverage_target * 100.0))
             .map(|f| (f * 1e6).round() / 1e6),
-        coverage_method: layers.coverage.as_ref().map(|_| {
-            crate::model::coverage::CoverageModel::new(sc.fading, sc.thresholds.sinr_db, noise_dbm)
-                .method
-                .name()
-                .to_string()
-        }),
+        coverage_method: layers.coverage.as_ref().map(|_| sc.coverage_model(noise_dbm).method.name().to_string()),
         outage_zones: outage,
         sub_cell_zones,
         availability_pct: avail_hist.as_ref().map(|h| {

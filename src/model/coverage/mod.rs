@@ -65,6 +65,10 @@ pub enum Method {
     Inversion,
     /// On/off states enumerated (no fading, no shadowing).
     Enumeration,
+    /// No fading, no shadowing and every node always on: the SINR is deterministic and the
+    /// probability is 1 where SINR ≥ T, else 0 (the map takes it from the SINR sums at no
+    /// extra pass).
+    Indicator,
     /// A combination the model cannot compute within its error bound (refused by
     /// [`CoverageModel::check`]; every cell is nodata).
     Unsupported,
@@ -85,6 +89,7 @@ impl Method {
                 "Euler inversion of the interference CDF at the unfaded signal; strongest interferers one by one, the rest as one gamma law"
             }
             Method::Enumeration => "on/off states of the strongest interferers enumerated, the rest as one gamma law",
+            Method::Indicator => "indicator: 1 where SINR >= T (no fading, no shadowing, every node always on)",
             Method::Unsupported => "unsupported combination (refused by the scenario check)",
         }
     }
@@ -166,6 +171,15 @@ impl CoverageModel {
             plan: if method == Method::Series { series::Plan::new(spec.signal) } else { None },
             euler: crate::math::laplace::Euler::new(crate::math::laplace::DEFAULT_M),
         }
+    }
+
+    /// The model for a layout: [`Method::Indicator`] in place of [`Method::Enumeration`] when
+    /// every node is always on (`all_on`), as the on/off states then have one outcome.
+    pub fn for_layout(mut self, all_on: bool) -> CoverageModel {
+        if all_on && self.method == Method::Enumeration {
+            self.method = Method::Indicator;
+        }
+        self
     }
 
     /// The interferers' Laplace transform E\[e^{−t h}\].
@@ -259,7 +273,9 @@ impl CoverageModel {
                 Some(plan) => series::gamma_like(plan, noise, intf, terms, res),
                 None => f64::NAN,
             },
-            Method::Inversion | Method::Enumeration => series::unfaded(&self.euler, noise, intf, terms, res),
+            Method::Inversion | Method::Enumeration | Method::Indicator => {
+                series::unfaded(&self.euler, noise, intf, terms, res)
+            }
             Method::Unsupported => f64::NAN,
         };
         p.clamp(0.0, 1.0)
@@ -323,7 +339,12 @@ impl CoverageModel {
         }
         let mut v: Vec<(f64, f64)> = interferers.iter().copied().filter(|t| t.0 > 0.0 && t.1 > 0.0).collect();
         v.sort_by(|x, y| y.1.total_cmp(&x.1));
-        let keep = if self.method == Method::Enumeration { STRONG_ENUMERATED } else { STRONG_POINT }.min(v.len());
+        let keep = if matches!(self.method, Method::Enumeration | Method::Indicator) {
+            STRONG_ENUMERATED
+        } else {
+            STRONG_POINT
+        }
+        .min(v.len());
         let e1sq = self.e1 * self.e1;
         let (ap, var) = v[keep..]
             .iter()
